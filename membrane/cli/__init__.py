@@ -1,0 +1,64 @@
+"""The ``membrane`` command: one small module per command, composed here.
+
+Every error a user can cause ends as one line on stderr and exit code 2, whether
+typer/click found it (a malformed option) or the library did (a bad value).
+"""
+
+from __future__ import annotations
+
+import sys
+
+import typer
+from typer.core import TyperGroup
+
+from ..errors import MembraneError
+from .common import print_error
+
+
+class _OneLineErrors(TyperGroup):
+    """Click group whose usage errors and library errors print one line, exit 2."""
+
+    def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True, **extra):
+        try:
+            code = super().main(args=args, prog_name=prog_name or "membrane",
+                                complete_var=complete_var, standalone_mode=False, **extra)
+        except typer.Exit as exc:
+            sys.exit(exc.exit_code)
+        except (typer.Abort, KeyboardInterrupt):
+            print_error("aborted")
+            sys.exit(130)
+        except MembraneError as exc:
+            print_error(str(exc).replace("\n", " "))
+            sys.exit(2)
+        except Exception as exc:
+            # Usage errors and bad parameters from typer's command-line parser carry
+            # an exit code and format their own message; anything else is a bug.
+            if not (hasattr(exc, "format_message") and hasattr(exc, "exit_code")):
+                raise
+            print_error(exc.format_message().replace("\n", " "))
+            sys.exit(2)
+        sys.exit(code if isinstance(code, int) else 0)
+
+
+app = typer.Typer(
+    cls=_OneLineErrors,
+    name="membrane",
+    help="Modes, partials, tuning and pictures of circular drumheads.",
+    no_args_is_help=True,
+    add_completion=False,
+    pretty_exceptions_enable=False,
+    context_settings={"help_option_names": ["-h", "--help"]},
+)
+
+# Each command module is imported here; the modules import nothing heavy at load.
+from .examples import examples  # noqa: E402
+from .modes import modes  # noqa: E402
+
+app.command()(modes)
+app.command()(examples)
+# -- more commands register below this line --
+
+
+def main() -> None:
+    """Console-script entry point."""
+    app()

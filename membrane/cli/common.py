@@ -1,0 +1,202 @@
+"""Pieces every command shares: errors, output formats, safe writing, the drum flags."""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import os
+import sys
+import tempfile
+from enum import Enum
+from pathlib import Path
+from typing import Annotated, Callable, Optional
+
+import typer
+
+from ..drum import Drum, load_drum, override_table, parse_drum
+from ..errors import InputError, MembraneError
+
+
+class Format(str, Enum):
+    """Output formats every table-printing command offers."""
+
+    table = "table"
+    csv = "csv"
+    json = "json"
+    markdown = "markdown"
+
+
+class Physics(str, Enum):
+    """Physics models, as in :func:`membrane.solve`."""
+
+    ideal = "ideal"
+    stiff = "stiff"
+    full = "full"
+
+
+class BodyKind(str, Enum):
+    """What is under the head."""
+
+    none = "none"
+    kettle = "kettle"
+    shell = "shell"
+
+
+def fail(key: str, value, allowed: str):
+    """Raise the one-line input error (the app prints it and exits with code 2)."""
+    raise InputError(key, value, allowed)
+
+
+def parse_mode(text: str, *, key: str = "--mode") -> tuple[int, int]:
+    """``"1,1"`` -> (1, 1): m >= 0 nodal diameters, n >= 1 nodal circles."""
+    parts = str(text).replace("(", "").replace(")", "").split(",")
+    try:
+        m, n = (int(p) for p in parts)
+    except ValueError:
+        fail(key, text, "expected M,N with whole numbers, e.g. 1,1 (m nodal diameters, n nodal circles)")
+    if m < 0 or n < 1:
+        fail(key, text, "m must be >= 0 and n >= 1 (n counts the rim)")
+    return m, n
+
+
+# ------------------------------------------------------------------ the drum from file + flags
+DrumFile = Annotated[Optional[str], typer.Argument(
+    metavar="[DRUM_FILE]",
+    help="Drum file (TOML), or a built-in example: kettledrum, snare (invented demo drums).")]
+Diameter = Annotated[Optional[str], typer.Option(help="Head diameter, e.g. '26 in' or '0.65 m'.")]
+Radius = Annotated[Optional[str], typer.Option(help="Head radius (instead of --diameter).")]
+Tension = Annotated[Optional[str], typer.Option(help="Tension per unit length, e.g. '4 kN/m', '20 lbf/in'.")]
+ArealDensity = Annotated[Optional[str], typer.Option(help="Mass per unit area, e.g. '0.26 kg/m^2'.")]
+Film = Annotated[Optional[str], typer.Option(help="Film from the materials data, e.g. polyester.")]
+Thickness = Annotated[Optional[str], typer.Option(help="Film thickness per ply, e.g. '0.19 mm', '7.5 mil'.")]
+Body = Annotated[Optional[BodyKind], typer.Option(help="What is under the head.")]
+Volume = Annotated[Optional[str], typer.Option(help="Kettle volume, e.g. '0.17 m^3', '170 L'.")]
+Depth = Annotated[Optional[str], typer.Option(help="Shell depth, e.g. '14 in'.")]
+
+
+def drum_from(drum_file: str | None, **flags) -> Drum:
+    """The drum from a file (or built-in example) with command-line flags laid over it."""
+    if flags.get("body") is not None:
+        flags["body"] = flags["body"].value
+    if drum_file is not None:
+        return load_drum(drum_file, **flags)
+    if not any(v is not None for v in flags.values()):
+        fail("DRUM_FILE", None, "give a drum file, a built-in example (kettledrum, snare), "
+             "or --diameter, --tension and --areal-density (or --film and --thickness)")
+    return parse_drum(override_table(None, **flags))
+
+
+# ------------------------------------------------------------------ output
+def _clean(value):
+    """JSON-safe: NaN and infinities become null, numpy scalars plain numbers."""
+    if isinstance(value, dict):
+        return {k: _clean(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_clean(v) for v in value]
+    if hasattr(value, "item") and not isinstance(value, (str, bytes)):
+        value = value.item()
+    if isinstance(value, float) and not math.isfinite(value):
+        return None
+    return value
+
+
+def emit(fmt: Format, *, payload: dict, rows: list[dict], columns: list[tuple[str, str, Callable]],
+         title: str = "", notes: tuple[str, ...] | list[str] = ()) -> None:
+    """Print a result in the chosen format.
+
+    Parameters
+    ----------
+    fmt : Format
+        ``json`` prints ``payload``; the others print ``rows`` through ``columns``,
+        a list of (key, header, formatter) with formatter(value) -> str.
+    title, notes
+        Shown above and below the table (table and markdown formats).
+    """
+    if fmt is Format.json:
+        print(json.dumps(_clean(payload), indent=2))
+        return
+    cells = [[fmtr(row.get(key)) if row.get(key) is not None else "" for key, _, fmtr in columns]
+             for row in rows]
+    headers = [header for _, header, _ in columns]
+    if fmt is Format.csv:
+        out = io.StringIO()
+        writer = csv.writer(out, lineterminator="\n")
+        writer.writerow([key for key, _, _ in columns])
+        for row in rows:
+            writer.writerow(["" if row.get(k) is None else _clean(row.get(k)) for k, _, _ in columns])
+        sys.stdout.write(out.getvalue())
+        return
+    if fmt is Format.markdown:
+        lines = [f"**{title}**", ""] if title else []
+        lines.append("| " + " | ".join(headers) + " |")
+        lines.append("|" + "|".join("---:" if i else "---" for i in range(len(headers))) + "|")
+        lines.extend("| " + " | ".join(c) + " |" for c in cells)
+        if notes:
+            lines.append("")
+            lines.extend(f"- {n}" for n in notes)
+        print("\n".join(lines))
+        return
+    from rich.console import Console
+    from rich.table import Table
+
+    table = Table(title=title or None, title_justify="left")
+    for i, header in enumerate(headers):
+        table.add_column(header, justify="left" if i == 0 else "right")
+    for c in cells:
+        table.add_row(*c)
+    console = Console(soft_wrap=False)
+    console.print(table)
+    for n in notes:
+        console.print(f"[dim]- {n}[/dim]", highlight=False)
+
+
+def num(digits: int) -> Callable:
+    """Formatter: a float with a fixed number of decimals."""
+    return lambda v: f"{v:.{digits}f}"
+
+
+def signed(digits: int) -> Callable:
+    """Formatter: a float with a sign and a fixed number of decimals."""
+    return lambda v: f"{v:+.{digits}f}"
+
+
+# ------------------------------------------------------------------ files
+def write_atomic(path: str | Path, writer: Callable[[Path], None], *, force: bool,
+                 key: str = "--out") -> Path:
+    """Write a file whole or not at all.
+
+    ``writer(tmp_path)`` writes the content to a temporary file in the target's folder
+    (with the target's suffix, so format-sniffing writers behave); it is then moved
+    over the target in one step. An existing target is refused unless ``force``.
+    """
+    path = Path(path)
+    if path.exists() and not force:
+        fail(key, str(path), "exists already; add --force to overwrite it")
+    if path.is_dir():
+        fail(key, str(path), "is a folder; give a file name")
+    folder = path.parent if str(path.parent) else Path(".")
+    if not folder.is_dir():
+        fail(key, str(path), f"folder {str(folder)!r} does not exist")
+    if not os.access(folder, os.W_OK):
+        fail(key, str(path), f"folder {str(folder)!r} is not writable")
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.stem}-", suffix=path.suffix, dir=folder)
+    os.close(fd)
+    tmp = Path(tmp)
+    try:
+        writer(tmp)
+        os.replace(tmp, path)
+    except BaseException:
+        tmp.unlink(missing_ok=True)
+        raise
+    return path
+
+
+def print_error(message: str) -> None:
+    """The one line a user sees for bad input."""
+    print(f"membrane: error: {message}", file=sys.stderr)
+
+
+__all__ = ["Format", "Physics", "BodyKind", "fail", "parse_mode", "drum_from", "emit", "num",
+           "signed", "write_atomic", "print_error", "MembraneError"]

@@ -1,0 +1,77 @@
+"""``membrane modes``: the table of partials, ratios, harmonic fit and notes."""
+
+from __future__ import annotations
+
+from typing import Annotated, List, Optional
+
+import typer
+
+from ..solve import solve
+from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
+                     Radius, Tension, Thickness, Volume, drum_from, emit, num, parse_mode,
+                     signed)
+
+COLUMNS = [
+    ("mode", "mode", str),
+    ("frequency_hz", "f (Hz)", num(2)),
+    ("decay_s", "T60 (s)", num(2)),
+    ("ratio", "ratio", num(4)),
+    ("harmonic", "harmonic", str),
+    ("cents_from_harmonic", "cents off harmonic", signed(1)),
+    ("note", "note", str),
+    ("cents_from_note", "cents off note", signed(1)),
+]
+
+
+def modes(
+    drum_file: DrumFile = None,
+    diameter: Diameter = None,
+    radius: Radius = None,
+    tension: Tension = None,
+    areal_density: ArealDensity = None,
+    film: Film = None,
+    thickness: Thickness = None,
+    body: Body = None,
+    volume: Volume = None,
+    depth: Depth = None,
+    physics: Annotated[Physics, typer.Option(
+        help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
+    ] = Physics.full,
+    m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters (0-50).")] = 6,
+    n_max: Annotated[int, typer.Option(help="Highest number of nodal circles, counting the rim (1-50).")] = 3,
+    reference: Annotated[str, typer.Option(help="Mode the ratios are taken to, M,N.")] = "0,1",
+    fit: Annotated[Optional[List[str]], typer.Option(
+        help="Mode to include in the harmonic-series fit, M,N; repeat. Default (1,1)...(5,1).")] = None,
+    format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
+) -> None:
+    """Solve a drum's modes: frequencies, decay, ratios, harmonic fit and nearest notes."""
+    drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
+                     areal_density=areal_density, film=film, thickness=thickness, body=body,
+                     volume=volume, depth=depth)
+    ref = parse_mode(reference, key="--reference")
+    fit_modes = [parse_mode(f, key="--fit") for f in fit] if fit else None
+    result = solve(drum, physics.value, m_max=m_max, n_max=n_max)
+    result.find(*ref)  # a clear error if the reference mode was not solved
+    rows = result.table(reference=ref, fit_modes=fit_modes)
+    harmonic = result.harmonic_fit(fit_modes)
+    for row in rows:
+        row["mode"] = f"({row['m']},{row['n']})" + (f" {row['branch']}" if "branch" in row else "") + \
+            (" resonant" if row.get("head") == "resonant" else "")
+    payload = {
+        "drum": drum.name,
+        "physics": physics.value,
+        "reference": {"m": ref[0], "n": ref[1]},
+        "harmonic_fit": {
+            "fundamental_hz": harmonic.fundamental,
+            "rms_cents": harmonic.rms_cents,
+            "modes": [{"m": m, "n": n, "harmonic": harmonic.harmonics[(m, n)]} for m, n in harmonic.fitted],
+        },
+        "notes": list(result.notes),
+        "modes": [{k: v for k, v in row.items() if k != "mode"} for row in rows],
+    }
+    title = (f"{drum.name}: {physics.value} physics; ratios to ({ref[0]},{ref[1]}); "
+             f"harmonic fit f0 = {harmonic.fundamental:.2f} Hz, rms {harmonic.rms_cents:.1f} cents")
+    columns = COLUMNS if format is not Format.csv else \
+        [("m", "m", str), ("n", "n", str)] + [c for c in COLUMNS if c[0] != "mode"] + \
+        [("multiplicity", "multiplicity", str), ("branch", "branch", str), ("head", "head", str)]
+    emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=result.notes)

@@ -1,0 +1,451 @@
+"""The drum: frozen dataclasses for head, body and air, and the drum file (TOML).
+
+Values inside are plain SI floats. Text with units is accepted only at the edge,
+by :func:`parse_drum`, which also checks every value against a physically
+sensible range and names the key when one is wrong.
+"""
+
+from __future__ import annotations
+
+import copy
+import math
+import tomllib
+from dataclasses import dataclass, field, replace
+from importlib import resources
+from pathlib import Path
+
+from . import materials
+from .errors import InputError
+from .units import parse_pitch, to_si
+
+EDGES = ("clamped", "hinged")
+BODY_KINDS = ("none", "kettle", "shell")
+
+# Gas constants for dry air: R = 287.058 J/(kg K), gamma = 1.4 (SOURCES.md, "Air and pitch").
+R_DRY_AIR = 287.058
+GAMMA_AIR = 1.4
+
+
+@dataclass(frozen=True)
+class Head:
+    """One drumhead, SI units.
+
+    Attributes
+    ----------
+    radius : float
+        Radius of the vibrating area in m.
+    tension : float
+        Membrane tension per unit length in N/m.
+    areal_density : float
+        Mass per unit area in kg/m^2 (all plies).
+    thickness : float or None
+        Thickness of one ply in m, if known.
+    plies : int
+        Number of plies. Plies are taken as free to slide on each other, so their
+        bending stiffnesses add (a bonded laminate would be stiffer).
+    youngs_modulus : float or None
+        E in Pa, if known; without it the head has no bending stiffness.
+    poisson_ratio : float
+        nu (dimensionless).
+    edge : {"clamped", "hinged"}
+        How the rim holds the head (matters only with bending stiffness).
+    film : str or None
+        Film name from the materials data, if any.
+    yield_stress, tensile_strength : float or None
+        The film's strength in Pa, for the tuning cautions.
+    """
+
+    radius: float
+    tension: float
+    areal_density: float
+    thickness: float | None = None
+    plies: int = 1
+    youngs_modulus: float | None = None
+    poisson_ratio: float = 0.38
+    edge: str = "clamped"
+    film: str | None = None
+    yield_stress: float | None = None
+    tensile_strength: float | None = None
+
+    @property
+    def diameter(self) -> float:
+        """Diameter in m."""
+        return 2.0 * self.radius
+
+    @property
+    def bending_stiffness(self) -> float:
+        """D = plies * E h^3 / (12 (1 - nu^2)) in N m; 0 when E or h is unknown."""
+        if self.youngs_modulus is None or self.thickness is None:
+            return 0.0
+        h = self.thickness
+        return self.plies * self.youngs_modulus * h**3 / (12.0 * (1.0 - self.poisson_ratio**2))
+
+    @property
+    def stress(self) -> float | None:
+        """In-plane film stress T / (plies h) in Pa, or None without a thickness."""
+        if self.thickness is None:
+            return None
+        return self.tension / (self.plies * self.thickness)
+
+    @property
+    def wave_speed(self) -> float:
+        """Transverse wave speed sqrt(T / sigma) of the ideal membrane, m/s."""
+        return math.sqrt(self.tension / self.areal_density)
+
+
+@dataclass(frozen=True)
+class Body:
+    """What is under the head.
+
+    Attributes
+    ----------
+    kind : {"none", "kettle", "shell"}
+        ``none``: air on both faces; ``kettle``: a closed bowl under the head;
+        ``shell``: an open cylinder with a second (resonant) head at the far end.
+    volume : float or None
+        Kettle volume in m^3.
+    depth : float or None
+        Shell depth in m.
+    """
+
+    kind: str = "none"
+    volume: float | None = None
+    depth: float | None = None
+
+
+@dataclass(frozen=True)
+class Air:
+    """Air properties, SI.
+
+    Attributes
+    ----------
+    density : float
+        kg/m^3.
+    sound_speed : float
+        m/s.
+    """
+
+    density: float = 1.2041
+    sound_speed: float = 343.24
+
+    @classmethod
+    def from_conditions(cls, *, temperature: float = 293.15, pressure: float = 101325.0) -> "Air":
+        """Dry air as an ideal gas.
+
+        Parameters
+        ----------
+        temperature : float
+            Absolute temperature in K.
+        pressure : float
+            Static pressure in Pa.
+
+        Notes
+        -----
+        rho = P / (R T), c = sqrt(gamma R T) with R = 287.058 J/(kg K) and gamma = 1.4:
+        343.24 m/s and 1.2041 kg/m^3 at 20 degC and 101.325 kPa (SOURCES.md). Humidity
+        is neglected (it raises c by well under 1 % at room temperature).
+        """
+        return cls(density=pressure / (R_DRY_AIR * temperature),
+                   sound_speed=math.sqrt(GAMMA_AIR * R_DRY_AIR * temperature))
+
+    @property
+    def bulk_modulus(self) -> float:
+        """Adiabatic bulk modulus rho c^2 in Pa."""
+        return self.density * self.sound_speed**2
+
+
+@dataclass(frozen=True)
+class Lugs:
+    """Tap pitches measured near each tension lug, for equalisation.
+
+    Attributes
+    ----------
+    pitches : tuple of float
+        Tap pitch near each lug in Hz, in order around the rim.
+    cents_per_turn : float or None
+        Measured pitch change for one full turn of a lug's rod, in cents.
+    """
+
+    pitches: tuple[float, ...]
+    cents_per_turn: float | None = None
+
+
+@dataclass(frozen=True)
+class Drum:
+    """A whole drum: the struck head, what is under it, and the air.
+
+    Attributes
+    ----------
+    head : Head
+        The struck head.
+    body : Body
+        Kettle, shell, or nothing.
+    air : Air
+        Air on both sides and inside.
+    resonant_head : Head or None
+        The far head of a shell.
+    lugs : Lugs or None
+        Tap pitches at the lugs, if measured.
+    name, description : str
+        Words for people.
+    """
+
+    head: Head
+    body: Body = field(default_factory=Body)
+    air: Air = field(default_factory=Air)
+    resonant_head: Head | None = None
+    lugs: Lugs | None = None
+    name: str = "drum"
+    description: str = ""
+
+    def with_tension(self, tension: float) -> "Drum":
+        """The same drum with the struck head at another tension (N/m)."""
+        return replace(self, head=replace(self.head, tension=float(tension)))
+
+
+# ------------------------------------------------------------------ the drum file
+_HEAD_KEYS = {"diameter", "radius", "film", "thickness", "plies", "density", "areal_density",
+              "youngs_modulus", "poisson_ratio", "tension", "edge", "yield_stress",
+              "tensile_strength"}
+_BODY_KEYS = {"kind", "volume", "depth"}
+_AIR_KEYS = {"temperature", "pressure", "density", "sound_speed"}
+_LUG_KEYS = {"pitches", "cents_per_turn"}
+_TOP_KEYS = {"name", "description", "head", "body", "resonant_head", "air", "lugs"}
+
+
+def _ranged(table: dict, key: str, kind: str, where: str, lo: float, hi: float, *,
+            lo_open: bool = True, unit: str = "") -> float | None:
+    if key not in table:
+        return None
+    name = f"{where}.{key}"
+    value = to_si(table[key], kind, key=name)
+    below = value <= lo if lo_open else value < lo
+    if below or value > hi:
+        lo_word = ">" if lo_open else ">="
+        raise InputError(name, table[key], f"must be {lo_word} {lo:g} and <= {hi:g} {unit}".rstrip())
+    return value
+
+
+def _check_keys(table, allowed: set[str], where: str) -> None:
+    if not isinstance(table, dict):
+        raise InputError(where, table, "must be a table")
+    for key in table:
+        if key not in allowed:
+            raise InputError(f"{where}.{key}" if where else key, table[key],
+                             f"unknown key; allowed keys here: {', '.join(sorted(allowed))}")
+
+
+def _parse_head(table: dict, where: str) -> Head:
+    _check_keys(table, _HEAD_KEYS, where)
+    if "diameter" in table and "radius" in table:
+        raise InputError(f"{where}.radius", table["radius"], "give diameter or radius, not both")
+    diameter = _ranged(table, "diameter", "length", where, 0, 5.0, unit="m")
+    radius = _ranged(table, "radius", "length", where, 0, 2.5, unit="m")
+    if diameter is None and radius is None:
+        raise InputError(f"{where}.diameter", None, "missing: give diameter (or radius), e.g. \"26 in\"")
+    radius = radius if radius is not None else diameter / 2
+    tension = _ranged(table, "tension", "tension", where, 0, 1e5, unit="N/m")
+    if tension is None:
+        raise InputError(f"{where}.tension", None, "missing: give tension per unit length, e.g. \"4000 N/m\"")
+    plies = table.get("plies", 1)
+    if isinstance(plies, bool) or not isinstance(plies, int) or not 1 <= plies <= 4:
+        raise InputError(f"{where}.plies", plies, "must be a whole number from 1 to 4")
+    edge = table.get("edge", "clamped")
+    if edge not in EDGES:
+        raise InputError(f"{where}.edge", edge, f"must be one of: {', '.join(EDGES)}")
+
+    film = materials.film(table["film"], key=f"{where}.film") if "film" in table else None
+    thickness = _ranged(table, "thickness", "length", where, 0, 5e-3, unit="m (5 mm)")
+    density = _ranged(table, "density", "density", where, 0, 20000, unit="kg/m^3")
+    areal = _ranged(table, "areal_density", "areal_density", where, 0, 10, unit="kg/m^2")
+    if areal is None:
+        rho = density if density is not None else (film.density if film else None)
+        if rho is None or thickness is None:
+            raise InputError(f"{where}.areal_density", None,
+                             "missing: give areal_density, or film (or density) with thickness")
+        areal = rho * thickness * plies
+    modulus = _ranged(table, "youngs_modulus", "pressure", where, 0, 1e12, unit="Pa")
+    if modulus is None and film is not None:
+        modulus = film.youngs_modulus
+    nu = table.get("poisson_ratio", film.poisson_ratio if film else 0.38)
+    if isinstance(nu, bool) or not isinstance(nu, (int, float)) or not 0.0 <= nu < 0.5:
+        raise InputError(f"{where}.poisson_ratio", nu, "must be a number from 0 up to (not including) 0.5")
+    yield_stress = _ranged(table, "yield_stress", "pressure", where, 0, 1e11, unit="Pa")
+    strength = _ranged(table, "tensile_strength", "pressure", where, 0, 1e11, unit="Pa")
+    return Head(
+        radius=radius, tension=tension, areal_density=areal, thickness=thickness, plies=plies,
+        youngs_modulus=modulus, poisson_ratio=float(nu), edge=edge,
+        film=film.name if film else None,
+        yield_stress=yield_stress if yield_stress is not None else (film.yield_stress if film else None),
+        tensile_strength=strength if strength is not None else (film.tensile_strength if film else None),
+    )
+
+
+def _parse_body(table: dict) -> Body:
+    _check_keys(table, _BODY_KEYS, "body")
+    kind = table.get("kind", "none")
+    if kind not in BODY_KINDS:
+        raise InputError("body.kind", kind, f"must be one of: {', '.join(BODY_KINDS)}")
+    volume = _ranged(table, "volume", "volume", "body", 0, 10.0, unit="m^3")
+    depth = _ranged(table, "depth", "length", "body", 0, 5.0, unit="m")
+    if kind == "kettle" and volume is None:
+        raise InputError("body.volume", None, "missing: a kettle needs its volume, e.g. \"0.17 m^3\"")
+    if kind == "shell" and depth is None:
+        raise InputError("body.depth", None, "missing: a shell needs its depth, e.g. \"14 in\"")
+    if kind != "kettle" and volume is not None:
+        raise InputError("body.volume", table["volume"], f"only a kettle has a volume (body.kind is {kind!r})")
+    if kind != "shell" and depth is not None:
+        raise InputError("body.depth", table["depth"], f"only a shell has a depth (body.kind is {kind!r})")
+    return Body(kind=kind, volume=volume, depth=depth)
+
+
+def _parse_air(table: dict) -> Air:
+    _check_keys(table, _AIR_KEYS, "air")
+    direct = {"density", "sound_speed"} & table.keys()
+    if direct and ({"temperature", "pressure"} & table.keys()):
+        raise InputError("air", table, "give temperature (and pressure), or density and sound_speed, not both")
+    if direct:
+        if direct != {"density", "sound_speed"}:
+            raise InputError("air", table, "give both density and sound_speed")
+        return Air(density=_ranged(table, "density", "density", "air", 0, 100, unit="kg/m^3"),
+                   sound_speed=_ranged(table, "sound_speed", "speed", "air", 0, 2000, unit="m/s"))
+    temperature = to_si(table.get("temperature", 293.15), "temperature", key="air.temperature")
+    if not 200.0 <= temperature <= 350.0:
+        raise InputError("air.temperature", table.get("temperature"), "must be between -73 degC and 77 degC")
+    pressure = _ranged(table, "pressure", "pressure", "air", 1e3, 2e5, unit="Pa")
+    return Air.from_conditions(temperature=temperature, pressure=pressure or 101325.0)
+
+
+def _parse_lugs(table: dict) -> Lugs:
+    _check_keys(table, _LUG_KEYS, "lugs")
+    pitches = table.get("pitches")
+    if not isinstance(pitches, list) or len(pitches) < 3:
+        raise InputError("lugs.pitches", pitches, "must be a list of at least 3 tap pitches, one per lug")
+    hz = tuple(parse_pitch(p, key=f"lugs.pitches[{i}]") for i, p in enumerate(pitches))
+    per_turn = table.get("cents_per_turn")
+    if per_turn is not None and (isinstance(per_turn, bool) or not isinstance(per_turn, (int, float))
+                                 or not 0 < per_turn <= 1200):
+        raise InputError("lugs.cents_per_turn", per_turn, "must be a number of cents > 0 and <= 1200")
+    return Lugs(pitches=hz, cents_per_turn=None if per_turn is None else float(per_turn))
+
+
+def parse_drum(table: dict) -> Drum:
+    """Build a validated :class:`Drum` from a drum-file table (as read from TOML).
+
+    Raises
+    ------
+    InputError
+        Naming the key, the value and what is allowed, for the first problem found.
+    """
+    _check_keys(table, _TOP_KEYS, "")
+    if "head" not in table:
+        raise InputError("head", None, "missing: a drum file needs a [head] table")
+    head = _parse_head(table["head"], "head")
+    body = _parse_body(table.get("body", {}))
+    resonant = None
+    if "resonant_head" in table:
+        if body.kind != "shell":
+            raise InputError("resonant_head", "...", f"only a shell has a resonant head (body.kind is {body.kind!r})")
+        resonant = _parse_head(table["resonant_head"], "resonant_head")
+    elif body.kind == "shell":
+        raise InputError("resonant_head", None, "missing: a shell needs a [resonant_head] table")
+    air = _parse_air(table.get("air", {}))
+    lugs = _parse_lugs(table["lugs"]) if "lugs" in table else None
+    for key in ("name", "description"):
+        if key in table and not isinstance(table[key], str):
+            raise InputError(key, table[key], "must be text")
+    return Drum(head=head, body=body, air=air, resonant_head=resonant, lugs=lugs,
+                name=table.get("name", "drum"), description=table.get("description", ""))
+
+
+# ------------------------------------------------------------------ files and examples
+def builtin_names() -> list[str]:
+    """Names of the built-in example drums (invented demo data)."""
+    folder = resources.files("membrane").joinpath("data/examples")
+    return sorted(p.name.removesuffix(".toml") for p in folder.iterdir() if p.name.endswith(".toml"))
+
+
+def builtin_text(name: str) -> str:
+    """The drum-file text of a built-in example."""
+    if name not in builtin_names():
+        raise InputError("example", name, f"unknown example; built-in examples: {', '.join(builtin_names())}")
+    return resources.files("membrane").joinpath(f"data/examples/{name}.toml").read_text(encoding="utf-8")
+
+
+def read_drum_table(source: str | Path) -> dict:
+    """The raw table of a drum file, or of a built-in example given by name.
+
+    A path that exists is read as a file; otherwise a built-in example's name
+    (``kettledrum``, ``snare``) selects that example.
+    """
+    path = Path(source)
+    if path.is_file():
+        try:
+            text = path.read_text(encoding="utf-8")
+        except (OSError, UnicodeDecodeError) as exc:
+            raise InputError("drum file", str(source), f"cannot be read as UTF-8 text ({exc.__class__.__name__})") from None
+    elif str(source) in builtin_names():
+        text = builtin_text(str(source))
+    else:
+        raise InputError("drum file", str(source),
+                         f"no such file, and not a built-in example ({', '.join(builtin_names())})")
+    try:
+        return tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError("drum file", str(source), f"is not valid TOML: {exc}") from None
+
+
+def load_drum(source: str | Path, **overrides) -> Drum:
+    """Load a drum file (or built-in example) and apply overrides.
+
+    Parameters
+    ----------
+    source : str or Path
+        A drum file, or the name of a built-in example.
+    **overrides
+        Values as :func:`override_table` takes them (text with units or SI numbers).
+    """
+    return parse_drum(override_table(read_drum_table(source), **overrides))
+
+
+def override_table(table: dict | None, *, diameter=None, radius=None, tension=None,
+                   areal_density=None, film=None, thickness=None, body=None, volume=None,
+                   depth=None) -> dict:
+    """A copy of a drum-file table with command-line values laid over it.
+
+    A new diameter replaces the file's radius and vice versa; a new film or thickness
+    replaces the file's areal density; a new body kind drops the old kind's size.
+    With ``body="shell"`` and no resonant head, the struck head is used for both.
+    """
+    table = copy.deepcopy(table) if table else {}
+    head = table.setdefault("head", {})
+    if diameter is not None:
+        head.pop("radius", None)
+        head["diameter"] = diameter
+    if radius is not None:
+        head.pop("diameter", None)
+        head["radius"] = radius
+    if tension is not None:
+        head["tension"] = tension
+    if film is not None or thickness is not None:
+        head.pop("areal_density", None)
+        if film is not None:
+            head["film"] = film
+            head.pop("density", None)
+        if thickness is not None:
+            head["thickness"] = thickness
+    if areal_density is not None:
+        head["areal_density"] = areal_density
+    bod = table.setdefault("body", {})
+    if body is not None and body != bod.get("kind", "none"):
+        bod.clear()
+        bod["kind"] = body
+        if body != "shell":
+            table.pop("resonant_head", None)
+        elif "resonant_head" not in table:
+            table["resonant_head"] = copy.deepcopy(head)
+    if volume is not None:
+        bod["volume"] = volume
+    if depth is not None:
+        bod["depth"] = depth
+    return table

@@ -1,0 +1,270 @@
+"""A solved set of modes, and what is read off it: ratios, harmonic fit, notes, shapes.
+
+:class:`ModeSet` is what every solver returns and every consumer (tables, tuning,
+strike, pictures) takes. A mode keeps its expansion over the in-vacuum basis of its
+angular order, so a loaded or stiff mode draws its real shape.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from .errors import InputError
+from .physics.vacuum import RadialBasis
+from .units import cents, note_name
+
+PHYSICS = ("ideal", "stiff", "full")
+
+# The harmonic-series fit takes the lowest fitted mode as harmonic 1 up to this
+# number and keeps the best; two fits within TIE_CENTS rms keep the higher f0.
+MAX_LOWEST_HARMONIC = 4
+TIE_CENTS = 1.0
+
+
+@dataclass(frozen=True)
+class Mode:
+    """One mode of the drum.
+
+    Attributes
+    ----------
+    m, n : int
+        Nodal diameters, and nodal circles counting the rim.
+    frequency : float
+        Hz.
+    decay : float or None
+        T60 in s from radiation damping; None in vacuum.
+    multiplicity : int
+        1 for m = 0; 2 for the degenerate (cos, sin) pair when m >= 1.
+    branch : str or None
+        For a shell: ``"in-phase"`` or ``"opposed"``.
+    head : str or None
+        For uncoupled heads of a shell: ``"struck"`` or ``"resonant"``.
+    omega : complex
+        Complex angular frequency in rad/s (time dependence e^{i omega t}).
+    coefficients : numpy.ndarray
+        Expansion of the struck head's radial shape over ``basis``.
+    basis : RadialBasis
+        In-vacuum basis of order m of the struck head.
+    resonant_coefficients, resonant_basis
+        The same for the resonant head of a shell, else None.
+    """
+
+    m: int
+    n: int
+    frequency: float
+    decay: float | None
+    multiplicity: int
+    omega: complex
+    coefficients: np.ndarray
+    basis: RadialBasis
+    branch: str | None = None
+    head: str | None = None
+    resonant_coefficients: np.ndarray | None = None
+    resonant_basis: RadialBasis | None = None
+
+    @property
+    def label(self) -> str:
+        """``"(m,n)"``, with the branch or head for a shell."""
+        extra = self.branch or (self.head if self.head == "resonant" else None)
+        return f"({self.m},{self.n})" + (f" {extra}" if extra else "")
+
+    def radial_shape(self, r, *, resonant: bool = False) -> np.ndarray:
+        """Real radial shape on radii r (m), normalised to a peak of 1 on the struck head.
+
+        The complex coefficients of a damped mode are rotated to be as real as
+        possible first (a damped mode is nearly a standing wave).
+        """
+        coef, basis = (self.resonant_coefficients, self.resonant_basis) if resonant else \
+            (self.coefficients, self.basis)
+        if coef is None:
+            return np.zeros_like(np.asarray(r, dtype=float))
+        phase = _realising_phase(self.coefficients)
+        values = np.real(phase * (np.asarray(coef) @ basis.shape(r)))
+        ref = np.real(phase * (np.asarray(self.coefficients) @ self.basis.shape(
+            np.linspace(0.0, self.basis.radius, 257))))
+        peak = np.max(np.abs(ref))
+        return values / peak if peak > 0 else values
+
+    def field(self, r, theta, *, resonant: bool = False) -> np.ndarray:
+        """Displacement w(r, theta) = shape(r) cos(m theta) on a grid (r in m, theta in rad)."""
+        r = np.asarray(r, dtype=float)
+        theta = np.asarray(theta, dtype=float)
+        flat = self.radial_shape(r.ravel(), resonant=resonant).reshape(r.shape)
+        return flat * np.cos(self.m * theta)
+
+
+def _realising_phase(coef: np.ndarray) -> complex:
+    """Unit complex number that makes ``coef`` as nearly real as possible."""
+    coef = np.asarray(coef)
+    if not np.iscomplexobj(coef):
+        return 1.0
+    s = np.sum(coef * coef)
+    if abs(s) == 0:
+        return 1.0
+    return complex(np.exp(-0.5j * np.angle(s)))
+
+
+@dataclass(frozen=True)
+class HarmonicFit:
+    """The harmonic series that best fits chosen modes.
+
+    Attributes
+    ----------
+    fundamental : float
+        f0 in Hz.
+    harmonics : dict
+        (m, n) -> harmonic number of each fitted mode.
+    rms_cents : float
+        Root-mean-square deviation of the fitted modes from their harmonics.
+    fitted : tuple of (int, int)
+        The modes the fit used.
+    """
+
+    fundamental: float
+    harmonics: dict
+    rms_cents: float
+    fitted: tuple
+
+
+def harmonic_fit(frequencies, *, max_lowest: int = MAX_LOWEST_HARMONIC) -> tuple[float, np.ndarray, float]:
+    """Least-squares harmonic series through some frequencies, in cents.
+
+    For each choice of the lowest frequency's harmonic number (1..max_lowest), the
+    harmonic numbers are assigned by rounding and f0 refitted (the least-squares f0
+    in log frequency is the geometric mean of f_i / h_i) until the assignment
+    settles. The fit with the smallest rms deviation wins; fits within 1 cent of
+    it keep the highest f0, since a lower f0 can always fit as well.
+
+    Parameters
+    ----------
+    frequencies : array_like
+        Positive frequencies in Hz.
+    max_lowest : int
+        Highest harmonic number the lowest frequency may take.
+
+    Returns
+    -------
+    (float, numpy.ndarray, float)
+        f0 in Hz, integer harmonic numbers, rms deviation in cents.
+    """
+    f = np.asarray(frequencies, dtype=float)
+    low = f.min()
+    best = None
+    for h_low in range(1, max_lowest + 1):
+        f0 = low / h_low
+        h = np.maximum(1, np.rint(f / f0))
+        for _ in range(20):
+            f0 = float(np.exp(np.mean(np.log(f / h))))
+            new = np.maximum(1, np.rint(f / f0))
+            if np.array_equal(new, h):
+                break
+            h = new
+        rms = float(np.sqrt(np.mean((1200 * np.log2(f / (h * f0))) ** 2)))
+        if best is None or rms < best[2] - TIE_CENTS:
+            best = (f0, h.astype(int), rms)
+    return best
+
+
+@dataclass(frozen=True)
+class ModeSet:
+    """All solved modes of a drum under one physics model, sorted by frequency.
+
+    Attributes
+    ----------
+    modes : tuple of Mode
+        Sorted by frequency (stable: equal frequencies keep (m, n) order).
+    physics : str
+        ``"ideal"``, ``"stiff"`` or ``"full"``.
+    drum : Drum
+        The drum solved.
+    notes : tuple of str
+        What the model includes and leaves out, for the output.
+    """
+
+    modes: tuple
+    physics: str
+    drum: object
+    notes: tuple = ()
+
+    def __iter__(self):
+        return iter(self.modes)
+
+    def __len__(self):
+        return len(self.modes)
+
+    def find(self, m: int, n: int, branch: str | None = None) -> Mode:
+        """The mode (m, n) (of the given branch, for a shell; default the lower one)."""
+        for mode in self.modes:
+            if mode.m == m and mode.n == n and mode.head != "resonant" and \
+                    (branch is None or mode.branch == branch):
+                return mode
+        have = f"m <= {max(x.m for x in self.modes)}, n <= {max(x.n for x in self.modes)}"
+        raise InputError("mode", f"{m},{n}" + (f" {branch}" if branch else ""),
+                         f"this drum's solved modes have {have}")
+
+    def ratios(self, reference: tuple[int, int] = (0, 1)) -> np.ndarray:
+        """Frequency of every mode divided by the reference mode's."""
+        ref = self.find(*reference).frequency
+        return np.array([mode.frequency / ref for mode in self.modes])
+
+    def harmonic_fit(self, fit_modes=None) -> HarmonicFit:
+        """Best harmonic series through ``fit_modes`` ((m, n) pairs).
+
+        By default the modes with one nodal circle and 1 to 5 nodal diameters, the
+        family a kettledrum's air loading brings near a harmonic series; where fewer
+        than two of them were solved, all modes are used.
+        """
+        if fit_modes is None:
+            fit_modes = [(m, 1) for m in range(1, 6)]
+        chosen = [self.find(m, n) for m, n in fit_modes if self._has(m, n)]
+        if len(chosen) < 2:
+            chosen = [mode for mode in self.modes if mode.head != "resonant"]
+        f0, h, rms = harmonic_fit([mode.frequency for mode in chosen])
+        return HarmonicFit(fundamental=f0,
+                           harmonics={(mo.m, mo.n): int(k) for mo, k in zip(chosen, h)},
+                           rms_cents=rms, fitted=tuple((mo.m, mo.n) for mo in chosen))
+
+    def _has(self, m: int, n: int) -> bool:
+        return any(mode.m == m and mode.n == n for mode in self.modes)
+
+    def table(self, reference: tuple[int, int] = (0, 1), fit_modes=None) -> list[dict]:
+        """One row per mode: frequency, decay, ratio, harmonic deviation, nearest note.
+
+        Returns
+        -------
+        list of dict
+            Keys ``m, n, frequency_hz, decay_s, ratio, multiplicity, harmonic,
+            cents_from_harmonic, note, cents_from_note`` and, where they apply,
+            ``branch`` and ``head``.
+        """
+        ratios = self.ratios(reference)
+        fit = self.harmonic_fit(fit_modes)
+        rows = []
+        for mode, ratio in zip(self.modes, ratios):
+            harmonic = max(1, round(mode.frequency / fit.fundamental))
+            note, off = note_name(mode.frequency)
+            row = {
+                "m": mode.m, "n": mode.n,
+                "frequency_hz": mode.frequency,
+                "decay_s": mode.decay,
+                "ratio": float(ratio),
+                "multiplicity": mode.multiplicity,
+                "harmonic": harmonic,
+                "cents_from_harmonic": cents(mode.frequency, harmonic * fit.fundamental),
+                "note": note,
+                "cents_from_note": off,
+            }
+            if mode.branch is not None:
+                row["branch"] = mode.branch
+            if mode.head is not None:
+                row["head"] = mode.head
+            rows.append(row)
+        return rows
+
+
+def sort_modes(modes) -> tuple:
+    """Modes sorted by frequency; ties keep (m, n) order so the sort is stable."""
+    return tuple(sorted(modes, key=lambda mo: (mo.frequency, mo.m, mo.n, mo.branch or "", mo.head or "")))
+

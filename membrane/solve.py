@@ -1,0 +1,99 @@
+"""One entry point from a drum to its modes, under a named physics model."""
+
+from __future__ import annotations
+
+import numpy as np
+
+from .drum import Drum, Head
+from .errors import InputError
+from .modes import PHYSICS, Mode, ModeSet, sort_modes
+from .physics.vacuum import RadialBasis, ideal_basis, stiff_basis
+
+M_MAX_LIMIT = 50  # beyond this the table is unreadable and the high modes meaningless
+N_MAX_LIMIT = 50
+
+NOTE_VACUUM = "in vacuum: no air loading, no body; decay times are not modelled"
+NOTE_STIFF_NONE = "the head has no Young's modulus or thickness, so no bending stiffness: stiff = ideal"
+
+
+def head_basis(head: Head, *, m: int, count: int, stiff: bool) -> RadialBasis:
+    """In-vacuum basis of order m for one head (stiff if asked and the head has stiffness)."""
+    if stiff and head.bending_stiffness > 0:
+        return stiff_basis(m=m, count=count, radius=head.radius, tension=head.tension,
+                           areal_density=head.areal_density,
+                           bending_stiffness=head.bending_stiffness,
+                           poisson_ratio=head.poisson_ratio, edge=head.edge)
+    return ideal_basis(m=m, count=count, radius=head.radius, tension=head.tension,
+                       areal_density=head.areal_density)
+
+
+def _check_orders(m_max, n_max) -> None:
+    for key, value, hi, low in (("m_max", m_max, M_MAX_LIMIT, 0), ("n_max", n_max, N_MAX_LIMIT, 1)):
+        if isinstance(value, bool) or not isinstance(value, int) or not low <= value <= hi:
+            raise InputError(key, value, f"must be a whole number from {low} to {hi}")
+
+
+def vacuum_modes(drum: Drum, *, m_max: int, n_max: int, stiff: bool) -> list[Mode]:
+    """Modes of the drum's head(s) in vacuum, uncoupled (ideal or stiff)."""
+    heads = [("struck", drum.head)]
+    if drum.resonant_head is not None:
+        heads.append(("resonant", drum.resonant_head))
+    modes = []
+    for label, head in heads:
+        for m in range(m_max + 1):
+            basis = head_basis(head, m=m, count=n_max, stiff=stiff)
+            for i in range(n_max):
+                modes.append(Mode(
+                    m=m, n=i + 1, frequency=float(basis.frequency[i]), decay=None,
+                    multiplicity=1 if m == 0 else 2, omega=complex(basis.omega[i]),
+                    coefficients=_unit(n_max, i), basis=basis,
+                    head=label if drum.resonant_head is not None else None,
+                ))
+    return modes
+
+
+def _unit(size: int, i: int):
+    v = np.zeros(size)
+    v[i] = 1.0
+    v.setflags(write=False)
+    return v
+
+
+def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3) -> ModeSet:
+    """Solve a drum's modes.
+
+    Parameters
+    ----------
+    drum : Drum
+        The drum.
+    physics : {"ideal", "stiff", "full"}
+        ``ideal``: tension only, in vacuum. ``stiff``: adds the film's bending
+        stiffness (exact clamped or hinged roots), in vacuum. ``full``: the stiff head
+        with air on its faces (radiation loading and damping) and the air in the
+        body, solved for complex frequencies.
+    m_max : int
+        Highest number of nodal diameters, 0..50.
+    n_max : int
+        Highest number of nodal circles (counting the rim), 1..50.
+
+    Returns
+    -------
+    ModeSet
+        Modes sorted by frequency.
+    """
+    if physics not in PHYSICS:
+        raise InputError("physics", physics, f"must be one of: {', '.join(PHYSICS)}")
+    _check_orders(m_max, n_max)
+    notes = []
+    if physics in ("ideal", "stiff"):
+        stiff = physics == "stiff"
+        if stiff and drum.head.bending_stiffness == 0:
+            notes.append(NOTE_STIFF_NONE)
+        notes.append(NOTE_VACUUM)
+        modes = vacuum_modes(drum, m_max=m_max, n_max=n_max, stiff=stiff)
+    else:
+        from .physics.coupled import full_modes, model_notes
+
+        modes = full_modes(drum, m_max=m_max, n_max=n_max)
+        notes.extend(model_notes(drum))
+    return ModeSet(modes=sort_modes(modes), physics=physics, drum=drum, notes=tuple(notes))
