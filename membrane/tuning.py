@@ -1,0 +1,420 @@
+"""Tuning: the tension that puts chosen modes on target pitches, lug equalisation, safety.
+
+With air loading and a body, a mode's frequency is not proportional to sqrt(T) (the
+air's added mass and the kettle's air spring do not scale with tension), so the
+tension is found by root-finding on the model in use; the sqrt(T) scaling only
+supplies the first guess. Several targets are met in the least-squares sense in
+cents, optionally freeing the head's areal density or the kettle's volume.
+
+Everything here takes and returns SI floats (N/m, Hz, kg/m^2, m^3, Pa).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, replace
+
+import numpy as np
+from scipy import optimize
+
+from .bessel import jn_zeros
+from .drum import Drum, Head
+from .errors import InputError, SolverError
+from .modes import ModeSet
+from .solve import M_MAX_LIMIT, N_MAX_LIMIT, solve
+
+# A suggestion above this fraction of the film's yield stress gets a caution: a
+# safety factor of 2 on yield, as for static loads on ductile materials.
+SAFE_STRESS_FRACTION = 0.5  # common practice, no source
+# Targets count as met together when every residual is within this many cents.
+TOGETHER_CENTS = 1.0
+# The root is polished until the mode is within this many cents of its target.
+TOLERANCE_CENTS = 1e-3
+TENSION_CEILING = 1e5  # N/m: the top of the drum-file range (membrane.drum)
+TURN_STEP = 1 / 8  # lug changes are rounded to eighths of a turn  # common practice, no source
+
+LUG_RULE = ("rule of thumb: the pitch tapped near a lug is taken as proportional to the square "
+            "root of the local tension, so relative tension = (tap pitch / rms tap pitch)^2")
+CAUTIONS = (
+    "An over-tensioned film can tear suddenly and violently: raise tension in small steps "
+    "and keep your face out of the plane of the head while tightening.",
+    "Loud drums damage hearing: wear hearing protection when playing and testing at close range.",
+    "These tensions come from a model: follow the head maker's rating and local practice, "
+    "and never exceed a maker's limit on the strength of a computed number.",
+)
+
+FREE = ("areal-density", "volume")
+
+
+def slack_tension(head: Head) -> float:
+    r"""Tension below which bending stiffness, not tension, sets the (1,1) frequency (N/m).
+
+    In the stiff-membrane equation (DESIGN.md 3.2) a mode of wavenumber k is held by
+    :math:`T k^2` from tension and :math:`D k^4` from bending; they are equal for the
+    (1,1) mode at :math:`T = D (j_{11}/a)^2`. Below it a tension change barely moves
+    the pitch and the head is slack for tuning purposes. A head without bending
+    stiffness (no modulus or thickness given) has no such limit here (returns 0).
+    """
+    k11 = float(jn_zeros(1, 1)[0]) / head.radius
+    return head.bending_stiffness * k11 * k11
+
+
+def stress(head: Head, tension: float) -> float | None:
+    """Film stress T / (plies h) in Pa at a tension in N/m, or None without a thickness."""
+    return None if head.thickness is None else tension / (head.plies * head.thickness)
+
+
+def safety_warnings(head: Head, tension: float) -> list[str]:
+    """Cautions for a suggested tension (N/m) on this head: stress and slackness."""
+    warnings = []
+    s = stress(head, tension)
+    if s is None or head.yield_stress is None:
+        warnings.append("no stress check: the drum gives no film thickness or yield stress; "
+                        "follow the head maker's rating")
+    elif s > head.yield_stress:
+        warnings.append(f"{tension:.0f} N/m puts the film at {s / 1e6:.1f} MPa, above its yield stress "
+                        f"({head.yield_stress / 1e6:.0f} MPa): it will stretch permanently and may tear")
+    elif s > SAFE_STRESS_FRACTION * head.yield_stress:
+        warnings.append(f"{tension:.0f} N/m puts the film at {s / 1e6:.1f} MPa, "
+                        f"{100 * s / head.yield_stress:.0f} % of its yield stress, above the "
+                        f"{100 * SAFE_STRESS_FRACTION:.0f} % taken here as a safe limit")
+    slack = slack_tension(head)
+    if tension < slack:
+        warnings.append(f"{tension:.3g} N/m is below the slack limit {slack:.3g} N/m, where bending "
+                        "stiffness sets the (1,1) frequency as much as tension does")
+    return warnings
+
+
+def _tension_ceiling(head: Head) -> float:
+    """Highest tension the search may try: the film's breaking point, or the file range."""
+    if head.thickness is not None and head.tensile_strength is not None:
+        return min(TENSION_CEILING, head.tensile_strength * head.plies * head.thickness)
+    return TENSION_CEILING
+
+
+def _cents(f, ref):
+    return 1200.0 * np.log2(np.asarray(f, dtype=float) / np.asarray(ref, dtype=float))
+
+
+# ------------------------------------------------------------------ the model as a function
+class _Model:
+    """Mode frequencies of a drum variant, solved once per parameter set (cached)."""
+
+    def __init__(self, drum: Drum, modes, physics: str, n_max: int):
+        for m, n in modes:
+            if not (0 <= m <= M_MAX_LIMIT and 1 <= n <= N_MAX_LIMIT):
+                raise InputError("mode", f"{m},{n}", f"not a mode the solver has: m must be 0..{M_MAX_LIMIT}"
+                                 f" and n 1..{N_MAX_LIMIT}")
+        self.drum, self.modes, self.physics = drum, list(modes), physics
+        self.m_max = max(m for m, _ in self.modes)
+        self.n_max = max(n_max, max(n for _, n in self.modes))
+        self.cache: dict = {}
+        self.solves = 0
+
+    def variant(self, tension: float, free: str | None = None, value: float | None = None) -> Drum:
+        drum = self.drum.with_tension(tension)
+        if free == "areal-density":
+            drum = replace(drum, head=replace(drum.head, areal_density=value))
+        elif free == "volume":
+            drum = replace(drum, body=replace(drum.body, volume=value))
+        return drum
+
+    def frequencies(self, tension: float, free: str | None = None, value: float | None = None) -> np.ndarray:
+        key = (float(tension), free, value)
+        if key not in self.cache:
+            result = solve(self.variant(tension, free, value), self.physics,
+                           m_max=self.m_max, n_max=self.n_max)
+            self.solves += 1
+            self.cache[key] = np.array([result.find(m, n).frequency for m, n in self.modes])
+        return self.cache[key]
+
+
+# ------------------------------------------------------------------ results
+@dataclass(frozen=True)
+class Target:
+    """One mode's target and how close the suggestion gets (Hz, cents)."""
+
+    m: int
+    n: int
+    target_hz: float
+    current_hz: float
+    predicted_hz: float
+
+    @property
+    def residual_cents(self) -> float:
+        """Predicted minus target, in cents."""
+        return float(_cents(self.predicted_hz, self.target_hz))
+
+
+@dataclass(frozen=True)
+class Tuning:
+    """A suggested tension (and free parameter) with what it does.
+
+    Attributes
+    ----------
+    current_tension, tension : float
+        The drum's tension and the suggestion, N/m.
+    naive_tension : float
+        What sqrt(T) scaling of the first target would suggest, N/m (for comparison).
+    targets : tuple of Target
+        Each target with its predicted frequency at the suggestion.
+    modes : ModeSet
+        All modes solved at the suggestion (the new ratio table).
+    free, current_value, value : str, float or None
+        The freed parameter ("areal-density" kg/m^2 or "volume" m^3), before and after.
+    together : bool
+        Whether every target is met within :data:`TOGETHER_CENTS`.
+    warnings : tuple of str
+        Cautions about the suggestion.
+    solves : int
+        Model solves the search took.
+    """
+
+    current_tension: float
+    tension: float
+    naive_tension: float
+    targets: tuple
+    modes: ModeSet
+    free: str | None
+    current_value: float | None
+    value: float | None
+    together: bool
+    warnings: tuple
+    solves: int
+
+    @property
+    def change_percent(self) -> float:
+        """Tension change in % of the current tension."""
+        return 100.0 * (self.tension / self.current_tension - 1.0)
+
+    @property
+    def stress(self) -> float | None:
+        """Film stress at the suggestion, Pa (None without a thickness)."""
+        return stress(self.modes.drum.head, self.tension)
+
+    @property
+    def rms_cents(self) -> float:
+        """Root-mean-square residual over the targets, cents."""
+        return float(np.sqrt(np.mean([t.residual_cents ** 2 for t in self.targets])))
+
+
+# ------------------------------------------------------------------ single target: a root
+def _root_log_tension(g, *, x0: float, g0: float, lo: float, hi: float) -> tuple[float, float, float]:
+    """Bracket and solve g(x) = 0 in x = ln T, starting from (x0, g0) and sqrt(T) scaling.
+
+    g is ln(f / f*), increasing in x with slope about 1/2 (less with stiffness or a
+    kettle's air spring, a little more with air mass). Returns the root and the bracket
+    ends' values of g for the caller's error messages when there is no root.
+    """
+    x1 = min(max(x0 - 2.0 * g0, lo), hi)  # sqrt(T) scaling: the first guess only
+    a, ga, b, gb = x0, g0, x1, g(x1)
+    while ga * gb > 0:
+        if b in (lo, hi):
+            return math.nan, ga, gb
+        slope = (gb - ga) / (b - a) if b != a else 0.5
+        slope = min(max(slope, 0.05), 1.0)  # keep the extrapolation sane
+        step = -gb / slope * 1.5
+        a, ga = b, gb
+        b = min(max(b + step, lo), hi)
+        gb = g(b)
+    if gb == 0:
+        return b, ga, gb
+    if ga == 0:
+        return a, ga, gb
+    tol = TOLERANCE_CENTS / 1200 * math.log(2) / 4  # in ln T (slope about 1/2)
+    x = optimize.brentq(g, min(a, b), max(a, b), xtol=tol, rtol=4 * np.finfo(float).eps)
+    return x, ga, gb
+
+
+def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None = None,
+                n_max: int = 3, m_max: int = 6) -> Tuning:
+    """The tension (and optionally one more parameter) that puts modes on target pitches.
+
+    Parameters
+    ----------
+    drum : Drum
+        The drum as it is now (its head tension is the current tension).
+    targets : sequence of ((int, int), float)
+        Modes (m, n) and their target frequencies in Hz.
+    physics : {"ideal", "stiff", "full"}
+        Model, as in :func:`membrane.solve`.
+    free : {None, "areal-density", "volume"}
+        A second parameter to fit with several targets: the head's areal density
+        (kg/m^2) or the kettle's volume (m^3).
+    n_max, m_max : int
+        Orders of the mode table reported at the suggestion (the search solves only
+        the orders the targets need).
+
+    Returns
+    -------
+    Tuning
+
+    Notes
+    -----
+    One target: a root of ln(f_mn(T) / f*) in ln T by Brent's method, bracketed from
+    the sqrt(T) guess, to within 0.001 cent. Several: least squares in cents over
+    ln T (and the free parameter's log) with scipy's trust-region solver.
+    """
+    targets = [((int(m), int(n)), float(hz)) for (m, n), hz in targets]
+    if not targets:
+        raise InputError("target", None, "give at least one target pitch")
+    for (m, n), hz in targets:
+        if not (math.isfinite(hz) and hz > 0):
+            raise InputError("target", hz, "a target must be a positive frequency in Hz")
+    if len({mode for mode, _ in targets}) < len(targets):
+        raise InputError("target", [f"{m},{n}" for (m, n), _ in targets], "each mode may have one target only")
+    if free is not None:
+        _check_free(drum, free, physics, len(targets))
+    modes = [mode for mode, _ in targets]
+    wanted = np.array([hz for _, hz in targets])
+    model = _Model(drum, modes, physics, n_max)
+    t_now = drum.head.tension
+    f_now = model.frequencies(t_now)
+    naive = t_now * float(np.exp(2.0 * np.mean(np.log(wanted / f_now))))
+    lo = math.log(max(slack_tension(drum.head), 1e-6 * t_now))
+    hi = math.log(_tension_ceiling(drum.head))
+    current_value = value = None
+
+    if len(targets) == 1 and free is None:
+        (m, n), hz = targets[0]
+        g = lambda x: float(np.log(model.frequencies(math.exp(x))[0] / hz))  # noqa: E731
+        x, g_lo_end, g_hi_end = _root_log_tension(g, x0=math.log(t_now), g0=float(np.log(f_now[0] / hz)),
+                                                  lo=lo, hi=hi)
+        if math.isnan(x):
+            _no_root(drum, (m, n), hz, model, lo, hi)
+        tension = math.exp(x)
+    else:
+        x0 = [math.log(min(max(naive, math.exp(lo)), math.exp(hi)))]
+        bounds = ([lo], [hi])
+        if free is not None:
+            current_value = drum.head.areal_density if free == "areal-density" else drum.body.volume
+            x0.append(math.log(current_value))
+            # within a factor of 10 either way, and the drum-file range (10 kg/m^2, 10 m^3)
+            bounds = ([lo, math.log(current_value / 10)], [hi, math.log(min(current_value * 10, 10.0))])
+
+        def residuals(p):
+            v = math.exp(p[1]) if free else None
+            return _cents(model.frequencies(math.exp(p[0]), free, v), wanted)
+
+        fit = optimize.least_squares(residuals, x0, bounds=bounds, x_scale=0.1, diff_step=1e-6,
+                                     xtol=1e-12, ftol=1e-12, gtol=1e-12)
+        if not np.all(np.isfinite(fit.fun)):
+            raise SolverError(f"the least-squares fit did not converge ({fit.message})")
+        tension = math.exp(fit.x[0])
+        value = math.exp(fit.x[1]) if free else None
+
+    final = solve(model.variant(tension, free, value), physics,
+                  m_max=max(m_max, model.m_max), n_max=model.n_max)
+    found = [Target(m=m, n=n, target_hz=hz, current_hz=float(f0),
+                    predicted_hz=final.find(m, n).frequency)
+             for ((m, n), hz), f0 in zip(targets, f_now)]
+    together = all(abs(t.residual_cents) <= TOGETHER_CENTS for t in found)
+    if len(found) == 1 and free is None and not together:
+        raise SolverError(f"the tension search ended {found[0].residual_cents:+.2f} cents from the target "
+                          f"for mode ({m},{n}); the mode may change character near this tension")
+    warnings = safety_warnings(final.drum.head, tension)
+    return Tuning(current_tension=t_now, tension=tension, naive_tension=naive, targets=tuple(found),
+                  modes=final, free=free, current_value=current_value, value=value,
+                  together=together, warnings=tuple(warnings), solves=model.solves + 1)
+
+
+def _check_free(drum: Drum, free: str, physics: str, count: int) -> None:
+    if free not in FREE:
+        raise InputError("free", free, f"must be one of: {', '.join(FREE)}")
+    if count < 2:
+        raise InputError("free", free, "a second free parameter needs at least two targets")
+    if free == "volume" and drum.body.kind != "kettle":
+        raise InputError("free", free, f"only a kettle has a volume (this drum's body is {drum.body.kind!r})")
+    if free == "volume" and physics != "full":
+        raise InputError("free", free, "the volume acts through the air in the body: use physics full")
+    if free == "areal-density" and physics == "ideal":
+        raise InputError("free", free, "with ideal physics the mass scales every mode alike and cannot "
+                         "change their ratios: use physics stiff or full")
+
+
+def _no_root(drum: Drum, mode, hz: float, model: _Model, lo: float, hi: float):
+    """Raise the error that says why no tension reaches the target."""
+    m, n = mode
+    f_lo = float(model.frequencies(math.exp(lo))[0])
+    if hz < f_lo:
+        raise InputError("target", f"{hz:.4g} Hz",
+                         f"below the slack limit: at {math.exp(lo):.3g} N/m, where bending stiffness sets "
+                         f"the (1,1) frequency as much as tension, mode ({m},{n}) is already at {f_lo:.4g} Hz; "
+                         f"choose a higher target")
+    f_hi = float(model.frequencies(math.exp(hi))[0])
+    why = "the film's tensile strength" if math.exp(hi) < TENSION_CEILING else "the largest tension accepted"
+    raise InputError("target", f"{hz:.4g} Hz",
+                     f"unreachable: even at {math.exp(hi):.0f} N/m ({why}) mode ({m},{n}) reaches only "
+                     f"{f_hi:.4g} Hz; choose a lower target")
+
+
+# ------------------------------------------------------------------ lugs
+@dataclass(frozen=True)
+class LugChange:
+    """What one lug needs. Tension and turns are positive for tightening."""
+
+    lug: int
+    tap_hz: float
+    relative_tension: float
+    change_cents: float
+    tension_change_percent: float
+    turns: float | None
+
+
+def equalise_lugs(pitches, *, tension_ratio: float = 1.0, cents_per_turn: float | None = None,
+                  key: str = "lugs.pitches") -> tuple[float, tuple[LugChange, ...]]:
+    """Per-lug changes that bring every lug to one tap pitch (rule of thumb, see LUG_RULE).
+
+    Parameters
+    ----------
+    pitches : sequence of float
+        Tap pitch near each lug in Hz, at least 3.
+    tension_ratio : float
+        New mean tension over the current one (1: just even the head out).
+    cents_per_turn : float or None
+        Measured pitch change for one full turn of a lug, in cents; gives turns,
+        rounded to :data:`TURN_STEP`.
+
+    Returns
+    -------
+    (float, tuple of LugChange)
+        The target tap pitch in Hz and each lug's change.
+
+    Notes
+    -----
+    With tap pitch proportional to sqrt(local tension), the rms tap pitch stands for
+    the head's mean tension, and the target tap pitch is it times sqrt(tension_ratio).
+    """
+    f = np.asarray(pitches, dtype=float)
+    if f.size < 3:
+        raise InputError(key, list(pitches), "give the tap pitch at each of at least 3 lugs")
+    if not np.all(np.isfinite(f)) or np.any(f <= 0):
+        raise InputError(key, list(pitches), "tap pitches must be positive frequencies")
+    if cents_per_turn is not None and not (math.isfinite(cents_per_turn) and cents_per_turn > 0):
+        raise InputError("cents_per_turn", cents_per_turn, "must be a positive number of cents per turn")
+    rms = float(np.sqrt(np.mean(f * f)))
+    target = rms * math.sqrt(tension_ratio)
+    lugs = []
+    for i, tap in enumerate(f):
+        change = float(_cents(target, tap))
+        turns = None
+        if cents_per_turn is not None:
+            turns = round(change / cents_per_turn / TURN_STEP) * TURN_STEP + 0.0
+        lugs.append(LugChange(lug=i + 1, tap_hz=float(tap), relative_tension=float((tap / rms) ** 2),
+                              change_cents=change, tension_change_percent=float(100.0 * ((target / tap) ** 2 - 1)),
+                              turns=turns))
+    return target, tuple(lugs)
+
+
+def turns_text(turns: float) -> str:
+    """Eighths of a turn in words a person can act on: ``+1 3/8``, ``-1/4``, ``0``."""
+    eighths = round(turns * 8)
+    if eighths == 0:
+        return "0"
+    sign = "+" if eighths > 0 else "-"
+    whole, rest = divmod(abs(eighths), 8)
+    frac = ""
+    if rest:
+        g = math.gcd(rest, 8)
+        frac = f"{rest // g}/{8 // g}"
+    return sign + " ".join(p for p in (str(whole) if whole else "", frac) if p)
