@@ -1,0 +1,196 @@
+"""``membrane strike``: which partials a strike excites, as heard off the axis; a WAV preview."""
+
+from __future__ import annotations
+
+import math
+import re
+from pathlib import Path
+from typing import Annotated, List, Optional
+
+import typer
+
+from .. import strike as model
+from ..solve import solve
+from ..units import to_si
+from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
+                     Radius, Tension, Thickness, Volume, drum_from, emit, fail, num, parse_mode,
+                     write_atomic)
+
+COLUMNS = [
+    ("mode", "mode", str),
+    ("frequency_hz", "f (Hz)", num(2)),
+    ("decay_s", "T60 (s)", num(2)),
+    ("level_db", "level (dB)", lambda v: "silent" if v <= model.SILENT_DB else f"{v:.1f}"),
+    ("shape_at_strike", "shape at strike", num(3)),
+]
+MODE_TOKEN = re.compile(r"^\(?\d+,\d+\)?$")
+RATE_RANGE = (8000, 192000)
+MAX_SECONDS = 60.0
+
+NOTE_MODEL = ("model: point blow with a half-sine force pulse; far field of the struck head set in a "
+              "rigid baffle (approximate for a kettle or shell); the degenerate partner of each "
+              "(m>=1) mode has a nodal line through the strike point and is silent")
+NOTE_LEVELS = "levels in dB relative to the loudest partial at the start of the sound"
+NOTE_HEARING = ("caution: the preview peaks at -1 dBFS; start playback quietly. Loud drums damage "
+                "hearing: follow local practice on hearing protection")
+
+
+def _parse_best_for(values: list[str] | None, extra: list[str]) -> list[tuple[int, int]]:
+    """Modes from ``--best-for 1,1 2,1`` (spaces), repeated flags or one quoted list."""
+    tokens = [t for v in (values or []) for t in re.split(r"[\s;]+", v.strip()) if t]
+    if extra and not values:
+        fail("argument", " ".join(extra), "unexpected; strike takes one DRUM_FILE")
+    for t in extra:
+        if not MODE_TOKEN.match(t):
+            fail("argument", t, "unexpected; after --best-for give modes as M,N, e.g. 1,1 2,1")
+    return [parse_mode(t, key="--best-for") for t in tokens + list(extra)]
+
+
+def strike(
+    ctx: typer.Context,
+    drum_file: DrumFile = None,
+    at: Annotated[float, typer.Option(
+        help="Strike radius as a fraction of the radius from the centre (0 centre, 1 rim); "
+             "default 0.75, about a quarter in from the rim, the trade's usual point.")
+    ] = model.DEFAULT_AT,
+    angle: Annotated[float, typer.Option(help="Strike angle on the head, degrees.")] = 0.0,
+    mallet: Annotated[str, typer.Option(
+        help="Mallet: soft (3 ms contact), medium (1.5 ms), hard (0.75 ms); rule of thumb.")
+    ] = model.DEFAULT_MALLET,
+    contact_time: Annotated[Optional[str], typer.Option(
+        help="Mallet contact time, e.g. '2 ms' (overrides --mallet).")] = None,
+    listener_angle: Annotated[float, typer.Option(
+        help="Listener's angle from the head's axis, degrees (0 on the axis hears only m = 0).")
+    ] = 45.0,
+    listener_distance: Annotated[str, typer.Option(help="Listener's distance, e.g. '1.5 m'.")] = "1.5 m",
+    listener_azimuth: Annotated[Optional[float], typer.Option(
+        help="Listener's azimuth, degrees, on the strike angle's scale; default the strike's.")] = None,
+    best_for: Annotated[Optional[List[str]], typer.Option(
+        help="Find the strike radius favouring these modes, e.g. --best-for 1,1 2,1 3,1 4,1.")] = None,
+    out: Annotated[Optional[str], typer.Option(help="Write a sound preview to this WAV file.")] = None,
+    rate: Annotated[int, typer.Option(help="Sample rate of the WAV, Hz.")] = 44100,
+    seconds: Annotated[float, typer.Option(help="Length of the WAV, s.")] = 4.0,
+    wav_format: Annotated[str, typer.Option(help="WAV samples: int16 or float32.")] = "int16",
+    assume_t60: Annotated[Optional[str], typer.Option(
+        help="T60 for every partial when the physics models no decay (ideal, stiff), e.g. '2 s'.")
+    ] = None,
+    force: Annotated[bool, typer.Option(help="Overwrite an existing --out file.")] = False,
+    diameter: Diameter = None,
+    radius: Radius = None,
+    tension: Tension = None,
+    areal_density: ArealDensity = None,
+    film: Film = None,
+    thickness: Thickness = None,
+    body: Body = None,
+    volume: Volume = None,
+    depth: Depth = None,
+    physics: Annotated[Physics, typer.Option(
+        help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
+    ] = Physics.full,
+    m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters (0-50).")] = 6,
+    n_max: Annotated[int, typer.Option(help="Highest number of nodal circles, counting the rim (1-50).")] = 3,
+    format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
+) -> None:
+    """Strike the head: each partial's level at a listener, strike-point advice, a WAV preview."""
+    chosen = _parse_best_for(best_for, list(ctx.args))
+    if not 0.0 <= at <= 1.0:
+        fail("--at", at, "must be from 0 (centre) to 1 (rim), a fraction of the radius")
+    if contact_time is not None:
+        t_c = to_si(contact_time, "time", key="--contact-time")
+        if not 0.0 < t_c <= 0.1:
+            fail("--contact-time", contact_time, "must be a positive time up to 100 ms, e.g. '2 ms'")
+    elif mallet.strip().lower() in model.MALLETS:
+        t_c = model.contact_time(mallet.strip().lower())
+    else:
+        fail("--mallet", mallet, f"must be one of: {', '.join(model.MALLETS)}, or give --contact-time")
+    if not 0.0 <= listener_angle <= 90.0:
+        fail("--listener-angle", listener_angle, "must be from 0 (on the axis) to 90 degrees")
+    distance = to_si(listener_distance, "length", key="--listener-distance")
+    if not distance > 0:
+        fail("--listener-distance", listener_distance, "must be a positive distance")
+    t60 = None
+    if assume_t60 is not None:
+        t60 = to_si(assume_t60, "time", key="--assume-t60")
+        if not t60 > 0:
+            fail("--assume-t60", assume_t60, "must be a positive time, e.g. '2 s'")
+    if out is not None:
+        if wav_format not in ("int16", "float32"):
+            fail("--wav-format", wav_format, "must be int16 or float32")
+        if not RATE_RANGE[0] <= rate <= RATE_RANGE[1]:
+            fail("--rate", rate, f"must be from {RATE_RANGE[0]} to {RATE_RANGE[1]} Hz")
+        if not 0.05 <= seconds <= MAX_SECONDS:
+            fail("--seconds", seconds, f"must be from 0.05 to {MAX_SECONDS:g} s")
+        if Path(out).exists() and not force:  # refuse before the solve, not after
+            fail("--out", out, "exists already; add --force to overwrite it")
+    drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
+                     areal_density=areal_density, film=film, thickness=thickness, body=body,
+                     volume=volume, depth=depth)
+    result = solve(drum, physics.value, m_max=m_max, n_max=n_max)
+    if out is not None and t60 is None and any(mo.decay is None for mo in result
+                                               if mo.head != "resonant"):
+        fail("--physics", physics.value, "models no decay, so a sound preview cannot be made: use "
+             "--physics full, or give --assume-t60 (e.g. '2 s') to assume one T60 for every partial")
+    listener = model.Listener(angle=math.radians(listener_angle), distance=distance,
+                              azimuth=None if listener_azimuth is None else math.radians(listener_azimuth))
+    theta0 = math.radians(angle)
+    advice = None
+    if chosen:
+        advice = model.best_strike_radius(result, modes=chosen, contact_time=t_c,
+                                          listener=listener, angle=theta0)
+        partials, at = advice.partials, advice.at
+    else:
+        partials = model.strike_partials(result, strike=model.Strike(at=at, contact_time=t_c, angle=theta0),
+                                         listener=listener)
+    notes = list(result.notes) + [NOTE_MODEL, NOTE_LEVELS]
+    if t60 is not None and out is not None:
+        notes.append(f"decay not modelled by '{physics.value}' physics: every partial given T60 = {t60:g} s")
+    wav = None
+    if out is not None:
+        samples = model.synthesize(partials, rate=rate, seconds=seconds, contact_time=t_c,
+                                   assume_t60=t60)
+        write_atomic(out, lambda p: model.save_wav(p, samples, rate=rate, sample_format=wav_format),
+                     force=force)
+        dropped = [p.mode.label for p in partials if p.frequency >= rate / 2]
+        if dropped:
+            notes.append("left out of the WAV (above the Nyquist frequency): " + ", ".join(dropped))
+        notes.append(NOTE_HEARING)
+        wav = {"path": str(out), "rate_hz": rate, "seconds": seconds, "format": wav_format}
+    rows = []
+    for p in partials:
+        mo = p.mode
+        row = {"m": mo.m, "n": mo.n, "frequency_hz": p.frequency, "decay_s": p.decay,
+               "level_db": p.level_db, "pressure_pa_per_n_s": abs(p.pressure),
+               "shape_at_strike": p.shape_at_strike}
+        if mo.branch is not None:
+            row["branch"] = mo.branch
+        if mo.head is not None:
+            row["head"] = mo.head
+        rows.append(row)
+    mallet_name = None if contact_time is not None else mallet.strip().lower()
+    payload = {
+        "drum": drum.name, "physics": physics.value,
+        "strike": {"at": at, "angle_deg": angle, "contact_time_s": t_c, "mallet": mallet_name},
+        "listener": {"angle_deg": listener_angle, "distance_m": distance,
+                     "azimuth_deg": angle if listener_azimuth is None else listener_azimuth},
+        "partials": rows, "notes": notes,
+    }
+    if advice is not None:
+        payload["best_for"] = {"modes": [{"m": m, "n": n} for m, n in advice.chosen],
+                               "at": advice.at, "contrast_db": advice.contrast_db,
+                               "search_range": list(model.SEARCH_RANGE)}
+    if wav is not None:
+        payload["wav"] = wav
+    for row in rows:
+        row["mode"] = f"({row['m']},{row['n']})" + (f" {row['branch']}" if "branch" in row else "") + \
+            (" resonant" if row.get("head") == "resonant" else "")
+    how = f"{mallet_name} mallet" if mallet_name else f"contact time {t_c * 1e3:.2f} ms"
+    title = (f"{drum.name}: {physics.value} physics; strike at r/a = {at:.3f}, {how}; listener "
+             f"{listener_angle:g} deg off the axis at {distance:g} m")
+    if advice is not None:
+        title += (f"; best for {' '.join(f'({m},{n})' for m, n in advice.chosen)}: r/a = {advice.at:.3f}, "
+                  f"contrast {advice.contrast_db:+.1f} dB")
+    columns = COLUMNS if format is not Format.csv else \
+        [("m", "m", str), ("n", "n", str)] + [c for c in COLUMNS if c[0] != "mode"] + \
+        [("pressure_pa_per_n_s", "pressure_pa_per_n_s", str), ("branch", "branch", str),
+         ("head", "head", str)]
+    emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=notes)

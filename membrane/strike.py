@@ -1,0 +1,433 @@
+r"""Strike and sound: which partials a mallet blow excites, what a listener hears, a preview.
+
+Model (time dependence :math:`e^{i\omega t}`, SI units throughout)
+--------------------------------------------------------------------
+*The blow.* A point force :math:`F(t)` at radius :math:`r_0`, angle :math:`\theta_0` on the
+struck head: a half-sine pulse of contact time :math:`t_c` and impulse :math:`J`,
+:math:`F(t) = (\pi J / 2 t_c) \sin(\pi t / t_c)` for :math:`0 < t < t_c`. Its spectrum
+:math:`\hat F(\omega) = \int F e^{-i\omega t} dt` is, with :math:`x = \omega t_c`,
+
+.. math:: \hat F / J = \pi^2 e^{-ix/2} \cos(x/2) / (\pi^2 - x^2),
+
+flat (= 1) at low frequency, falling to zero at :math:`f t_c = 1.5` and in side lobes above:
+a shorter contact (harder mallet) reaches higher partials.
+
+*The modal amplitude.* Mode j of order m has the shape :math:`\psi_j = \phi_j(r)\cos
+m(\theta-\theta_0)`, :math:`\phi_j = \sum_n c_{jn}\phi_n` over the in-vacuum basis. Of a
+degenerate pair only the member :math:`\cos m(\theta-\theta_0)` is excited (the other has a
+nodal diameter through the strike point). The coupled problem is
+:math:`Z(\omega) c = [K - \omega^2 (M + A(\omega))] c = 0` with :math:`K_{nn} = \omega_n^2
+M_n` (:attr:`RadialBasis.modal_mass` :math:`M_n`) and A the air (and body) loading. Its modal
+expansion near the complex root :math:`\tilde\omega_j`, taking A at :math:`\tilde\omega_j`
+(neglecting :math:`dA/d\omega`, an approximation), has the effective modal mass
+
+.. math:: \mathcal M_j = c^T (M + A) c = c^T K c / \tilde\omega_j^2
+
+(the unconjugated product: the loaded problem is complex symmetric), so only the basis and
+the frequency are needed, and in vacuum it is the plain modal mass. Closing the inverse
+Fourier integral around the pole gives, after the pulse, the modal coordinate
+
+.. math:: q_j(t) = \mathrm{Im}[Q_j e^{i\tilde\omega_j t}],\qquad
+          Q_j = \phi_j(r_0) \hat F(\tilde\omega_j) / (\tilde\omega_j \mathcal M_j)
+              = \tilde\omega_j \phi_j(r_0) \hat F(\tilde\omega_j) / (c^T K c),
+
+which for an undamped oscillator is the familiar :math:`\phi(r_0)|\hat F|/(M\omega)`.
+The amplitude is independent of how the coefficients are scaled.
+
+*Radiation.* The struck head's outer face radiates into a half space as if set in a rigid
+baffle (the Rayleigh integral; an approximation for a kettle, whose bowl baffles the head
+only partly, and a shell's resonant head, whose sound goes the other way, is left out).
+A listener at polar angle :math:`\vartheta` from the axis, azimuth :math:`\varphi`, distance
+R in the far field hears, by the Jacobi-Anger expansion of :math:`e^{ikr\sin\vartheta
+\cos(\theta-\varphi)}`,
+
+.. math:: p_j(t) = \mathrm{Im}[B_j e^{i\tilde\omega_j (t - R/c)}],\quad
+          B_j = -\rho\,\tilde\omega_j^2\, i^m \cos m(\varphi-\theta_0)\,
+                \Phi_j(\tilde k \sin\vartheta)\, Q_j / R,
+
+with :math:`\Phi_j(\kappa) = \sum_n c_{jn}\Phi_n(\kappa)` the Hankel transform of
+:attr:`RadialBasis.transform`, :math:`\tilde k = \tilde\omega_j / c`. On the axis
+:math:`\Phi_j(0) = 0` for m >= 1: only the (0, n) modes reach a listener there.
+
+The table level of a partial is :math:`20\log_{10}|B_j|` relative to the loudest partial;
+:math:`|B_j|` itself is the peak pressure in Pa at the start of the partial per N s of
+mallet impulse. The absolute blow strength is unknown, so only differences are meaningful.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.optimize
+
+from .errors import InputError
+from .modes import Mode, ModeSet
+
+LN1000 = 3.0 * math.log(10.0)  # an amplitude falls 60 dB when (decay rate) * t = 3 ln 10
+
+# The trade's usual strike point, about a quarter of the way in from the rim.
+DEFAULT_AT = 0.75  # common practice, no source
+# Mallet contact times in s.
+MALLETS = {"soft": 3.0e-3, "medium": 1.5e-3, "hard": 0.75e-3}  # common practice, no source
+DEFAULT_MALLET = "medium"
+# Where a player's ear or a microphone typically is: off the axis, in the far field.
+DEFAULT_LISTENER_ANGLE = math.radians(45.0)  # common practice, no source
+DEFAULT_LISTENER_DISTANCE = 1.5  # m, common practice, no source
+SILENT_DB = -200.0  # levels are floored here: "silent to numerical precision"
+SEARCH_RANGE = (0.05, 0.95)  # strike radii the search considers (a mallet has a size)
+PEAK_DBFS = -1.0  # a written preview peaks here
+
+
+@dataclass(frozen=True)
+class Strike:
+    """Where and with what the head is struck.
+
+    Attributes
+    ----------
+    at : float
+        Strike radius as a fraction of the head's radius, from the centre (0..1).
+    contact_time : float
+        Mallet contact time t_c in s (> 0).
+    angle : float
+        Strike angle theta0 on the head in rad.
+    """
+
+    at: float = DEFAULT_AT
+    contact_time: float = MALLETS[DEFAULT_MALLET]
+    angle: float = 0.0
+
+    def __post_init__(self):
+        if not (isinstance(self.at, (int, float)) and 0.0 <= self.at <= 1.0):
+            raise InputError("strike radius", self.at,
+                             "must be a fraction of the radius from 0 (centre) to 1 (rim)")
+        if not (isinstance(self.contact_time, (int, float)) and
+                0.0 < self.contact_time < math.inf):
+            raise InputError("contact time", self.contact_time, "must be a positive time in s")
+        if not math.isfinite(self.angle):
+            raise InputError("strike angle", self.angle, "must be a finite angle")
+
+
+@dataclass(frozen=True)
+class Listener:
+    """A far-field listening point.
+
+    Attributes
+    ----------
+    angle : float
+        Polar angle from the head's axis in rad (0 on the axis, up to pi/2 in the head's plane).
+    distance : float
+        Distance from the head's centre in m.
+    azimuth : float or None
+        Azimuth in rad on the same angle scale as the strike; None: the strike's azimuth
+        (the listener in the plane through the axis and the strike point).
+    """
+
+    angle: float = DEFAULT_LISTENER_ANGLE
+    distance: float = DEFAULT_LISTENER_DISTANCE
+    azimuth: float | None = None
+
+    def __post_init__(self):
+        if not (0.0 <= self.angle <= math.pi / 2):
+            raise InputError("listener angle", self.angle,
+                             "must be from 0 (on the axis) to 90 degrees (in the head's plane)")
+        if not (0.0 < self.distance < math.inf):
+            raise InputError("listener distance", self.distance, "must be a positive distance in m")
+
+
+@dataclass(frozen=True)
+class Partial:
+    """One mode as heard at the listener.
+
+    Attributes
+    ----------
+    mode : Mode
+        The mode.
+    frequency : float
+        Hz.
+    decay : float or None
+        T60 in s (None in vacuum).
+    pressure : complex
+        B_j: complex pressure amplitude in Pa per N s of impulse (module docstring).
+    shape_at_strike : float
+        The mode's radial shape at the strike radius, peak 1 on the head.
+    level_db : float
+        20 log10 |B_j| relative to the loudest partial (floored at SILENT_DB).
+    """
+
+    mode: Mode
+    frequency: float
+    decay: float | None
+    pressure: complex
+    shape_at_strike: float
+    level_db: float
+
+
+@dataclass(frozen=True)
+class StrikeAdvice:
+    """The strike radius that favours chosen modes.
+
+    Attributes
+    ----------
+    at : float
+        Best strike radius as a fraction of the head's radius.
+    contrast_db : float
+        The objective there: 10 log10 (sum over chosen |B|^2 / sum over the others |B|^2).
+    partials : tuple of Partial
+        The partials heard with a strike there.
+    chosen : tuple of (int, int)
+        The modes favoured.
+    """
+
+    at: float
+    contrast_db: float
+    partials: tuple
+    chosen: tuple
+
+
+def contact_time(mallet: str) -> float:
+    """Contact time in s of a mallet preset (soft, medium, hard)."""
+    if mallet not in MALLETS:
+        raise InputError("mallet", mallet, f"must be one of: {', '.join(MALLETS)}")
+    return MALLETS[mallet]
+
+
+def pulse_spectrum(omega, *, contact_time: float):
+    r"""Spectrum of a half-sine force pulse per unit impulse, :math:`\hat F(\omega)/J`.
+
+    Parameters
+    ----------
+    omega : array_like
+        Angular frequency in rad/s (complex allowed: the spectrum is entire).
+    contact_time : float
+        t_c in s.
+
+    Returns
+    -------
+    numpy.ndarray or complex
+        Dimensionless; 1 at omega = 0.
+    """
+    x = np.asarray(omega) * contact_time
+    # cos(x/2)/(pi^2 - x^2) = sinc(u)/(2 (pi + x)) with u = (pi - x)/2: no 0/0 at x = pi
+    u = (np.pi - x) / 2
+    return np.pi ** 2 * np.exp(-0.5j * x) * np.sinc(u / np.pi) / (2 * (np.pi + x))
+
+
+def _complex_omega(mode: Mode, fallback_t60: float | None = None) -> complex:
+    """2 pi f + i * (amplitude decay rate), from the mode's frequency and T60."""
+    t60 = mode.decay if mode.decay is not None else fallback_t60
+    rate = LN1000 / t60 if t60 else 0.0
+    return complex(2 * math.pi * mode.frequency, rate)
+
+
+def _coefficients(mode: Mode) -> np.ndarray:
+    return np.asarray(mode.coefficients, dtype=complex)
+
+
+def _stiffness_form(mode: Mode) -> complex:
+    """c^T K c over the struck (and, for a shell, the resonant) head's basis."""
+    total = 0j
+    for coef, basis in ((mode.coefficients, mode.basis),
+                        (mode.resonant_coefficients, mode.resonant_basis)):
+        if coef is not None and basis is not None:
+            c = np.asarray(coef, dtype=complex)
+            total += np.sum(c * c * basis.omega ** 2 * basis.modal_mass)
+    return total
+
+
+def _gain(mode: Mode, strike: Strike, listener: Listener, air) -> complex:
+    """B_j divided by phi_j(r0): everything but the strike radius (module docstring)."""
+    if mode.head == "resonant":  # an uncoupled resonant head is not struck
+        return 0j
+    w = _complex_omega(mode)
+    if w.real <= 0:
+        return 0j
+    c = _coefficients(mode)
+    k = w / air.sound_speed
+    phi_far = complex(c @ mode.basis.transform(np.array([k * math.sin(listener.angle)]))[:, 0])
+    azimuth = strike.angle if listener.azimuth is None else listener.azimuth
+    q_per_shape = w * complex(pulse_spectrum(w, contact_time=strike.contact_time)) / \
+        _stiffness_form(mode)
+    return (-air.density * w * w * (1j ** mode.m) * math.cos(mode.m * (azimuth - strike.angle))
+            * phi_far * q_per_shape / listener.distance)
+
+
+def _shape(mode: Mode, at) -> np.ndarray:
+    """phi_j at strike radii ``at`` (fractions of the radius), complex, unnormalised."""
+    r = np.atleast_1d(np.asarray(at, dtype=float)) * mode.basis.radius
+    return _coefficients(mode) @ mode.basis.shape(r)
+
+
+def _levels(pressures) -> np.ndarray:
+    mag = np.abs(np.asarray(pressures))
+    top = mag.max() if mag.size else 0.0
+    if top == 0:
+        return np.full(mag.shape, SILENT_DB)
+    with np.errstate(divide="ignore"):
+        return np.maximum(20 * np.log10(mag / top), SILENT_DB)
+
+
+def strike_partials(modeset: ModeSet, *, strike: Strike = Strike(),
+                    listener: Listener = Listener()) -> tuple[Partial, ...]:
+    """Every solved mode as heard at the listener after a strike.
+
+    Parameters
+    ----------
+    modeset : ModeSet
+        Solved modes (any physics; decay times come from ``full``).
+    strike : Strike
+        Strike radius, angle and mallet contact time.
+    listener : Listener
+        Listening point.
+
+    Returns
+    -------
+    tuple of Partial
+        In the ModeSet's order (by frequency).
+    """
+    air = modeset.drum.air
+    pressures = [_gain(mode, strike, listener, air) * complex(_shape(mode, strike.at)[0])
+                 for mode in modeset]
+    levels = _levels(pressures)
+    out = []
+    for mode, p, lev in zip(modeset, pressures, levels):
+        shape = 0.0 if mode.head == "resonant" else \
+            float(mode.radial_shape(np.array([strike.at * mode.basis.radius]))[0])
+        out.append(Partial(mode=mode, frequency=mode.frequency, decay=mode.decay, pressure=p,
+                           shape_at_strike=shape, level_db=float(lev)))
+    return tuple(out)
+
+
+def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS[DEFAULT_MALLET],
+                       listener: Listener = Listener(), angle: float = 0.0,
+                       search: tuple[float, float] = SEARCH_RANGE) -> StrikeAdvice:
+    r"""Strike-point advice: the radius that favours the chosen modes over the rest.
+
+    The objective is the contrast
+
+    .. math:: C(r_0) = 10 \log_{10} \frac{\sum_{j \in S} |B_j(r_0)|^2}
+                                         {\sum_{j \notin S} |B_j(r_0)|^2}
+
+    over the solved modes, S the chosen ones: the share of the chosen partials in the
+    summed squared pressure at the listener at the start of the sound (the levels of the
+    table; decay times do not enter). It is maximised over ``search`` (fractions of the
+    radius) on a grid of 181 points, then refined by a bounded scalar search.
+
+    Parameters
+    ----------
+    modeset : ModeSet
+        Solved modes.
+    modes : iterable of (int, int)
+        The (m, n) to favour, e.g. [(1, 1), (2, 1), (3, 1), (4, 1)].
+    contact_time : float
+        Mallet contact time in s.
+    listener : Listener
+        Listening point.
+    angle : float
+        Strike angle in rad (matters only with a listener azimuth of its own).
+    search : (float, float)
+        Range of strike radii searched, fractions of the radius.
+
+    Returns
+    -------
+    StrikeAdvice
+        Radius, contrast in dB, and the partials heard with a strike there.
+    """
+    chosen = tuple(dict.fromkeys((int(m), int(n)) for m, n in modes))
+    if not chosen:
+        raise InputError("best-for", "", "name at least one mode M,N to favour")
+    picked = {id(modeset.find(m, n)) for m, n in chosen}  # find() names a missing mode
+    mask = np.array([id(mode) in picked for mode in modeset])
+    if mask.all():
+        raise InputError("best-for", " ".join(f"{m},{n}" for m, n in chosen),
+                         "leave some solved modes out: the search weighs the chosen against the rest")
+    probe = Strike(at=DEFAULT_AT, contact_time=contact_time, angle=angle)
+    air = modeset.drum.air
+    gains = np.array([_gain(mode, probe, listener, air) for mode in modeset])
+
+    def contrast(at) -> np.ndarray:
+        power = np.abs(np.array([g * _shape(mode, at) if g != 0 else np.zeros(np.size(at))
+                                 for g, mode in zip(gains, modeset)])) ** 2
+        with np.errstate(divide="ignore"):
+            return 10 * np.log10(power[mask].sum(axis=0)) - 10 * np.log10(power[~mask].sum(axis=0))
+
+    lo, hi = search
+    grid = np.linspace(lo, hi, 181)
+    values = contrast(grid)
+    i = int(np.argmax(values))
+    a, b = grid[max(i - 1, 0)], grid[min(i + 1, len(grid) - 1)]
+    res = scipy.optimize.minimize_scalar(lambda x: -float(contrast(x)[0]), bounds=(a, b),
+                                         method="bounded", options={"xatol": 1e-5})
+    at, best = (float(res.x), -float(res.fun)) if -res.fun >= values[i] else \
+        (float(grid[i]), float(values[i]))
+    partials = strike_partials(modeset, strike=Strike(at=at, contact_time=contact_time, angle=angle),
+                               listener=listener)
+    return StrikeAdvice(at=at, contrast_db=best, partials=partials, chosen=chosen)
+
+
+def synthesize(partials, *, rate: int, seconds: float, contact_time: float,
+               assume_t60: float | None = None) -> np.ndarray:
+    """The decaying partials as a sound at the listener, peak-normalised to -1 dBFS.
+
+    Each partial is ``Im[B exp(i w t)]`` with ``w = 2 pi f + i 3 ln 10 / T60``, t from the
+    sound's arrival. A raised-cosine onset over the contact time stands in for the blow's
+    rise (the formula holds after the pulse), a 10 ms fade ends the sound without a click.
+    Partials at or above the Nyquist frequency are left out (they would alias).
+
+    Parameters
+    ----------
+    partials : iterable of Partial
+        From :func:`strike_partials`.
+    rate : int
+        Sample rate in Hz.
+    seconds : float
+        Length in s.
+    contact_time : float
+        Mallet contact time in s (the onset ramp).
+    assume_t60 : float or None
+        T60 in s for partials without a modelled decay (vacuum physics); without it such
+        partials are refused.
+
+    Returns
+    -------
+    numpy.ndarray
+        float64 samples in [-1, 1].
+    """
+    n = int(round(rate * seconds))
+    t = np.arange(n) / rate
+    out = np.zeros(n)
+    for part in partials:
+        if part.pressure == 0 or part.frequency >= rate / 2:
+            continue
+        if part.decay is None and assume_t60 is None:
+            raise InputError("physics", "vacuum", "a sound preview needs decay times: use "
+                             "--physics full, or give --assume-t60 S for every partial")
+        w = _complex_omega(part.mode, assume_t60)
+        out += np.imag(part.pressure * np.exp(1j * w.real * t)) * np.exp(-w.imag * t)
+    ramp = t < contact_time
+    out[ramp] *= 0.5 * (1 - np.cos(np.pi * t[ramp] / contact_time))
+    fade = t > seconds - 0.01
+    out[fade] *= 0.5 * (1 + np.cos(np.pi * (t[fade] - (seconds - 0.01)) / 0.01))
+    peak = np.max(np.abs(out)) if n else 0.0
+    if peak == 0:
+        raise InputError("strike", "silent", "no partial reaches the listener from this strike "
+                         "(a strike on the rim, or every partial above the Nyquist frequency)")
+    return out * (10 ** (PEAK_DBFS / 20) / peak)
+
+
+def save_wav(path, samples: np.ndarray, *, rate: int, sample_format: str = "int16") -> None:
+    """Write samples in [-1, 1] to a mono WAV file: 16-bit PCM or 32-bit float.
+
+    Writes ``path`` directly; callers wanting all-or-nothing writing pass a temporary path
+    (see membrane.cli.common.write_atomic).
+    """
+    import scipy.io.wavfile
+
+    if sample_format == "int16":
+        data = np.round(np.clip(samples, -1, 1) * 32767).astype(np.int16)
+    elif sample_format == "float32":
+        data = np.asarray(samples, dtype=np.float32)
+    else:
+        raise InputError("wav format", sample_format, "must be int16 or float32")
+    scipy.io.wavfile.write(str(path), int(rate), data)
