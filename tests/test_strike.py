@@ -1,0 +1,340 @@
+"""Strike and sound: modal excitation, far-field radiation, strike-point advice, the WAV preview."""
+
+import dataclasses
+import json
+import math
+import subprocess
+
+import numpy as np
+import pytest
+import scipy.integrate
+import scipy.io.wavfile
+import scipy.signal
+import scipy.special
+from typer.testing import CliRunner
+
+from membrane.cli import app
+from membrane.drum import load_drum
+from membrane.modes import ModeSet
+from membrane.solve import solve
+from membrane.strike import (MALLETS, Listener, Strike, best_strike_radius, pulse_spectrum,
+                             save_wav, strike_partials, synthesize)
+
+
+
+def _have_full() -> bool:
+    try:
+        from membrane.physics.coupled import full_modes  # noqa: F401
+    except ImportError:
+        return False
+    return True
+
+
+HAVE_FULL = _have_full()
+needs_full = pytest.mark.skipif(not HAVE_FULL, reason="full physics "
+                                "(membrane.physics.coupled.full_modes) has not landed yet")
+
+runner = CliRunner()
+KETTLE = load_drum("kettledrum")
+
+
+@pytest.fixture(scope="module")
+def stiff():
+    return solve(KETTLE, "stiff", m_max=6, n_max=3)
+
+
+@pytest.fixture(scope="module")
+def ideal():
+    return solve(KETTLE, "ideal", m_max=6, n_max=3)
+
+
+def levels(partials):
+    return {(p.mode.m, p.mode.n): p.level_db for p in partials}
+
+
+# ----------------------------------------------------------------------------- the blow
+@pytest.mark.parametrize("x", [0.3, 2.0, math.pi, 5.0, 3 * math.pi, 12.0])
+def test_half_sine_spectrum_matches_quadrature(x):
+    # reference: the Fourier integral of the pulse by scipy quadrature (impulse 1 N s)
+    tc = 1e-3
+    w = x / tc
+    force = lambda t: math.pi / (2 * tc) * math.sin(math.pi * t / tc)  # noqa: E731
+    re = scipy.integrate.quad(lambda t: force(t) * math.cos(w * t), 0, tc, epsabs=1e-13)[0]
+    im = scipy.integrate.quad(lambda t: -force(t) * math.sin(w * t), 0, tc, epsabs=1e-13)[0]
+    assert complex(pulse_spectrum(w, contact_time=tc)) == pytest.approx(complex(re, im), abs=1e-9)
+
+
+# ----------------------------------------------------------------------------- where it is struck
+def test_centre_strike_excites_only_axisymmetric_modes(stiff):
+    lev = levels(strike_partials(stiff, strike=Strike(at=0.0)))
+    for (m, n), value in lev.items():
+        if m >= 1:
+            assert value < -120
+    assert max(lev[(0, 1)], lev[(0, 2)]) > -10
+
+
+def test_strike_on_the_nodal_circle_of_0_2_leaves_it_silent(ideal):
+    # exact node r/a = j01/j02 from scipy's Bessel zeros (A&S Table 9.5)
+    j0 = scipy.special.jn_zeros(0, 2)
+    lev = levels(strike_partials(ideal, strike=Strike(at=j0[0] / j0[1])))
+    assert lev[(0, 2)] < -120
+    assert lev[(0, 1)] > -20 and lev[(0, 3)] > -40
+    # SOURCES.md: (0,2) nodal circle at r/a = 0.4357 (4 digits: about 70 dB down, not silent)
+    lev = levels(strike_partials(ideal, strike=Strike(at=0.4357)))
+    assert lev[(0, 2)] < -60 and lev[(0, 1)] > -20
+
+
+def test_listener_on_the_axis_hears_no_modes_with_nodal_diameters(stiff):
+    lev = levels(strike_partials(stiff, listener=Listener(angle=0.0)))
+    assert all(v < -120 for (m, n), v in lev.items() if m >= 1)
+    assert lev[(0, 1)] > -20
+
+
+def test_listener_on_a_nodal_line_of_the_struck_pair_member(stiff):
+    # the (2,1) member cos 2(theta - theta0) has nodal diameters at theta0 +- 45 degrees
+    lev = levels(strike_partials(stiff, strike=Strike(angle=0.3),
+                                 listener=Listener(azimuth=0.3 + math.pi / 4)))
+    assert lev[(2, 1)] < -120 and lev[(1, 1)] > -40 and lev[(0, 1)] > -40
+
+
+def test_far_field_matches_a_direct_rayleigh_integral(ideal):
+    """B_j against the Rayleigh integral (Kinsler & Frey, Fundamentals of Acoustics: baffled
+    source, p = i omega rho / (2 pi) * integral of v e^{-ikR'}/R' dS), evaluated by quadrature
+    over the head at a distant point, with the modal mass and the pulse spectrum also by
+    quadrature and the undamped oscillator's response Q = phi(r0) F(omega) / (M omega)."""
+    drum = ideal.drum
+    a, sigma, rho, c = drum.head.radius, drum.head.areal_density, drum.air.density, drum.air.sound_speed
+    strike, far = Strike(at=0.6, angle=0.5, contact_time=1.2e-3), 400.0
+    listener = Listener(angle=math.radians(50), distance=far, azimuth=0.9)
+    got = {(p.mode.m, p.mode.n): p for p in strike_partials(ideal, strike=strike, listener=listener)}
+    xg, wg = np.polynomial.legendre.leggauss(80)
+    r = 0.5 * a * (xg + 1)
+    wr = 0.5 * a * wg
+    th = np.linspace(0, 2 * np.pi, 256, endpoint=False)
+    R, TH = np.meshgrid(r, th, indexing="ij")
+    dS = np.outer(wr * r, np.full(th.size, 2 * np.pi / th.size))
+    for m, n in [(0, 1), (1, 1), (2, 1), (0, 2), (3, 2)]:
+        alpha = scipy.special.jn_zeros(m, n)[-1] / a
+        w = alpha * math.sqrt(drum.head.tension / sigma)
+        k = w / c
+        psi = scipy.special.jv(m, alpha * R) * np.cos(m * (TH - strike.angle))
+        mass = sigma * np.sum(psi ** 2 * dS)
+        tc = strike.contact_time
+        force = lambda t: math.pi / (2 * tc) * math.sin(math.pi * t / tc)  # noqa: E731
+        f_hat = complex(scipy.integrate.quad(lambda t: force(t) * math.cos(w * t), 0, tc)[0],
+                        scipy.integrate.quad(lambda t: -force(t) * math.sin(w * t), 0, tc)[0])
+        q = scipy.special.jv(m, alpha * strike.at * a) * f_hat / (mass * w)
+        pol, az = listener.angle, listener.azimuth
+        point = far * np.array([math.sin(pol) * math.cos(az), math.sin(pol) * math.sin(az), math.cos(pol)])
+        dist = np.sqrt((point[0] - R * np.cos(TH)) ** 2 + (point[1] - R * np.sin(TH)) ** 2 + point[2] ** 2)
+        p = 1j * w * rho / (2 * np.pi) * np.sum(1j * w * q * psi * np.exp(-1j * k * dist) / dist * dS)
+        expected = p * np.exp(1j * k * far)  # the library's B_j leaves out the delay e^{-ikR}
+        assert got[(m, n)].pressure == pytest.approx(expected, rel=2e-3)
+
+
+# ----------------------------------------------------------------------------- with what
+def test_harder_mallets_raise_high_partials_monotonically(stiff):
+    partials = {name: strike_partials(stiff, strike=Strike(contact_time=tc)) for name, tc in MALLETS.items()}
+    order = ["soft", "medium", "hard"]
+    assert [MALLETS[k] for k in order] == sorted(MALLETS.values(), reverse=True)
+    lev = {k: levels(partials[k]) for k in order}
+    freq = {(p.mode.m, p.mode.n): p.frequency for p in partials["soft"]}
+    # within the soft mallet's main spectral lobe (f t_c < 1.5) every higher partial gains
+    # on every lower one, from soft to medium to hard
+    lobe = [k for k in freq if freq[k] * MALLETS["soft"] < 1.5 and lev["soft"][k] > -100]
+    pairs = [(lo, hi) for lo in lobe for hi in lobe if freq[hi] > freq[lo] + 1]
+    assert len(pairs) >= 10
+    for lo, hi in pairs:
+        d = [lev[k][hi] - lev[k][lo] for k in order]
+        assert d[0] < d[1] < d[2], (lo, hi, d)
+    # and the power-weighted mean frequency of all partials rises
+    centroid = []
+    for k in order:
+        pw = np.array([abs(p.pressure) ** 2 for p in partials[k]])
+        centroid.append(np.sum(pw * np.array([p.frequency for p in partials[k]])) / np.sum(pw))
+    assert centroid[0] < centroid[1] < centroid[2]
+
+
+def test_bad_strike_values_are_refused():
+    for bad in (dict(at=-0.1), dict(at=1.2), dict(contact_time=-1e-3), dict(contact_time=0.0)):
+        with pytest.raises(ValueError):
+            Strike(**bad)
+
+
+# ----------------------------------------------------------------------------- strike-point advice
+def test_best_strike_radius_is_the_maximum_of_its_objective(stiff):
+    chosen = [(1, 1), (2, 1), (3, 1), (4, 1)]
+    advice = best_strike_radius(stiff, modes=chosen)
+    # brute force over a fine grid, computing the objective from the level table directly
+    best = -np.inf
+    for at in np.linspace(0.05, 0.95, 721):
+        pw = {(p.mode.m, p.mode.n): abs(p.pressure) ** 2 for p in strike_partials(stiff, strike=Strike(at=at))}
+        num = sum(v for k, v in pw.items() if k in chosen)
+        den = sum(v for k, v in pw.items() if k not in chosen)
+        best = max(best, 10 * math.log10(num / den))
+    assert advice.contrast_db >= best - 1e-6
+    assert advice.contrast_db < best + 0.01
+    assert 0.05 <= advice.at <= 0.95
+
+
+@needs_full
+def test_best_strike_radius_of_the_kettledrum_for_the_m1_modes():
+    # the trade strikes a kettledrum about a quarter of the way in from the rim (r/a ~ 0.75)
+    # to favour the (m,1) modes  # common practice, no source
+    full = solve(KETTLE, "full", m_max=6, n_max=3)
+    advice = best_strike_radius(full, modes=[(1, 1), (2, 1), (3, 1), (4, 1)])
+    assert 0.6 <= advice.at <= 0.9, advice
+
+
+# ----------------------------------------------------------------------------- the preview
+def with_decays(modeset):
+    """Vacuum modes given T60s from 0.6 s to 2.5 s (a stand-in for full physics)."""
+    t60 = np.linspace(2.5, 0.6, len(modeset))
+    modes = tuple(dataclasses.replace(mo, decay=float(t)) for mo, t in zip(modeset, t60))
+    return ModeSet(modes=modes, physics=modeset.physics, drum=modeset.drum, notes=modeset.notes)
+
+
+def measured_partials(path, predicted):
+    """Frequency by zero-padded Hann FFT peak with parabolic interpolation; decay by complex
+    demodulation, zero-phase low-pass and a straight-line fit of the log envelope (scipy)."""
+    rate, data = scipy.io.wavfile.read(path)
+    x = data.astype(float) / (32768.0 if data.dtype == np.int16 else 1.0)
+    t = np.arange(x.size) / rate
+    nfft = 16 * x.size
+    spec = np.abs(np.fft.rfft(x * np.hanning(x.size), nfft))
+    df = rate / nfft
+    out = []
+    for f0, _ in predicted:
+        i = int(round(f0 / df))
+        i = i - 50 + int(np.argmax(spec[i - 50:i + 51]))
+        a, b, c = np.log(spec[i - 1:i + 2])
+        f_est = (i + 0.5 * (a - c) / (a - 2 * b + c)) * df
+        z = x * np.exp(-2j * np.pi * f_est * t)
+        sos = scipy.signal.butter(4, 5.0, fs=rate, output="sos")
+        env = np.abs(scipy.signal.sosfiltfilt(sos, z.real) + 1j * scipy.signal.sosfiltfilt(sos, z.imag))
+        db = 20 * np.log10(env / env.max())
+        use = (t > 0.25) & (t < t[-1] - 0.25) & (db > db[int(0.25 * rate)] - 40)
+        slope = np.polyfit(t[use], np.log(env[use]), 1)[0]
+        out.append((f_est, 3 * math.log(10) / -slope))
+    return out
+
+
+def checkable(partials, spacing=25.0):
+    """Loud partials with no comparably loud partial within ``spacing`` Hz."""
+    keep = []
+    for p in partials:
+        if p.level_db < -20:
+            continue
+        near = [q for q in partials if q is not p and abs(q.frequency - p.frequency) < spacing
+                and q.level_db > p.level_db - 30]
+        if not near:
+            keep.append(p)
+    return keep
+
+
+@pytest.mark.parametrize("fmt", ["int16", "float32"])
+def test_wav_has_the_predicted_partials_and_decays(stiff, tmp_path, fmt):
+    partials = strike_partials(with_decays(stiff))
+    rate, seconds = 8000, 4.0
+    samples = synthesize(partials, rate=rate, seconds=seconds, contact_time=MALLETS["medium"])
+    path = tmp_path / f"preview-{fmt}.wav"
+    save_wav(path, samples, rate=rate, sample_format=fmt)
+    got_rate, data = scipy.io.wavfile.read(path)
+    assert got_rate == rate and data.dtype == (np.int16 if fmt == "int16" else np.float32)
+    assert np.max(np.abs(data.astype(float))) / (32767 if fmt == "int16" else 1) == \
+        pytest.approx(10 ** (-1 / 20), rel=1e-3)
+    check = checkable(partials)
+    assert len(check) >= 4
+    for p, (f, t60) in zip(check, measured_partials(path, [(p.frequency, p.decay) for p in check])):
+        assert abs(f - p.frequency) < 0.1, p.mode.label
+        assert t60 == pytest.approx(p.decay, rel=0.10), p.mode.label
+
+
+@needs_full
+def test_wav_from_full_physics_has_the_model_decays(tmp_path):
+    full = solve(KETTLE, "full", m_max=6, n_max=3)
+    partials = strike_partials(full)
+    samples = synthesize(partials, rate=8000, seconds=4.0, contact_time=MALLETS["medium"])
+    path = tmp_path / "full.wav"
+    save_wav(path, samples, rate=8000)
+    check = [p for p in checkable(partials) if 0.5 < p.decay < 20]
+    assert check
+    for p, (f, t60) in zip(check, measured_partials(path, [(p.frequency, p.decay) for p in check])):
+        assert abs(f - p.frequency) < 0.1, p.mode.label
+        assert t60 == pytest.approx(p.decay, rel=0.10), p.mode.label
+
+
+def test_vacuum_preview_needs_an_assumed_decay(stiff):
+    with pytest.raises(ValueError, match="full"):
+        synthesize(strike_partials(stiff), rate=8000, seconds=0.5, contact_time=1e-3)
+    samples = synthesize(strike_partials(stiff), rate=8000, seconds=0.5, contact_time=1e-3, assume_t60=2.0)
+    assert samples.shape == (4000,) and np.isfinite(samples).all()
+
+
+# ----------------------------------------------------------------------------- the command
+def run(*args):
+    return runner.invoke(app, ["strike", *args])
+
+
+STIFF = ["kettledrum", "--physics", "stiff"]
+
+
+def test_cli_json_best_for_and_wav(tmp_path):
+    out = tmp_path / "k.wav"
+    result = run(*STIFF, "--best-for", "1,1", "2,1", "3,1", "4,1", "--out", str(out),
+                 "--assume-t60", "2 s", "--rate", "8000", "--seconds", "1", "--format", "json")
+    assert result.exit_code == 0, result.output
+    data = json.loads(result.stdout)
+    assert data["best_for"]["modes"] == [{"m": m, "n": 1} for m in (1, 2, 3, 4)]
+    assert 0.05 <= data["best_for"]["at"] <= 0.95 and data["strike"]["at"] == data["best_for"]["at"]
+    assert max(row["level_db"] for row in data["partials"]) == 0.0
+    assert data["wav"]["rate_hz"] == 8000 and out.exists()
+    rate, samples = scipy.io.wavfile.read(out)
+    assert rate == 8000 and samples.dtype == np.int16 and samples.size == 8000
+    # again without --force: refused, file untouched
+    before = out.read_bytes()
+    again = run(*STIFF, "--out", str(out), "--assume-t60", "2 s")
+    assert again.exit_code == 2 and "--force" in again.output and out.read_bytes() == before
+    assert run(*STIFF, "--out", str(out), "--assume-t60", "2 s", "--rate", "8000", "--seconds", "0.5",
+               "--force", "--wav-format", "float32", "--format", "csv").exit_code == 0
+    assert scipy.io.wavfile.read(out)[1].dtype == np.float32
+
+
+def test_cli_table_and_quoted_best_for_agree():
+    a = json.loads(run(*STIFF, "--best-for", "1,1 2,1", "--format", "json").stdout)
+    b = json.loads(run(*STIFF, "--best-for", "1,1", "--best-for", "2,1", "--format", "json").stdout)
+    assert a["best_for"] == b["best_for"]
+    table = run(*STIFF, "--mallet", "hard", "--at", "0")
+    assert table.exit_code == 0 and "silent" in table.output and "(0,1)" in table.output
+
+
+@pytest.mark.parametrize("args, word", [
+    (["--at", "1.5"], "--at"),
+    (["--at", "-0.2"], "--at"),
+    (["--contact-time", "-1 ms"], "--contact-time"),
+    (["--mallet", "squishy"], "--mallet"),
+    (["--best-for", "1,1", "x"], "x"),
+    (["--best-for", "9,9"], "9,9"),
+    (["--out", "never.wav"], "--physics"),
+    (["--listener-angle", "120"], "--listener-angle"),
+])
+def test_cli_bad_input_is_one_line_and_exit_2(args, word, tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    result = run(*STIFF, *args)
+    assert result.exit_code == 2, result.output
+    lines = [ln for ln in result.output.splitlines() if ln.strip()]
+    assert len(lines) == 1 and word in lines[0] and "Traceback" not in result.output
+    assert not (tmp_path / "never.wav").exists()
+
+
+def test_real_command_writes_a_wav(tmp_path):
+    out = tmp_path / "preview.wav"
+    proc = subprocess.run(["/work/venv/bin/membrane", "strike", *STIFF, "--out", str(out),
+                           "--assume-t60", "1.5 s", "--rate", "8000", "--seconds", "0.5",
+                           "--format", "json"], capture_output=True, text=True, timeout=120)
+    assert proc.returncode == 0, proc.stderr
+    assert json.loads(proc.stdout)["wav"]["path"] == str(out)
+    assert scipy.io.wavfile.read(out)[1].size == 4000
+    proc = subprocess.run(["/work/venv/bin/membrane", "strike", *STIFF, "--out", str(out),
+                           "--assume-t60", "1.5 s"], capture_output=True, text=True, timeout=120)
+    assert proc.returncode == 2 and len(proc.stderr.strip().splitlines()) == 1
