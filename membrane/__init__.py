@@ -11,14 +11,28 @@ The library works in SI floats. Typical use::
 Nothing here imports matplotlib or pyvista; pictures live in ``membrane.render``.
 """
 
-from .drum import Air, Body, Drum, Head, Lugs, load_drum, parse_drum
-from .errors import InputError, MembraneError, RecordingError, SolverError
-from .modes import HarmonicFit, Mode, ModeSet, harmonic_fit
-from .solve import solve
+from importlib import import_module
 
-__all__ = [
-    "Air", "Body", "Drum", "Head", "Lugs", "load_drum", "parse_drum",
-    "InputError", "MembraneError", "RecordingError", "SolverError",
-    "HarmonicFit", "Mode", "ModeSet", "harmonic_fit", "solve",
-]
+# Names are resolved on first use (PEP 562), so ``import membrane`` and the command
+# line's --help stay fast: scipy loads only when something is computed.
+_WHERE = {
+    "Air": "drum", "Body": "drum", "Drum": "drum", "Head": "drum", "Lugs": "drum",
+    "load_drum": "drum", "parse_drum": "drum",
+    "InputError": "errors", "MembraneError": "errors", "RecordingError": "errors", "SolverError": "errors",
+    "HarmonicFit": "modes", "Mode": "modes", "ModeSet": "modes", "harmonic_fit": "modes",
+    "solve": "solve",
+}
+__all__ = sorted(_WHERE)
 __version__ = "0.1.0"
+
+
+def __getattr__(name):
+    if name in _WHERE:
+        value = getattr(import_module(f".{_WHERE[name]}", __name__), name)
+        globals()[name] = value
+        return value
+    raise AttributeError(f"module 'membrane' has no attribute {name!r}")
+
+
+def __dir__():
+    return sorted(list(globals()) + __all__)

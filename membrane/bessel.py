@@ -4,18 +4,51 @@ Zeros come from scipy and are polished by Newton steps on ``scipy.special.jv``,
 so they agree with mpmath's ``besseljzero`` to about 1e-15 relative. Overlap
 integrals are Lommel's closed forms, valid for complex arguments, which the
 radiation and cavity models need off the real axis.
+
+The zeros are universal constants, so the package ships them for m, n <= 50
+(``data/bessel_zeros.npz``, written by ``python -m membrane.bessel`` with the same
+functions and checked against mpmath by the tests); beyond that they are computed.
 """
 
 from __future__ import annotations
 
 from functools import lru_cache
+from importlib import resources
 
 import numpy as np
 from scipy import special
 
+TABLE_ORDERS = 51  # m = 0..50
+TABLE_ZEROS = 51   # n = 1..51
+
+
+@lru_cache(maxsize=1)
+def _table() -> dict:
+    try:
+        with resources.files("membrane").joinpath("data/bessel_zeros.npz").open("rb") as fh:
+            data = np.load(fh)
+            return {"j": data["j"], "jp": data["jp"]}
+    except (FileNotFoundError, OSError, KeyError):
+        return {}
+
+
+def _lookup(kind: str, m: int, count: int):
+    table = _table()
+    if kind in table and m < table[kind].shape[0] and count <= table[kind].shape[1]:
+        out = table[kind][m, :count]
+        out.setflags(write=False)
+        return out
+    return None
+
 
 @lru_cache(maxsize=256)
 def _jn_zeros_cached(m: int, count: int) -> np.ndarray:
+    found = _lookup("j", m, count)
+    return found if found is not None else compute_jn_zeros(m, count)
+
+
+def compute_jn_zeros(m: int, count: int) -> np.ndarray:
+    """Zeros of J_m computed afresh: scipy's values polished by Newton steps."""
     x = np.array(special.jn_zeros(m, count), dtype=float)
     for _ in range(3):  # Newton polish: J_m(x) / J_m'(x)
         x = x - special.jv(m, x) / special.jvp(m, x)
@@ -48,6 +81,12 @@ def jn_zeros(m: int, count: int) -> np.ndarray:
 
 @lru_cache(maxsize=256)
 def _jnp_zeros_cached(m: int, count: int) -> np.ndarray:
+    found = _lookup("jp", m, count)
+    return found if found is not None else compute_jnp_zeros(m, count)
+
+
+def compute_jnp_zeros(m: int, count: int) -> np.ndarray:
+    """Positive zeros of J_m' computed afresh: scipy's values polished by Newton steps."""
     x = np.array(special.jnp_zeros(m, count), dtype=float)
     for _ in range(3):  # Newton polish on J_m'(x): J_m'' from Bessel's equation
         jp = special.jvp(m, x)
@@ -120,3 +159,18 @@ def lommel(m: int, alpha, beta, a: float):
     if m == 0:
         same = np.where(xa == 0, 0.5 * a * a, same)
     return np.where(near, same, general)
+
+
+def write_table(path) -> None:
+    """Write the shipped table of zeros (m = 0..50, 51 zeros each of J_m and J_m')."""
+    j = np.array([compute_jn_zeros(m, TABLE_ZEROS) for m in range(TABLE_ORDERS)])
+    jp = np.array([compute_jnp_zeros(m, TABLE_ZEROS) for m in range(TABLE_ORDERS)])
+    np.savez_compressed(path, j=j, jp=jp)
+
+
+if __name__ == "__main__":
+    import sys
+
+    target = sys.argv[1] if len(sys.argv) > 1 else str(resources.files("membrane").joinpath("data/bessel_zeros.npz"))
+    write_table(target)
+    print(f"wrote {target}")

@@ -30,7 +30,7 @@ class InputError(MembraneError, ValueError):
         self.key = key
         self.value = value
         self.allowed = allowed
-        super().__init__(f"{key} = {value!r}: {allowed}")
+        super().__init__(f"{key}: {allowed}" if value is None else f"{key} = {value!r}: {allowed}")
 
 
 class SolverError(MembraneError, RuntimeError):

@@ -39,24 +39,21 @@ def vacuum_modes(drum: Drum, *, m_max: int, n_max: int, stiff: bool) -> list[Mod
     if drum.resonant_head is not None:
         heads.append(("resonant", drum.resonant_head))
     modes = []
+    multiplicity = lambda m: 1 if m == 0 else 2  # noqa: E731  (cos and sin partners)
+    unit = np.eye(n_max)
+    unit.setflags(write=False)
     for label, head in heads:
         for m in range(m_max + 1):
             basis = head_basis(head, m=m, count=n_max, stiff=stiff)
+            freqs = (basis.omega / (2 * np.pi)).tolist()
+            omegas = basis.omega.tolist()
             for i in range(n_max):
                 modes.append(Mode(
-                    m=m, n=i + 1, frequency=float(basis.frequency[i]), decay=None,
-                    multiplicity=1 if m == 0 else 2, omega=complex(basis.omega[i]),
-                    coefficients=_unit(n_max, i), basis=basis,
+                    m=m, n=i + 1, frequency=freqs[i], decay=None, multiplicity=multiplicity(m),
+                    omega=complex(omegas[i]), coefficients=unit[i], basis=basis,
                     head=label if drum.resonant_head is not None else None,
                 ))
     return modes
-
-
-def _unit(size: int, i: int):
-    v = np.zeros(size)
-    v[i] = 1.0
-    v.setflags(write=False)
-    return v
 
 
 def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3) -> ModeSet:

@@ -6,7 +6,6 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from ..solve import solve
 from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
                      Radius, Tension, Thickness, Volume, drum_from, emit, num, parse_mode,
                      signed)
@@ -45,6 +44,8 @@ def modes(
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
 ) -> None:
     """Solve a drum's modes: frequencies, decay, ratios, harmonic fit and nearest notes."""
+    from ..solve import solve
+
     drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
                      areal_density=areal_density, film=film, thickness=thickness, body=body,
                      volume=volume, depth=depth)
