@@ -1,0 +1,281 @@
+r"""Air on an open, baffled face: the modal added-mass-and-damping matrix.
+
+For radial shapes :math:`\phi_n(r)\cos m\theta` on a disk of radius a in an infinite rigid
+baffle, the Rayleigh integral becomes, in the wavenumber domain (DESIGN.md 3.3),
+
+.. math::
+
+    A_{nn'}(k) = \rho\,\pi_m \int_0^\infty
+        \frac{\kappa\,\Phi_n(\kappa)\,\Phi_{n'}(\kappa)}{\sqrt{\kappa^2 - k^2}}\,d\kappa,
+    \qquad \Phi_n(\kappa) = \int_0^a \phi_n(r) J_m(\kappa r)\, r\,dr,
+
+in kg, with :math:`\pi_m = 2\pi` for m = 0 and :math:`\pi` otherwise, and the branch
+:math:`1/\sqrt{\kappa^2-k^2} = -i/\sqrt{k^2-\kappa^2}` for :math:`\kappa < k` (time
+dependence :math:`e^{i\omega t}`): Re A is the added mass, -Im A the radiation damping
+(the radiation impedance is :math:`i\omega A`).
+
+The integral is evaluated on a path on which every piece is smooth and analytic in k, so the
+same code gives the analytic continuation to complex k that true resonances need:
+
+1. :math:`\kappa = k\sin\varphi`, :math:`\varphi \in [0, \pi/2]`: removes the square root;
+   contributes :math:`-i\int_0^{\pi/2} k\sin\varphi\,F(k\sin\varphi)\,d\varphi`.
+2. :math:`\kappa = \sqrt{k^2 + u^2}`, u from 0 to :math:`\sqrt{K_0^2 - k^2}`: contributes
+   :math:`\int F(\sqrt{k^2+u^2})\,du` (composite Gauss-Legendre panels).
+3. :math:`\kappa > K_0`, beyond every removable pole of the transforms: each transform is
+   written :math:`\Phi = A(\kappa) J_m(\kappa a) + B(\kappa) J_m'(\kappa a)` with rational A, B,
+   and :math:`J = (H^{(1)} + H^{(2)})/2`. The :math:`H^{(1)}H^{(1)}` part is turned up the
+   imaginary axis and the :math:`H^{(2)}H^{(2)}` part down (both then decay like
+   :math:`e^{-2a|{\rm Im}\,\kappa|}`: Gauss-Laguerre); the mixed part does not oscillate and is
+   integrated in :math:`s = K_0/\kappa` (Gauss-Legendre).
+
+Here :math:`F = \Phi_n\Phi_{n'}`, an even entire function of :math:`\kappa`, so A(k) is an
+entire function of k: :math:`A = X(k^2) - i k Y(k^2)` with X, Y entire. :class:`RadiationTable`
+interpolates X and Y in :math:`t = k^2` by Chebyshev series from real-k quadrature and
+evaluates them anywhere near the real axis, which is what the coupled solver uses.
+
+A *radial space* here is any object with ``m``, ``radius``, ``size``, ``pole_bound`` (largest
+real removable pole of its transforms, 1/m), ``transform(kappa)`` (N, len kappa) and
+``parts(kappa)`` -> (A, B), each (N, len kappa). :class:`Piston` is one;
+``membrane.physics.coupled.RitzSpace`` is the head's.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from functools import lru_cache
+
+import numpy as np
+from numpy.polynomial import chebyshev
+from scipy import special
+
+from ..errors import SolverError
+
+
+@dataclass(frozen=True)
+class Quadrature:
+    """Node counts of the wavenumber quadrature (defaults from tests/test_radiation.py).
+
+    Attributes
+    ----------
+    arc : int
+        Gauss-Legendre nodes on the arc kappa = k sin(phi).
+    panel : int
+        Gauss-Legendre nodes per panel on kappa = sqrt(k^2 + u^2).
+    panel_width : float
+        Panel length in u, in units of 1/a.
+    laguerre : int
+        Gauss-Laguerre nodes on each rotated tail.
+    mixed : int
+        Gauss-Legendre nodes on the non-oscillating tail.
+    margin : float
+        K0 = pole_bound + |k| + margin / a.
+    """
+
+    arc: int = 24
+    panel: int = 12
+    panel_width: float = 3.0
+    laguerre: int = 24
+    mixed: int = 20
+    margin: float = 8.0
+
+    def refined(self, factor: float = 1.5) -> "Quadrature":
+        """The same quadrature with about ``factor`` times the nodes everywhere."""
+        up = lambda n: int(np.ceil(n * factor))  # noqa: E731
+        return Quadrature(up(self.arc), up(self.panel), self.panel_width, up(self.laguerre),
+                          up(self.mixed), self.margin * factor)
+
+
+@lru_cache(maxsize=64)
+def _legendre(n: int) -> tuple[np.ndarray, np.ndarray]:
+    """Gauss-Legendre nodes and weights on [0, 1]."""
+    x, w = np.polynomial.legendre.leggauss(n)
+    return 0.5 * (x + 1.0), 0.5 * w
+
+
+@lru_cache(maxsize=64)
+def _laguerre(n: int) -> tuple[np.ndarray, np.ndarray]:
+    return np.polynomial.laguerre.laggauss(n)
+
+
+def _dhankel(kind: int, m: int, z):
+    """Exponentially scaled H_m^(kind)(z) and its derivative (same scaling)."""
+    h = special.hankel1e if kind == 1 else special.hankel2e
+    return h(m, z), 0.5 * (h(m - 1, z) - h(m + 1, z))
+
+
+def _tail_factor(space, kind: int, kappa):
+    """A H_m(kappa a) + B H_m'(kappa a), exponentially scaled, shape (N, len kappa)."""
+    A, B = space.parts(kappa)
+    h, dh = _dhankel(kind, space.m, kappa * space.radius)
+    return A * h + B * dh
+
+
+def radiation_integral(space, k, *, quadrature: Quadrature = Quadrature()) -> np.ndarray:
+    r"""The integral :math:`I_{nn'}(k) = \int_0^\infty \kappa\Phi_n\Phi_{n'}/\sqrt{\kappa^2-k^2}\,d\kappa`.
+
+    Parameters
+    ----------
+    space : radial space
+        See the module docstring.
+    k : complex
+        Acoustic wavenumber in 1/m; any value near the real axis, Re k >= 0.
+    quadrature : Quadrature
+        Node counts.
+
+    Returns
+    -------
+    numpy.ndarray
+        Complex (N, N) in m^3; A = rho pi_m I.
+    """
+    q = quadrature
+    k = complex(k)
+    a = space.radius
+    k0 = space.pole_bound + abs(k) + q.margin / a
+    xs, ws = _legendre(q.arc)
+    phi = 0.5 * np.pi * xs
+    kap = k * np.sin(phi)
+    f = space.transform(kap)
+    total = -1j * (f * (0.5 * np.pi * ws * kap)) @ f.T
+    # straight path in u from 0 to U0, split into panels of about panel_width / a
+    u0 = np.sqrt(k0 * k0 - k * k)
+    panels = max(1, int(np.ceil(abs(u0) * a / q.panel_width)))
+    xp, wp = _legendre(q.panel)
+    s = (np.arange(panels)[:, None] + xp[None, :]).ravel() / panels
+    wu = np.tile(wp, panels) / panels * u0
+    f = space.transform(np.sqrt(k * k + (u0 * s) ** 2))
+    total = total + (f * wu) @ f.T
+    # tails beyond K0: rotated H1 H1 (up), H2 H2 (down), mixed on the real axis
+    xl, wl = _laguerre(q.laguerre)
+    t = xl / (2 * a)
+    for kind, sign in ((1, 1.0), (2, -1.0)):
+        kap = k0 + sign * 1j * t
+        g = _tail_factor(space, kind, kap)
+        wt = wl * kap / np.sqrt(kap * kap - k * k) * (sign * 1j / (2 * a))
+        total = total + 0.25 * np.exp(sign * 2j * k0 * a) * (g * wt) @ g.T
+    xm, wm = _legendre(q.mixed)
+    kap = k0 / xm
+    g1, g2 = _tail_factor(space, 1, kap), _tail_factor(space, 2, kap)
+    wt = wm * k0 / xm**2 * kap / np.sqrt(kap * kap - k * k)
+    mix = (g1 * wt) @ g2.T
+    total = total + 0.25 * (mix + mix.T)
+    return total
+
+
+def radiation_matrix(space, *, k, density: float,
+                     quadrature: Quadrature = Quadrature()) -> np.ndarray:
+    """Modal added-mass-and-damping matrix of one baffled face, kg.
+
+    Parameters
+    ----------
+    space : radial space
+        The head's radial functions of one angular order (module docstring).
+    k : complex
+        Acoustic wavenumber omega / c in 1/m (complex at a damped resonance).
+    density : float
+        Air density in kg/m^3.
+    quadrature : Quadrature
+        Node counts.
+
+    Returns
+    -------
+    numpy.ndarray
+        Complex (N, N). The pressure on the face is -omega^2 A q in modal terms.
+    """
+    weight = 2 * np.pi if space.m == 0 else np.pi
+    return density * weight * radiation_integral(space, k, quadrature=quadrature)
+
+
+@dataclass(frozen=True)
+class Piston:
+    """A rigid piston of radius a (m = 0): Phi(kappa) = a J_1(kappa a) / kappa.
+
+    The classical check of the quadrature (Kinsler & Frey; Beranek).
+    """
+
+    radius: float
+    m: int = 0
+    size: int = 1
+    pole_bound: float = 0.0
+
+    def transform(self, kappa) -> np.ndarray:
+        kappa = np.atleast_1d(np.asarray(kappa))
+        return (self.radius * special.jv(1, kappa * self.radius) / kappa)[None, :]
+
+    def parts(self, kappa):
+        kappa = np.atleast_1d(np.asarray(kappa))
+        return np.zeros((1, len(kappa))), (-self.radius / kappa)[None, :]  # J_1 = -J_0'
+
+
+class RadiationTable:
+    r"""A(k) / rho for one radial space, as Chebyshev series in :math:`t = k^2`.
+
+    Built from real-k quadrature on :math:`0 < k \le k_{max}`; evaluated at complex k by the
+    analytic continuation of the series (A is entire in k, so the series converges fast in a
+    neighbourhood of the real segment). Degree is raised until the last coefficients are
+    below ``tol`` of the largest.
+
+    Parameters
+    ----------
+    space : radial space
+    k_max : float
+        Largest wavenumber needed, 1/m.
+    quadrature : Quadrature
+    tol : float
+        Relative size of the discarded Chebyshev coefficients.
+    """
+
+    def __init__(self, space, *, k_max: float, quadrature: Quadrature = Quadrature(),
+                 tol: float = 1e-11):
+        self.k_max = float(k_max)
+        self.t_max = self.k_max**2
+        self.weight = 2 * np.pi if space.m == 0 else np.pi
+        degree = 8 + int(np.ceil(1.5 * self.k_max * space.radius))
+        while True:
+            x, y = self._fit(space, degree, quadrature)
+            scale = max(np.abs(x).max(), 1e-300), max(np.abs(y).max(), 1e-300)
+            tail = max(np.abs(x[-3:]).max() / scale[0], np.abs(y[-3:]).max() / scale[1])
+            if tail < tol:
+                break
+            if degree > 400:
+                raise SolverError(f"radiation table did not converge (k_max a = "
+                                  f"{self.k_max * space.radius:.3g}, tail {tail:.2e})")
+            degree = int(degree * 1.5)
+        self.degree = degree
+        self._x, self._y = x, y
+
+    def _fit(self, space, degree, quadrature):
+        nodes = np.cos(np.pi * (np.arange(degree) + 0.5) / degree)  # Chebyshev points
+        t = 0.5 * self.t_max * (nodes + 1.0)
+        k = np.sqrt(t)
+        vals = np.array([radiation_integral(space, kk, quadrature=quadrature) for kk in k])
+        x = vals.real
+        y = -vals.imag / k[:, None, None]
+        cx = chebyshev.chebfit(nodes, x.reshape(degree, -1), degree - 1)
+        cy = chebyshev.chebfit(nodes, y.reshape(degree, -1), degree - 1)
+        n = vals.shape[1]
+        return cx.reshape(degree, n, n), cy.reshape(degree, n, n)
+
+    def __call__(self, k) -> np.ndarray:
+        """A(k) / rho in m^3 for an array of k (1/m): shape (len k, N, N), complex."""
+        k = np.atleast_1d(np.asarray(k, dtype=complex))
+        t = k * k
+        if np.any(np.abs(t) > 1.05 * self.t_max):
+            raise SolverError(f"wavenumber {np.abs(k).max():.4g} 1/m is beyond the radiation "
+                              f"table's range {self.k_max:.4g} 1/m")
+        s = 2.0 * t / self.t_max - 1.0
+        x = np.moveaxis(chebyshev.chebval(s, self._x, tensor=True), -1, 0)
+        y = np.moveaxis(chebyshev.chebval(s, self._y, tensor=True), -1, 0)
+        return self.weight * (x - 1j * k[:, None, None] * y)
+
+    def derivative(self, k) -> np.ndarray:
+        """dA/dk / rho, same shape as the call."""
+        k = np.atleast_1d(np.asarray(k, dtype=complex))
+        t = k * k
+        s = 2.0 * t / self.t_max - 1.0
+        dx = chebyshev.chebder(self._x) * (2.0 / self.t_max)
+        dy = chebyshev.chebder(self._y) * (2.0 / self.t_max)
+        x = np.moveaxis(chebyshev.chebval(s, dx, tensor=True), -1, 0)
+        y = np.moveaxis(chebyshev.chebval(s, self._y, tensor=True), -1, 0)
+        yp = np.moveaxis(chebyshev.chebval(s, dy, tensor=True), -1, 0)
+        kk = k[:, None, None]
+        return self.weight * (2 * kk * x - 1j * (y + 2 * kk * kk * yp))
