@@ -35,15 +35,26 @@ NOTE_HEARING = ("caution: the preview peaks at -1 dBFS; start playback quietly. 
                 "hearing: follow local practice on hearing protection")
 
 
-def _parse_best_for(values: list[str] | None, extra: list[str]) -> list[tuple[int, int]]:
-    """Modes from ``--best-for 1,1 2,1`` (spaces), repeated flags or one quoted list."""
+def _parse_best_for(values: list[str] | None, drum_file: str | None,
+                    extra: list[str]) -> tuple[list[tuple[int, int]], str | None]:
+    """Modes from ``--best-for 1,1 2,1`` (spaces), repeated flags or one quoted list.
+
+    Unquoted modes after ``--best-for`` reach us as extra arguments, and when the drum
+    file comes after them the first of them as DRUM_FILE: sort that out here.
+    """
     tokens = [t for v in (values or []) for t in re.split(r"[\s;]+", v.strip()) if t]
     if extra and not values:
         fail("argument", " ".join(extra), "unexpected; strike takes one DRUM_FILE")
-    for t in extra:
-        if not MODE_TOKEN.match(t):
-            fail("argument", t, "unexpected; after --best-for give modes as M,N, e.g. 1,1 2,1")
-    return [parse_mode(t, key="--best-for") for t in tokens + list(extra)]
+    loose = ([drum_file] if values and drum_file and MODE_TOKEN.match(drum_file) else []) + list(extra)
+    if loose and loose[0] == drum_file:
+        drum_file = None
+    others = [t for t in loose if not MODE_TOKEN.match(t)]
+    if len(others) > 1 or (others and drum_file is not None):
+        fail("argument", others[-1], "unexpected; after --best-for give modes as M,N, e.g. 1,1 2,1")
+    if others:
+        drum_file = others[0]
+    modes = [parse_mode(t, key="--best-for") for t in tokens + [t for t in loose if MODE_TOKEN.match(t)]]
+    return modes, drum_file
 
 
 def strike(
@@ -92,7 +103,7 @@ def strike(
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
 ) -> None:
     """Strike the head: each partial's level at a listener, strike-point advice, a WAV preview."""
-    chosen = _parse_best_for(best_for, list(ctx.args))
+    chosen, drum_file = _parse_best_for(best_for, drum_file, list(ctx.args))
     if not 0.0 <= at <= 1.0:
         fail("--at", at, "must be from 0 (centre) to 1 (rim), a fraction of the radius")
     if contact_time is not None:
