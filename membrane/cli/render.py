@@ -1,0 +1,223 @@
+"""``membrane render`` and ``membrane handout``: pictures and a printable sheet of a drum's modes.
+
+Thin: parse, solve, hand the modes to :mod:`membrane.render`, write the file whole
+(through :func:`write_atomic`). matplotlib and pyvista load only when a picture is drawn.
+"""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+from typing import Annotated, Optional
+
+import typer
+
+from ..modes import PHYSICS
+from ..solve import M_MAX_LIMIT, N_MAX_LIMIT, solve
+from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Physics, Radius, Tension,
+                     Thickness, Volume, drum_from, fail, parse_mode, write_atomic)
+
+ANIMATIONS = ("gif", "mp4")
+STILLS = ("png", "svg", "pdf")
+
+PhysicsOpt = Annotated[Physics, typer.Option(
+    help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")]
+MMax = Annotated[int, typer.Option(help="Highest number of nodal diameters solved (0-50).")]
+NMax = Annotated[int, typer.Option(help="Highest number of nodal circles solved, counting the rim (1-50).")]
+Reference = Annotated[str, typer.Option(help="Mode the ratios are taken to, M,N.")]
+Force = Annotated[bool, typer.Option("--force", help="Overwrite the output file if it exists.")]
+Count = Annotated[int, typer.Option(min=1, max=48, help="Modes in the grid (lowest first).")]
+
+
+def _suffix(out: Path, allowed: tuple[str, ...], what: str) -> str:
+    fmt = out.suffix.lower().lstrip(".")
+    if fmt not in allowed:
+        fail("--out", str(out), f"{what} is written as " + ", ".join(f".{a}" for a in allowed))
+    return fmt
+
+
+def _physics_list(text: str | None, key: str) -> list[str]:
+    if text is None or text.strip().lower() == "none":
+        return []
+    names = [t.strip().lower() for t in text.split(",") if t.strip()]
+    for name in names:
+        if name not in PHYSICS:
+            fail(key, text, f"a comma-separated list of: {', '.join(PHYSICS)} (or none)")
+    return list(dict.fromkeys(names))
+
+
+def _size(text: str) -> tuple[int, int]:
+    parts = text.lower().replace(" ", "").split("x")
+    try:
+        values = [int(p) for p in parts]
+    except ValueError:
+        values = []
+    if len(values) not in (1, 2):
+        fail("--size", text, "pixels as N (square) or WIDTHxHEIGHT, e.g. 480 or 640x480")
+    return (values[0], values[-1])
+
+
+def _progress(label: str):
+    """Progress on stderr, on one rewritten line when stderr is a terminal."""
+    tty = sys.stderr.isatty()
+
+    def report(done: int, total: int) -> None:
+        if tty:
+            print(f"\r{label} {done}/{total}", end="" if done < total else "\n", file=sys.stderr, flush=True)
+        elif done == total:
+            print(f"{label} {done}/{total}", file=sys.stderr)
+
+    return report
+
+
+def _solve(drum, physics: str, m_max: int, n_max: int, need=(0, 1)):
+    m, n = need
+    if m > M_MAX_LIMIT or n > N_MAX_LIMIT:
+        fail("--mode", f"{m},{n}", f"this drum's modes are solved up to m = {M_MAX_LIMIT}, n = {N_MAX_LIMIT}")
+    return solve(drum, physics, m_max=max(m_max, m), n_max=max(n_max, n))
+
+
+def render(
+    drum_file: DrumFile = None,
+    out: Annotated[Optional[Path], typer.Option("--out", help=(
+        "Output file. With --mode: .gif or .mp4 (3D animation), .png (nodal diagram; with --snapshot "
+        "a 3D still). With --grid or --ratio-chart: .png, .svg or .pdf."))] = None,
+    mode: Annotated[Optional[str], typer.Option(help="The mode to draw, M,N (nodal diameters, circles).")] = None,
+    grid: Annotated[bool, typer.Option("--grid", help="Draw the lowest modes side by side.")] = False,
+    ratio_chart: Annotated[bool, typer.Option(
+        "--ratio-chart", help="Draw each mode against the best harmonic series, in cents.")] = False,
+    compare: Annotated[Optional[str], typer.Option(help=(
+        "With --ratio-chart: physics models side by side, e.g. ideal,stiff,full "
+        "(default: --physics alone)."))] = None,
+    snapshot: Annotated[bool, typer.Option("--snapshot", help="With --mode and .png: a 3D still instead of "
+                                           "the nodal diagram.")] = False,
+    branch: Annotated[Optional[str], typer.Option(help="For a shell: in-phase or opposed (default the lower).")] = None,
+    count: Count = 12,
+    frames: Annotated[int, typer.Option(help="Frames in one period of the animation.")] = 48,
+    size: Annotated[str, typer.Option(help="Animation size in pixels, N or WIDTHxHEIGHT.")] = "480",
+    amplitude: Annotated[float, typer.Option(help=(
+        "Peak displacement drawn, as a fraction of the radius (exaggerated: real heads move far less)."))] = 0.3,
+    elevation: Annotated[float, typer.Option(help="Camera height above the head's plane, degrees.")] = 28.0,
+    azimuth: Annotated[float, typer.Option(help="Camera angle around the drum's axis, degrees.")] = -60.0,
+    fps: Annotated[float, typer.Option(help="Animation frames per second.")] = 24.0,
+    diameter: Diameter = None,
+    radius: Radius = None,
+    tension: Tension = None,
+    areal_density: ArealDensity = None,
+    film: Film = None,
+    thickness: Thickness = None,
+    body: Body = None,
+    volume: Volume = None,
+    depth: Depth = None,
+    physics: PhysicsOpt = Physics.full,
+    m_max: MMax = 6,
+    n_max: NMax = 3,
+    reference: Reference = "0,1",
+    force: Force = False,
+) -> None:
+    """Draw a drum's modes: a 3D animation or nodal diagram of one mode (--mode M,N), the lowest
+    modes side by side (--grid), or the ratio chart (--ratio-chart). Colours: blue down, red up,
+    on a colour-blind-safe diverging scale; black lines are nodes."""
+    if out is None:
+        fail("--out", None, "name the file to write, e.g. --out mode.gif")
+    chosen = [name for name, on in (("--mode", mode is not None), ("--grid", grid),
+                                    ("--ratio-chart", ratio_chart)) if on]
+    if len(chosen) != 1:
+        fail(" ".join(chosen) or "picture", "", "choose exactly one of --mode M,N, --grid, --ratio-chart")
+    if mode is not None:
+        fmt = _suffix(out, ANIMATIONS + ("png",), "a single mode")
+    else:
+        fmt = _suffix(out, STILLS, "a grid or ratio chart")
+    ref = parse_mode(reference, key="--reference")
+    drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
+                     areal_density=areal_density, film=film, thickness=thickness, body=body,
+                     volume=volume, depth=depth)
+
+    if mode is not None:
+        m, n = parse_mode(mode)
+        width, height = _size(size)
+        from ..render.animate import View, check_view
+
+        view = View(frames=frames, width=width, height=height, amplitude=amplitude,
+                    elevation=elevation, azimuth=azimuth, fps=fps)
+        if fmt != "png" or snapshot:
+            check_view(view, fmt)
+        modeset = _solve(drum, physics.value, m_max, n_max, need=(m, n))
+        the_mode = modeset.find(m, n, branch)
+        if fmt in ANIMATIONS or snapshot:
+            from ..render.animate import render_mode
+
+            def writer(tmp):
+                render_mode(modeset, the_mode, tmp, view=view, reference=ref,
+                            progress=_progress(f"{the_mode.label}: frame"))
+        else:
+            from ..render.stills import nodal_diagram, save
+
+            def writer(tmp):
+                save(nodal_diagram(modeset, m, n, branch=branch, reference=ref), tmp)
+    elif grid:
+        modeset = _solve(drum, physics.value, m_max, n_max)
+        from ..render.stills import mode_grid, save
+
+        def writer(tmp):
+            save(mode_grid(modeset, count=count, reference=ref), tmp)
+    else:
+        names = _physics_list(compare, "--compare") or [physics.value]
+        modesets = [_solve(drum, name, m_max, n_max) for name in names]
+        from ..render.stills import ratio_chart as chart, save
+
+        def writer(tmp):
+            save(chart(modesets), tmp)
+
+    write_atomic(out, writer, force=force)
+    print(f"wrote {out}", file=sys.stderr)
+
+
+def handout(
+    drum_file: DrumFile = None,
+    out: Annotated[Optional[Path], typer.Option("--out", help="Output .pdf file.")] = None,
+    paper: Annotated[str, typer.Option(help="Page size: a4 or letter.")] = "a4",
+    compare: Annotated[Optional[str], typer.Option(help=(
+        "Physics models shown beside --physics in the ratio chart, e.g. ideal,stiff, or none "
+        "(default: the simpler models below --physics)."))] = None,
+    count: Count = 12,
+    diameter: Diameter = None,
+    radius: Radius = None,
+    tension: Tension = None,
+    areal_density: ArealDensity = None,
+    film: Film = None,
+    thickness: Thickness = None,
+    body: Body = None,
+    volume: Volume = None,
+    depth: Depth = None,
+    physics: PhysicsOpt = Physics.full,
+    m_max: MMax = 6,
+    n_max: NMax = 3,
+    reference: Reference = "0,1",
+    force: Force = False,
+) -> None:
+    """Write a printable workshop handout (PDF, a few pages): the drum, its mode table with ratios
+    and notes, the mode shapes, the ratio chart, where to strike, and the usual cautions."""
+    if out is None:
+        fail("--out", None, "name the PDF to write, e.g. --out handout.pdf")
+    _suffix(out, ("pdf",), "the handout")
+    paper = paper.strip().lower()
+    if paper not in ("a4", "letter"):
+        fail("--paper", paper, "must be a4 or letter")
+    ref = parse_mode(reference, key="--reference")
+    drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
+                     areal_density=areal_density, film=film, thickness=thickness, body=body,
+                     volume=volume, depth=depth)
+    if compare is None:
+        others = list(PHYSICS[:PHYSICS.index(physics.value)])
+    else:
+        others = [p for p in _physics_list(compare, "--compare") if p != physics.value]
+    modeset = _solve(drum, physics.value, m_max, n_max)
+    modeset.find(*ref)  # a clear error if the reference mode was not solved
+    compared = [_solve(drum, name, m_max, n_max) for name in others]
+    from ..render.handout import write_handout
+
+    write_atomic(out, lambda tmp: write_handout(tmp, modeset, compare=compared, paper=paper,
+                                                reference=ref, count=count,
+                                                progress=_progress("handout: page")), force=force)
+    print(f"wrote {out}", file=sys.stderr)
