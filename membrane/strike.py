@@ -299,6 +299,34 @@ def strike_partials(modeset: ModeSet, *, strike: Strike = Strike(),
     return tuple(out)
 
 
+def pressure_across_radius(modeset: ModeSet, *, at, contact_time: float = MALLETS[DEFAULT_MALLET],
+                           listener: Listener = Listener(), angle: float = 0.0) -> np.ndarray:
+    """B_j of every mode for strikes at each of several radii (vectorised in the radius).
+
+    Parameters
+    ----------
+    modeset : ModeSet
+        Solved modes.
+    at : array_like
+        Strike radii, fractions of the head's radius (0..1).
+    contact_time, listener, angle
+        As for :class:`Strike` and :class:`Listener`.
+
+    Returns
+    -------
+    numpy.ndarray
+        Complex, shape (len(modeset), len(at)), Pa per N s of impulse.
+    """
+    at = np.atleast_1d(np.asarray(at, dtype=float))
+    probe = Strike(at=DEFAULT_AT, contact_time=contact_time, angle=angle)
+    air = modeset.drum.air
+    rows = []
+    for mode in modeset:
+        g = _gain(mode, probe, listener, air)
+        rows.append(g * _shape(mode, at) if g != 0 else np.zeros(at.size, dtype=complex))
+    return np.array(rows)
+
+
 def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS[DEFAULT_MALLET],
                        listener: Listener = Listener(), angle: float = 0.0,
                        search: tuple[float, float] = SEARCH_RANGE) -> StrikeAdvice:
@@ -342,13 +370,9 @@ def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS
     if mask.all():
         raise InputError("best-for", " ".join(f"{m},{n}" for m, n in chosen),
                          "leave some solved modes out: the search weighs the chosen against the rest")
-    probe = Strike(at=DEFAULT_AT, contact_time=contact_time, angle=angle)
-    air = modeset.drum.air
-    gains = np.array([_gain(mode, probe, listener, air) for mode in modeset])
-
     def contrast(at) -> np.ndarray:
-        power = np.abs(np.array([g * _shape(mode, at) if g != 0 else np.zeros(np.size(at))
-                                 for g, mode in zip(gains, modeset)])) ** 2
+        power = np.abs(pressure_across_radius(modeset, at=at, contact_time=contact_time,
+                                              listener=listener, angle=angle)) ** 2
         with np.errstate(divide="ignore"):
             return 10 * np.log10(power[mask].sum(axis=0)) - 10 * np.log10(power[~mask].sum(axis=0))
 

@@ -343,3 +343,12 @@ def test_real_command_writes_a_wav(tmp_path):
     proc = subprocess.run(["/work/venv/bin/membrane", "strike", *STIFF, "--out", str(out),
                            "--assume-t60", "1.5 s"], capture_output=True, text=True, timeout=120)
     assert proc.returncode == 2 and len(proc.stderr.strip().splitlines()) == 1
+
+
+def test_cli_plot_of_levels_against_strike_radius(tmp_path):
+    png = tmp_path / "levels.png"
+    result = run(*STIFF, "--best-for", "1,1", "2,1", "--plot", str(png), "--format", "json")
+    assert result.exit_code == 0, result.output
+    assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n" and json.loads(result.stdout)["plot"] == str(png)
+    assert run(*STIFF, "--plot", str(png)).exit_code == 2
+    assert run(*STIFF, "--plot", str(tmp_path / "levels.gif")).exit_code == 2

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import math
 import re
+import textwrap
 from pathlib import Path
 from typing import Annotated, List, Optional
 
@@ -57,6 +58,50 @@ def _parse_best_for(values: list[str] | None, drum_file: str | None,
     return modes, drum_file
 
 
+def _plot(path, result, *, at, t_c, listener, theta0, chosen, advice, title) -> None:
+    """Level of each partial against the strike radius (and the search's contrast), as a PNG."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    import numpy as np
+
+    radii = np.linspace(0.0, 1.0, 201)
+    p = np.abs(model.pressure_across_radius(result, at=radii, contact_time=t_c, listener=listener,
+                                            angle=theta0))
+    with np.errstate(divide="ignore"):
+        db = np.maximum(20 * np.log10(p / p.max()), -60.0)
+    picked = [j for j, mo in enumerate(result.modes) if (mo.m, mo.n) in chosen]
+    loudest = picked + [j for j in np.argsort(-db.max(axis=1)) if j not in picked][:max(0, 10 - len(picked))]
+    fig, axes = plt.subplots(2 if advice else 1, 1, figsize=(9.0, 6.5 if advice else 4.5),
+                             sharex=True, squeeze=False)
+    ax = axes[0, 0]
+    for j in loudest:
+        mo = result.modes[j]
+        strong = (mo.m, mo.n) in chosen
+        ax.plot(radii, db[j], lw=2.2 if strong else 1.0, ls="-" if strong or not chosen else "--",
+                label=f"{mo.label} {mo.frequency:.0f} Hz")
+    ax.axvline(at, color="k", lw=0.8)
+    ax.set_ylabel("level at the listener (dB re loudest)")
+    ax.set_ylim(-60, 3)
+    ax.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0))
+    ax.set_title(textwrap.fill(title, 110), fontsize=8, loc="left")
+    if advice:
+        with np.errstate(divide="ignore"):
+            power = p ** 2
+            mask = np.array([(mo.m, mo.n) in chosen for mo in result])
+            c = 10 * np.log10(power[mask].sum(0)) - 10 * np.log10(power[~mask].sum(0))
+        axes[1, 0].plot(radii, c, color="k")
+        axes[1, 0].axvline(advice.at, color="k", lw=0.8)
+        axes[1, 0].set_ylabel("chosen vs the rest (dB)")
+        axes[1, 0].axvspan(0, model.SEARCH_RANGE[0], color="0.9")
+        axes[1, 0].axvspan(model.SEARCH_RANGE[1], 1, color="0.9")
+    axes[-1, 0].set_xlabel("strike radius r/a (0 centre, 1 rim)")
+    fig.tight_layout()
+    fig.savefig(path, dpi=120)
+    plt.close(fig)
+
+
 def strike(
     ctx: typer.Context,
     drum_file: DrumFile = None,
@@ -85,7 +130,9 @@ def strike(
     assume_t60: Annotated[Optional[str], typer.Option(
         help="T60 for every partial when the physics models no decay (ideal, stiff), e.g. '2 s'.")
     ] = None,
-    force: Annotated[bool, typer.Option(help="Overwrite an existing --out file.")] = False,
+    plot: Annotated[Optional[str], typer.Option(
+        help="Draw each partial's level against the strike radius to this PNG file.")] = None,
+    force: Annotated[bool, typer.Option(help="Overwrite existing --out and --plot files.")] = False,
     diameter: Diameter = None,
     radius: Radius = None,
     tension: Tension = None,
@@ -131,8 +178,11 @@ def strike(
             fail("--rate", rate, f"must be from {RATE_RANGE[0]} to {RATE_RANGE[1]} Hz")
         if not 0.05 <= seconds <= MAX_SECONDS:
             fail("--seconds", seconds, f"must be from 0.05 to {MAX_SECONDS:g} s")
-        if Path(out).exists() and not force:  # refuse before the solve, not after
-            fail("--out", out, "exists already; add --force to overwrite it")
+    for key, path in (("--out", out), ("--plot", plot)):
+        if path is not None and Path(path).exists() and not force:  # refuse before the solve
+            fail(key, path, "exists already; add --force to overwrite it")
+    if plot is not None and Path(plot).suffix.lower() != ".png":
+        fail("--plot", plot, "must be a .png file")
     drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
                      areal_density=areal_density, film=film, thickness=thickness, body=body,
                      volume=volume, depth=depth)
@@ -166,6 +216,42 @@ def strike(
             notes.append("left out of the WAV (above the Nyquist frequency): " + ", ".join(dropped))
         notes.append(NOTE_HEARING)
         wav = {"path": str(out), "rate_hz": rate, "seconds": seconds, "format": wav_format}
+    rows = _rows(partials)
+    mallet_name = None if contact_time is not None else mallet.strip().lower()
+    how = f"{mallet_name} mallet" if mallet_name else f"contact time {t_c * 1e3:.2f} ms"
+    title = (f"{drum.name}: {physics.value} physics; strike at r/a = {at:.3f}, {how}; listener "
+             f"{listener_angle:g} deg off the axis at {distance:g} m")
+    if advice is not None:
+        title += (f"; best for {' '.join(f'({m},{n})' for m, n in advice.chosen)}: r/a = {advice.at:.3f}, "
+                  f"contrast {advice.contrast_db:+.1f} dB")
+    payload = {
+        "drum": drum.name, "physics": physics.value,
+        "strike": {"at": at, "angle_deg": angle, "contact_time_s": t_c, "mallet": mallet_name},
+        "listener": {"angle_deg": listener_angle, "distance_m": distance,
+                     "azimuth_deg": angle if listener_azimuth is None else listener_azimuth},
+        "partials": [{k: v for k, v in row.items() if k != "mode"} for row in rows],
+        "notes": notes,
+    }
+    if advice is not None:
+        payload["best_for"] = {"modes": [{"m": m, "n": n} for m, n in advice.chosen],
+                               "at": advice.at, "contrast_db": advice.contrast_db,
+                               "search_range": list(model.SEARCH_RANGE)}
+    if wav is not None:
+        payload["wav"] = wav
+    if plot is not None:
+        write_atomic(plot, lambda path: _plot(path, result, at=at, t_c=t_c, listener=listener,
+                                              theta0=theta0, chosen=chosen, advice=advice,
+                                              title=title), force=force, key="--plot")
+        payload["plot"] = str(plot)
+    columns = COLUMNS if format is not Format.csv else \
+        [("m", "m", str), ("n", "n", str)] + [c for c in COLUMNS if c[0] != "mode"] + \
+        [("pressure_pa_per_n_s", "pressure_pa_per_n_s", str), ("branch", "branch", str),
+         ("head", "head", str)]
+    emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=notes)
+
+
+def _rows(partials) -> list[dict]:
+    """Table rows, one per partial."""
     rows = []
     for p in partials:
         mo = p.mode
@@ -176,32 +262,6 @@ def strike(
             row["branch"] = mo.branch
         if mo.head is not None:
             row["head"] = mo.head
+        row["mode"] = mo.label
         rows.append(row)
-    mallet_name = None if contact_time is not None else mallet.strip().lower()
-    payload = {
-        "drum": drum.name, "physics": physics.value,
-        "strike": {"at": at, "angle_deg": angle, "contact_time_s": t_c, "mallet": mallet_name},
-        "listener": {"angle_deg": listener_angle, "distance_m": distance,
-                     "azimuth_deg": angle if listener_azimuth is None else listener_azimuth},
-        "partials": rows, "notes": notes,
-    }
-    if advice is not None:
-        payload["best_for"] = {"modes": [{"m": m, "n": n} for m, n in advice.chosen],
-                               "at": advice.at, "contrast_db": advice.contrast_db,
-                               "search_range": list(model.SEARCH_RANGE)}
-    if wav is not None:
-        payload["wav"] = wav
-    for row in rows:
-        row["mode"] = f"({row['m']},{row['n']})" + (f" {row['branch']}" if "branch" in row else "") + \
-            (" resonant" if row.get("head") == "resonant" else "")
-    how = f"{mallet_name} mallet" if mallet_name else f"contact time {t_c * 1e3:.2f} ms"
-    title = (f"{drum.name}: {physics.value} physics; strike at r/a = {at:.3f}, {how}; listener "
-             f"{listener_angle:g} deg off the axis at {distance:g} m")
-    if advice is not None:
-        title += (f"; best for {' '.join(f'({m},{n})' for m, n in advice.chosen)}: r/a = {advice.at:.3f}, "
-                  f"contrast {advice.contrast_db:+.1f} dB")
-    columns = COLUMNS if format is not Format.csv else \
-        [("m", "m", str), ("n", "n", str)] + [c for c in COLUMNS if c[0] != "mode"] + \
-        [("pressure_pa_per_n_s", "pressure_pa_per_n_s", str), ("branch", "branch", str),
-         ("head", "head", str)]
-    emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=notes)
+    return rows
