@@ -25,6 +25,7 @@ reported with its best exponential fit.
 from __future__ import annotations
 
 import math
+import struct
 import warnings as _warnings
 from dataclasses import dataclass
 from pathlib import Path
@@ -176,7 +177,7 @@ def read_wav(path: str | Path, *, channel: int | None = None) -> Recording:
         with _warnings.catch_warnings():
             _warnings.simplefilter("ignore")  # extra chunks (LIST, bext) are harmless
             rate, data = scipy.io.wavfile.read(path)
-    except (ValueError, EOFError, OSError, IndexError, TypeError) as exc:
+    except (ValueError, EOFError, OSError, IndexError, TypeError, struct.error) as exc:
         raise RecordingError(f"{path}: unreadable WAV file ({exc}); "
                              "expected PCM 8/16/24/32-bit or float 32/64-bit") from None
     data = np.asarray(data)
@@ -376,10 +377,19 @@ def find_partials(decay: np.ndarray, *, rate: float, floor_db: float = DEFAULT_F
     df = rate / nfft
     seeds, grid, noise_var = _seeds(y, rate=rate, floor_db=floor_db,
                                     min_frequency=min_frequency, limit=3 * max_partials)
+    # seeds within half a band of each other share one band
+    groups = []
+    for f in seeds:
+        if groups and f - groups[-1][0] < 0.5 * _BAND_HALF_HZ:
+            groups[-1].append(f)
+        else:
+            groups.append([f])
     found = []
-    for i, fc in enumerate(seeds):
-        lo = 0.5 * (seeds[i - 1] + fc) if i > 0 else fc - _BAND_HALF_HZ
-        hi = 0.5 * (fc + seeds[i + 1]) if i + 1 < len(seeds) else fc + _BAND_HALF_HZ
+    for i, group in enumerate(groups):
+        fc = 0.5 * (group[0] + group[-1])
+        # each frequency belongs to the nearest band, within its flat part
+        lo = 0.5 * (groups[i - 1][-1] + group[0]) if i > 0 else -np.inf
+        hi = 0.5 * (group[-1] + groups[i + 1][0]) if i + 1 < len(groups) else np.inf
         lo, hi = max(lo, fc - _BAND_HALF_HZ), min(hi, fc + _BAND_HALF_HZ)
         sigma2 = float(np.interp(fc, grid, noise_var))
         for f, c, r in _band_fit(spectrum, fc=fc, df=df, nfft=nfft, duration=n / rate,
@@ -472,8 +482,9 @@ def _band_fit(spectrum: np.ndarray, *, fc: float, df: float, nfft: int, duration
     # stop where the band has sunk into its noise: the rest only adds noise to the fit
     smooth = np.convolve(np.abs(z[j0:j1]) ** 2, np.ones(8) / 8, mode="same")
     loud = np.nonzero(smooth > 4.0 * noise_var)[0]
-    if loud.size:
-        j1 = min(j1, j0 + loud[-1] + 8)
+    if loud.size == 0:
+        return []  # nothing but noise in this band
+    j1 = min(j1, j0 + loud[-1] + 8)
     j1 = max(j1, min(j0 + 3 * _HANKEL_COLS, int((duration - _EDGE_SKIP_S) / dt)))
     if j1 - j0 < 24:
         return []
@@ -547,3 +558,22 @@ def _polish(z: np.ndarray, poles: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         v = v0
     lam = np.exp(v[: poles.size] + 1j * v[poles.size:])
     return lam, _amplitudes(z, lam)[0]
+
+
+def decay_spectrum(recording: Recording, analysis: Analysis) -> tuple[np.ndarray, np.ndarray]:
+    """Hann-window spectrum of the analysed decay, for pictures.
+
+    Returns
+    -------
+    frequencies : numpy.ndarray
+        [Hz]
+    level_db : numpy.ndarray
+        Power in dB relative to the highest peak.
+    """
+    i0 = int(round(analysis.start_time * recording.rate))
+    i1 = int(round(analysis.end_time * recording.rate))
+    y = recording.samples[i0:i1]
+    nfft = scipy.fft.next_fast_len(4 * y.size, real=True)
+    power = np.abs(scipy.fft.rfft(y * np.hanning(y.size), nfft)) ** 2
+    level = 10 * np.log10(power / power.max() + 1e-30)
+    return np.arange(power.size) * recording.rate / nfft, level

@@ -1,0 +1,255 @@
+"""``membrane listen``: the partials of a tap recording, their modes, and the head's tension."""
+
+from __future__ import annotations
+
+import sys
+from pathlib import Path
+from typing import Annotated, List, Optional
+
+import typer
+
+from ..errors import RecordingError
+from .common import Format, Physics, emit, fail, num, signed, write_atomic
+
+COLUMNS = [
+    ("frequency_hz", "f (Hz)", num(3)),
+    ("level_db", "level (dB)", num(1)),
+    ("decay_s", "T60 (s)", num(2)),
+    ("note", "note", str),
+    ("cents_from_note", "cents off note", signed(0)),
+]
+DRUM_COLUMNS = [
+    ("mode", "mode", str),
+    ("model_hz", "model (Hz)", num(2)),
+    ("cents_from_model", "cents off model", signed(1)),
+]
+MODEL_NOTE = ("labels come from the drum model at the fitted tension (the tension is the one free "
+              "parameter; the rest of the drum is taken from the drum file)")
+
+
+def parse_channel(text: str) -> int | None:
+    """``mix`` -> None (mean of the channels); ``left``/``right`` or ``N`` (from 1) -> index."""
+    t = str(text).strip().lower()
+    if t == "mix":
+        return None
+    if t in ("left", "right"):
+        return 0 if t == "left" else 1
+    if t.isdigit() and int(t) >= 1:
+        return int(t) - 1
+    fail("--channel", text, "mix, left, right, or a channel number counting from 1")
+
+
+def listen(
+    recording: Annotated[Path, typer.Argument(
+        metavar="RECORDING.wav", help="WAV file of one tap: PCM 16/24/32-bit or float, any rate, "
+        "mono or stereo.", show_default=False)],
+    drum: Annotated[Optional[str], typer.Option(
+        help="Drum file (TOML) or built-in example: label the partials with modes and fit the "
+             "head's tension.")] = None,
+    physics: Annotated[Physics, typer.Option(
+        help="Model for the labels (with --drum): ideal, stiff, or full (air and body).")
+    ] = Physics.full,
+    channel: Annotated[str, typer.Option(
+        help="mix (mean of the channels), left, right, or a channel number from 1.")] = "mix",
+    floor: Annotated[float, typer.Option(
+        help="Leave out partials weaker than this, in dB below the strongest.", max=-1.0)] = -50.0,
+    max_partials: Annotated[int, typer.Option(
+        help="Report at most this many partials (the strongest).", min=1, max=500)] = 32,
+    target: Annotated[Optional[List[str]], typer.Option(
+        help="With --drum: M,N=PITCH (Hz or a note such as F2); the tension that puts the mode "
+             "there, starting from the fitted drum. Repeat for several modes.",
+        metavar="M,N=PITCH")] = None,
+    plot: Annotated[Optional[Path], typer.Option(
+        help="Also draw the spectrum with the partials and matched modes marked (PNG).",
+        metavar="FILE.png")] = None,
+    force: Annotated[bool, typer.Option("--force", help="Overwrite an existing --plot file.")] = False,
+    format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
+) -> None:
+    """Find the partials of a tap recording: frequency, level and decay time (T60).
+
+    With --drum, name each partial with a mode (m nodal diameters, n nodal circles) by
+    fitting the head's tension, and show split degenerate modes and their beat rate.
+    """
+    from .. import recording as rec
+    from ..units import note_name
+
+    chan = parse_channel(channel)
+    if target and drum is None:
+        fail("--target", target[0], "needs --drum: the tension is worked out from the fitted drum model")
+    if plot is not None:
+        if plot.suffix.lower() != ".png":
+            fail("--plot", str(plot), "a .png file name")
+        if plot.exists() and not force:
+            fail("--plot", str(plot), "exists already; add --force to overwrite it")
+    model = _load_drum(drum) if drum is not None else None
+    targets = _targets(target) if target else []
+
+    try:
+        audio = rec.read_wav(recording, channel=chan)
+        analysis = rec.analyse(audio, floor_db=floor, max_partials=max_partials)
+    except RecordingError as exc:
+        message = str(exc)
+        raise RecordingError(message if str(recording) in message else f"{recording}: {message}") from None
+    for warning in analysis.warnings:
+        print(f"warning: {warning}", file=sys.stderr)
+
+    ident = None
+    if model is not None:
+        from ..identify import identify
+
+        ident = identify(model, analysis.partials, physics=physics.value)
+    rows = []
+    labels = {id(mt.partial): mt for mt in ident.matches} if ident else {}
+    for p in analysis.partials:
+        note, off = note_name(p.frequency)
+        row = {"frequency_hz": p.frequency, "level_db": p.level_db, "decay_s": p.t60,
+               "decay_rate_per_s": p.decay_rate, "note": note, "cents_from_note": off}
+        mt = labels.get(id(p))
+        if mt is not None:
+            row.update(m=mt.m, n=mt.n, mode=f"({mt.m},{mt.n})", model_hz=mt.model_frequency,
+                       cents_from_model=mt.cents)
+            if mt.branch is not None:
+                row["branch"] = mt.branch
+                row["mode"] += f" {mt.branch}"
+        rows.append(row)
+
+    payload = {"recording": str(recording), "sample_rate_hz": audio.rate, "channels": audio.channels,
+               "encoding": audio.encoding, "strike_time_s": analysis.strike_time,
+               "analysed_from_s": analysis.start_time, "analysed_to_s": analysis.end_time,
+               "floor_db": floor, "partials": [{k: v for k, v in r.items() if k != "mode"} for r in rows],
+               "warnings": list(analysis.warnings)}
+    notes = [f"levels in dB re the strongest partial at the strike; T60 = time to fall 60 dB; "
+             f"strike at {analysis.strike_time:.3f} s, decay analysed "
+             f"{analysis.start_time:.3f}-{analysis.end_time:.3f} s"]
+    if ident is not None:
+        payload.update(_identification_payload(ident, physics.value))
+        notes += _identification_notes(ident, physics.value)
+    tuning_result = None
+    if targets:
+        tuning_result = _tune(ident.drum, targets, physics.value)
+        payload["tuning"] = tuning_result
+        notes += _tuning_notes(tuning_result)
+        for w in tuning_result["warnings"]:
+            print(f"caution: {w}", file=sys.stderr)
+    if plot is not None:
+        spectrum = rec.decay_spectrum(audio, analysis)
+        write_atomic(plot, lambda tmp: _draw(tmp, spectrum, analysis, ident, recording.name),
+                     force=force, key="--plot")
+        notes.append(f"spectrum picture written to {plot}")
+    columns = COLUMNS + (DRUM_COLUMNS if ident else [])
+    if format is Format.csv:
+        columns = COLUMNS[:3] + [("decay_rate_per_s", "decay_rate_per_s", str)] + COLUMNS[3:] + \
+            ([("m", "m", str), ("n", "n", str)] + DRUM_COLUMNS[1:] if ident else [])
+    title = f"{recording.name}: {len(rows)} partials ({audio.encoding}, {audio.rate:g} Hz)"
+    if ident is not None:
+        title += f"; fitted tension {ident.tension:.0f} N/m"
+    emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=notes)
+
+
+def _load_drum(source: str):
+    from ..drum import load_drum
+
+    return load_drum(source)
+
+
+def _targets(texts: list[str]) -> list[tuple[tuple[int, int], float]]:
+    from .tune import parse_targets
+
+    for text in texts:
+        if "=" not in text:
+            fail("--target", text, "write the target as M,N=PITCH, e.g. 1,1=F2 or 1,1=87.3")
+    return [(mn, hz) for mn, hz, _ in parse_targets(texts, None)]
+
+
+def _identification_payload(ident, physics: str) -> dict:
+    return {
+        "physics": physics,
+        "fitted_tension_n_per_m": ident.tension,
+        "nominal_tension_n_per_m": ident.nominal_tension,
+        "tension_change_percent": 100.0 * (ident.tension / ident.nominal_tension - 1.0),
+        "rms_cents": ident.rms_cents,
+        "matched": len(ident.matches),
+        "unmatched": [{"frequency_hz": p.frequency, "level_db": p.level_db} for p in ident.unmatched],
+        "splits": [{"m": s.m, "n": s.n, "low_hz": s.low.frequency, "high_hz": s.high.frequency,
+                    "beat_hz": s.beat_hz, "cents": s.cents} for s in ident.splits],
+        "model_notes": list(ident.modes.notes) + [MODEL_NOTE],
+    }
+
+
+def _identification_notes(ident, physics: str) -> list[str]:
+    out = [f"fitted tension {ident.tension:.1f} N/m ({100 * (ident.tension / ident.nominal_tension - 1):+.1f} % "
+           f"from the drum file's {ident.nominal_tension:.0f} N/m), {physics} physics; "
+           f"{len(ident.matches)} partials matched, rms {ident.rms_cents:.1f} cents"]
+    for s in ident.splits:
+        out.append(f"mode ({s.m},{s.n}) is split: {s.low.frequency:.2f} and {s.high.frequency:.2f} Hz, "
+                   f"beating at {s.beat_hz:.2f} Hz ({s.cents:.1f} cents) - uneven tension round the rim")
+    if ident.unmatched:
+        out.append("no mode within reach: " + ", ".join(f"{p.frequency:.1f} Hz" for p in ident.unmatched))
+    out += list(ident.modes.notes) + [MODEL_NOTE]
+    return out
+
+
+def _tune(drum, targets, physics: str) -> dict:
+    from .. import tuning
+
+    result = tuning.tension_for(drum, targets=targets, physics=physics)
+    return {"tension_n_per_m": result.tension, "current_tension_n_per_m": result.current_tension,
+            "change_percent": result.change_percent,
+            "predicted_hz": result.targets[0].predicted_hz,
+            "targets": [{"m": t.m, "n": t.n, "target_hz": t.target_hz, "current_hz": t.current_hz,
+                         "predicted_hz": t.predicted_hz, "residual_cents": t.residual_cents}
+                        for t in result.targets],
+            "stress_pa": result.stress, "warnings": list(result.warnings),
+            "cautions": list(tuning.CAUTIONS)}
+
+
+def _tuning_notes(t: dict) -> list[str]:
+    modes = ", ".join(f"({x['m']},{x['n']}) {x['current_hz']:.2f} -> {x['predicted_hz']:.2f} Hz "
+                      f"(target {x['target_hz']:.2f})" for x in t["targets"])
+    return [f"to reach the target: tension {t['tension_n_per_m']:.1f} N/m "
+            f"({t['change_percent']:+.1f} % from the fitted {t['current_tension_n_per_m']:.1f} N/m); {modes}"] + \
+        t["cautions"]
+
+
+def _draw(path: Path, spectrum, analysis, ident, name: str) -> None:
+    """The measured spectrum, the partials found (dots) and the matched modes (lines)."""
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+    import numpy as np
+
+    freqs, level = spectrum
+    top = max(p.frequency for p in analysis.partials)
+    keep = freqs <= top * 1.25 + 20
+    fig, ax = plt.subplots(figsize=(11, 5.5), dpi=110)
+    ax.plot(freqs[keep], level[keep], color="0.35", lw=0.7, label="measured spectrum (Hann window)")
+    at = np.interp([p.frequency for p in analysis.partials], freqs, level)
+    ax.plot([p.frequency for p in analysis.partials], at, "o", ms=5, color="tab:red",
+            label="partials found (damped-sinusoid fit)")
+    if ident is not None:
+        for i, mt in enumerate(ident.matches):
+            ax.axvline(mt.model_frequency, color="tab:blue", lw=0.8, ls="--",
+                       label="model modes at the fitted tension" if i == 0 else None)
+            ax.annotate(f"({mt.m},{mt.n})", (mt.model_frequency, 2.0), rotation=90, fontsize=8,
+                        ha="center", va="bottom", color="tab:blue")
+        for sp in ident.splits:
+            ax.annotate(f"split, beat {sp.beat_hz:.2f} Hz", (sp.high.frequency, -8), fontsize=8,
+                        color="tab:red")
+        title = f"{name}: fitted tension {ident.tension:.0f} N/m, rms {ident.rms_cents:.1f} cents"
+    else:
+        title = f"{name}: {len(analysis.partials)} partials"
+    floor = max(level[keep].min(), -100.0)
+    ax.set_ylim(floor, 12)
+    ax.set_xlim(0, freqs[keep][-1])
+    ax.set_xlabel("frequency (Hz)")
+    ax.set_ylabel("level (dB re highest peak)")
+    ax.set_title(title)
+    ax.legend(loc="upper right", fontsize=8)
+    ax.grid(alpha=0.3)
+    fig.tight_layout()
+    fig.savefig(path, format="png")
+    plt.close(fig)
+
+
+__all__ = ["listen", "parse_channel"]

@@ -1,0 +1,303 @@
+"""Name the partials of a recording with the drum model's modes, and fit the head's tension.
+
+Given measured partials and a drum model, find the tension T at which the model's modes
+best explain the partials. Partials and modes are paired by an optimal assignment
+(:func:`scipy.optimize.linear_sum_assignment`) on their distance in cents, with a cap so
+that a spurious partial or a missing mode costs a fixed amount instead of spoiling the
+fit; T then minimises the squared cents of the pairs; the two steps alternate until the
+pairing stops changing.
+
+Close partials (within a few cents of each other) are taken together: on a real head a
+mode with nodal diameters (m >= 1) is a degenerate pair (cos and sin) that uneven tension
+splits into two partials beating at their difference frequency. They are labelled with
+the same mode and reported as a split pair.
+
+Approximations: the model's frequencies at a trial tension come from sqrt(T) scaling
+only to find the starting point (exact for the ideal membrane); every refinement solves
+the model at the trial tension, so stiffness and air loading (which break the sqrt(T)
+law) are honoured.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+from scipy.optimize import linear_sum_assignment
+
+from .bessel import jn_zeros
+from .drum import Drum
+from .errors import InputError, SolverError
+from .modes import ModeSet
+from .recording import Partial
+from .solve import solve
+
+MAX_CENTS = 60.0  # a partial further than this from its mode is no match (0.6 semitone)
+SPLIT_CENTS = 25.0  # partials closer than this are one split mode (0.8 Hz at 150 Hz is 9 cents)
+MISSING_MODE_COST = 0.3  # a model mode without a partial, in units of MAX_CENTS
+MAX_TENSION_FACTOR = 25.0  # search within this factor of the drum's nominal tension
+MAX_RANGE = 10.0  # model modes up to this ratio to the lowest mode (the table grows as its square)
+_SECANT_TOL = 1e-7  # in ln T: far below the 1 % the fit can promise
+_MAX_ROUNDS = 6  # assignment / tension rounds
+
+
+@dataclass(frozen=True)
+class Match:
+    """A partial named with a mode.
+
+    Attributes
+    ----------
+    partial : Partial
+    m, n : int
+        Nodal diameters and nodal circles (counting the rim).
+    model_frequency : float
+        The mode's frequency at the fitted tension [Hz].
+    cents : float
+        Partial minus model, in cents.
+    branch, head : str or None
+        For a drum with two heads: which branch / which head, as in the mode table.
+    """
+
+    partial: Partial
+    m: int
+    n: int
+    model_frequency: float
+    cents: float
+    branch: str | None = None
+    head: str | None = None
+
+
+@dataclass(frozen=True)
+class SplitPair:
+    """Two partials from one degenerate mode, split by uneven tension.
+
+    Attributes
+    ----------
+    m, n : int
+    low, high : Partial
+    beat_hz : float
+        Their difference frequency: the beat heard [Hz].
+    """
+
+    m: int
+    n: int
+    low: Partial
+    high: Partial
+
+    @property
+    def beat_hz(self) -> float:
+        """Beat rate [Hz]."""
+        return self.high.frequency - self.low.frequency
+
+    @property
+    def cents(self) -> float:
+        """Split in cents."""
+        return 1200.0 * math.log2(self.high.frequency / self.low.frequency)
+
+
+@dataclass(frozen=True)
+class Identification:
+    """Partials named with modes, and the tension that names them best.
+
+    Attributes
+    ----------
+    drum : Drum
+        The drum at the fitted tension.
+    tension, nominal_tension : float
+        Fitted and nominal (the drum file's) tension of the struck head [N/m].
+    matches : tuple of Match
+        Sorted by frequency; both partials of a split pair appear.
+    unmatched : tuple of Partial
+        Partials no mode explains within :data:`MAX_CENTS` (or above the model's range).
+    splits : tuple of SplitPair
+    modes : ModeSet
+        The model's modes at the fitted tension.
+    """
+
+    drum: Drum
+    tension: float
+    nominal_tension: float
+    matches: tuple[Match, ...]
+    unmatched: tuple[Partial, ...]
+    splits: tuple[SplitPair, ...]
+    modes: ModeSet
+
+    @property
+    def rms_cents(self) -> float:
+        """Root-mean-square residual of the matches [cents]."""
+        return float(np.sqrt(np.mean([mt.cents**2 for mt in self.matches]))) if self.matches else math.nan
+
+
+def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float = MAX_CENTS,
+             split_cents: float = SPLIT_CENTS) -> Identification:
+    """Fit the struck head's tension to measured partials and label them (m, n).
+
+    Parameters
+    ----------
+    drum : Drum
+        The drum model; its head tension is the starting guess [N/m].
+    partials : sequence of Partial
+        Measured partials (any order).
+    physics : {"ideal", "stiff", "full"}
+        The model, as in :func:`membrane.solve`.
+    max_cents : float
+        Largest distance of a partial from its mode to count as a match [cents].
+    split_cents : float
+        Partials closer than this are taken as one split degenerate mode [cents].
+
+    Returns
+    -------
+    Identification
+
+    Raises
+    ------
+    InputError
+        If there are fewer than two partials or the options are out of range.
+    SolverError
+        If no tension explains at least two partials.
+    """
+    if not 0 < max_cents <= 600:
+        raise InputError("max_cents", max_cents, "between 0 and 600 cents")
+    if not 0 <= split_cents < max_cents:
+        raise InputError("split_cents", split_cents, f"between 0 and max_cents ({max_cents})")
+    parts = sorted(partials, key=lambda p: p.frequency)
+    if len(parts) < 2:
+        raise InputError("partials", len(parts), "need at least two partials to fit a tension")
+    fp = np.array([p.frequency for p in parts])
+    t0 = drum.head.tension
+    m_max, n_max = _orders(fp.max() / fp.min() * 1.6)
+    base = solve(drum, physics, m_max=m_max, n_max=n_max)
+    labels = [(md.m, md.n, md.branch, md.head) for md in base.modes]
+    double = np.array([md.multiplicity == 2 for md in base.modes])
+    f_base = np.array([md.frequency for md in base.modes])
+
+    # start: every pairing of a strong partial with a low mode proposes a tension (sqrt law)
+    strong = np.argsort([-p.amplitude for p in parts])[:6]
+    best = None
+    for i in strong:
+        for k in range(min(12, f_base.size)):
+            t = t0 * (fp[i] / f_base[k]) ** 2
+            if not 1 / MAX_TENSION_FACTOR <= t / t0 <= MAX_TENSION_FACTOR:
+                continue
+            cost, pairs = _assign(fp, f_base * math.sqrt(t / t0), double, max_cents, split_cents)
+            if best is None or cost < best[0] - 1e-9:
+                best = (cost, t, pairs)
+    if best is None or len(best[2]) < 2:
+        raise SolverError("no tension within a factor of 25 of the drum's puts two of its modes "
+                          "on the partials; check the drum file (diameter, film)")
+    _, tension, pairs = best
+
+    # refine: tension for the pairs (model solved at each trial), then pair again
+    modes = base
+    for _ in range(_MAX_ROUNDS):
+        tension = _fit_tension(drum, physics, fp, pairs, labels, tension, m_max, n_max)
+        modes = solve(drum.with_tension(tension), physics, m_max=m_max, n_max=n_max)
+        new_pairs = _assign(fp, _by_label(modes, labels), double, max_cents, split_cents)[1]
+        if new_pairs == pairs:
+            break
+        pairs = new_pairs
+    return _result(drum, tension, t0, parts, pairs, labels, _by_label(modes, labels), modes)
+
+
+def _orders(ratio: float) -> tuple[int, int]:
+    """m_max, n_max so that every ideal mode up to ``ratio`` times the lowest is in the table."""
+    top = min(max(ratio, 3.0), MAX_RANGE) * float(jn_zeros(0, 1)[0])
+    m_max = 0
+    while float(jn_zeros(m_max + 1, 1)[0]) <= top:
+        m_max += 1
+    n_max = int(np.count_nonzero(jn_zeros(0, 20) <= top))
+    return m_max, max(n_max, 1)
+
+
+def _assign(f: np.ndarray, g: np.ndarray, double: np.ndarray, max_cents: float,
+            split_cents: float) -> tuple[float, list[tuple[int, int]]]:
+    """Pair partials ``f`` with modes ``g`` (both Hz) at least cost; returns cost and pairs.
+
+    A pair costs its distance in cents (no pair beyond ``max_cents``). An unpaired partial
+    costs ``max_cents``; a mode inside the partials' range left without a partial costs
+    :data:`MISSING_MODE_COST` of that (a strike on a mode's nodal line leaves it out, but a
+    model far too dense must not win by pairing everything). A degenerate mode
+    (``double``) has a second place, for the other half of a split, within ``split_cents``.
+    """
+    cents = np.abs(1200.0 * np.log2(f[:, None] / g[None, :]))
+    big = 1e6
+    n_f, n_g = cents.shape
+    second = np.nonzero(double)[0]
+    cost = np.concatenate([np.where(cents <= max_cents, cents, big),
+                           np.where(cents[:, second] <= split_cents, cents[:, second] + 1e-3, big)],
+                          axis=1)
+    cols = np.concatenate([np.arange(n_g), second])
+    n_c = cols.size
+    in_range = (g >= f.min() * 2 ** (-max_cents / 1200)) & (g <= f.max() * 2 ** (max_cents / 1200))
+    missing = np.concatenate([np.where(in_range, MISSING_MODE_COST * max_cents, 0.0),
+                              np.zeros(second.size)])
+    full = np.full((n_f + n_c, n_c + n_f), big)
+    full[:n_f, :n_c] = cost
+    full[np.arange(n_f), n_c + np.arange(n_f)] = max_cents  # partial left unpaired
+    full[n_f + np.arange(n_c), np.arange(n_c)] = missing
+    full[n_f:, n_c:] = 0.0
+    rows, picked = linear_sum_assignment(full)
+    total = float(full[rows, picked].sum())
+    pairs = sorted((int(r), int(cols[c])) for r, c in zip(rows, picked) if r < n_f and c < n_c)
+    return total, pairs
+
+
+def _by_label(modes: ModeSet, labels) -> np.ndarray:
+    """The frequencies of ``modes`` in the order of ``labels`` [Hz]."""
+    table = {(md.m, md.n, md.branch, md.head): md.frequency for md in modes.modes}
+    return np.array([table.get(lb, math.nan) for lb in labels])
+
+
+def _fit_tension(drum, physics, fp, pairs, labels, tension, m_max, n_max) -> float:
+    """Least squares in cents over ln T for fixed pairs: the root of the mean log residual.
+
+    The mean of ln(f_partial / f_model(T)) over the pairs is zero at the least-squares
+    tension (for a common scale factor); secant steps in ln T, started with the sqrt(T)
+    slope of 1/2, converge in a few solves.
+    """
+    idx_f = np.array([i for i, _ in pairs])
+    wanted = [labels[k] for _, k in pairs]
+    if physics != "full":
+        # in vacuum each (m, n) root is independent of the table's size: solve only what we need
+        m_max = max(lb[0] for lb in wanted)
+        n_max = max(lb[1] for lb in wanted)
+
+    def h(x):
+        modes = solve(drum.with_tension(math.exp(x)), physics, m_max=m_max, n_max=n_max)
+        return float(np.mean(np.log(fp[idx_f] / _by_label(modes, wanted))))
+
+    x = math.log(tension)
+    hx = h(x)
+    slope = 0.5
+    for _ in range(30):
+        step = hx / slope
+        x_new = x + step
+        if abs(step) < _SECANT_TOL:
+            return math.exp(x_new)
+        h_new = h(x_new)
+        if h_new != hx:
+            slope = min(max(-(h_new - hx) / (x_new - x), 0.05), 2.0)
+        x, hx = x_new, h_new
+    raise SolverError("the tension fit did not settle in 30 model solves")
+
+
+def _result(drum, tension, t0, parts, pairs, labels, freqs, modes) -> Identification:
+    matches, splits, by_mode = [], [], {}
+    for i, k in pairs:
+        m, n, branch, head = labels[k]
+        matches.append(Match(partial=parts[i], m=m, n=n, model_frequency=float(freqs[k]),
+                             cents=float(1200.0 * math.log2(parts[i].frequency / freqs[k])),
+                             branch=branch, head=head))
+        by_mode.setdefault(k, []).append(parts[i])
+    for k, group in by_mode.items():
+        if len(group) == 2:
+            low, high = sorted(group, key=lambda p: p.frequency)
+            splits.append(SplitPair(m=labels[k][0], n=labels[k][1], low=low, high=high))
+    paired = {i for i, _ in pairs}
+    return Identification(drum=drum.with_tension(tension), tension=float(tension),
+                          nominal_tension=float(t0),
+                          matches=tuple(sorted(matches, key=lambda mt: mt.partial.frequency)),
+                          unmatched=tuple(p for i, p in enumerate(parts) if i not in paired),
+                          splits=tuple(sorted(splits, key=lambda sp: sp.low.frequency)),
+                          modes=modes)
