@@ -29,7 +29,9 @@ Force = Annotated[bool, typer.Option("--force", help="Overwrite the output file 
 Count = Annotated[int, typer.Option(min=1, max=48, help="Modes in the grid (lowest first).")]
 
 
-def _suffix(out: Path, allowed: tuple[str, ...], what: str) -> str:
+def _suffix(out: Path, allowed: tuple[str, ...], what: str, force: bool) -> str:
+    if out.exists() and not force:  # before any solving; write_atomic checks again at the end
+        fail("--out", str(out), "exists already; add --force to overwrite it")
     fmt = out.suffix.lower().lstrip(".")
     if fmt not in allowed:
         fail("--out", str(out), f"{what} is written as " + ", ".join(f".{a}" for a in allowed))
@@ -97,7 +99,7 @@ def render(
     size: Annotated[str, typer.Option(help="Animation size in pixels, N or WIDTHxHEIGHT.")] = "480",
     amplitude: Annotated[float, typer.Option(help=(
         "Peak displacement drawn, as a fraction of the radius (exaggerated: real heads move far less)."))] = 0.3,
-    elevation: Annotated[float, typer.Option(help="Camera height above the head's plane, degrees.")] = 28.0,
+    elevation: Annotated[float, typer.Option(help="Camera height above the head's plane, degrees.")] = 36.0,
     azimuth: Annotated[float, typer.Option(help="Camera angle around the drum's axis, degrees.")] = -60.0,
     fps: Annotated[float, typer.Option(help="Animation frames per second.")] = 24.0,
     diameter: Diameter = None,
@@ -123,11 +125,13 @@ def render(
     chosen = [name for name, on in (("--mode", mode is not None), ("--grid", grid),
                                     ("--ratio-chart", ratio_chart)) if on]
     if len(chosen) != 1:
-        fail(" ".join(chosen) or "picture", "", "choose exactly one of --mode M,N, --grid, --ratio-chart")
+        fail("picture", " and ".join(chosen) or "none", "choose exactly one of --mode M,N, --grid, --ratio-chart")
+    if branch is not None and branch not in ("in-phase", "opposed"):
+        fail("--branch", branch, "must be in-phase or opposed")
     if mode is not None:
-        fmt = _suffix(out, ANIMATIONS + ("png",), "a single mode")
+        fmt = _suffix(out, ANIMATIONS + ("png",), "a single mode", force)
     else:
-        fmt = _suffix(out, STILLS, "a grid or ratio chart")
+        fmt = _suffix(out, STILLS, "a grid or ratio chart", force)
     ref = parse_mode(reference, key="--reference")
     drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
                      areal_density=areal_density, film=film, thickness=thickness, body=body,
@@ -143,6 +147,8 @@ def render(
         if fmt != "png" or snapshot:
             check_view(view, fmt)
         modeset = _solve(drum, physics.value, m_max, n_max, need=(m, n))
+        if branch is not None and not any(x.branch for x in modeset):
+            fail("--branch", branch, "only a shell's two heads solved together (--physics full) have branches")
         the_mode = modeset.find(m, n, branch)
         if fmt in ANIMATIONS or snapshot:
             from ..render.animate import render_mode
@@ -200,7 +206,7 @@ def handout(
     and notes, the mode shapes, the ratio chart, where to strike, and the usual cautions."""
     if out is None:
         fail("--out", None, "name the PDF to write, e.g. --out handout.pdf")
-    _suffix(out, ("pdf",), "the handout")
+    _suffix(out, ("pdf",), "the handout", force)
     paper = paper.strip().lower()
     if paper not in ("a4", "letter"):
         fail("--paper", paper, "must be a4 or letter")

@@ -44,7 +44,7 @@ class View:
     width: int = 480
     height: int = 480
     amplitude: float = 0.3
-    elevation: float = 28.0
+    elevation: float = 36.0
     azimuth: float = -60.0
     fps: float = 24.0
 
@@ -113,17 +113,21 @@ class HeadScene:
         kind = getattr(getattr(modeset.drum, "body", None), "kind", "none")
         body = _body(kind)
         if body is not None:
-            p.add_mesh(body, color="#b8b8b8", opacity=0.35, smooth_shading=True)
+            p.add_mesh(body, color="#b8b8b8", opacity=0.22, smooth_shading=True)
         el, az = np.radians(view.elevation), np.radians(view.azimuth)
         p.camera.focal_point = (0.0, 0.0, -0.05)
         p.camera.position = (4.2 * np.cos(el) * np.cos(az), 4.2 * np.cos(el) * np.sin(az), 4.2 * np.sin(el))
         p.camera.up = (0.0, 0.0, 1.0)
         p.camera.view_angle = 30.0
-        font = max(6, int(round(min(view.width, view.height) / 64)))
-        p.add_text(mode_caption(modeset, mode, reference=reference) + "\n" + physics_words(modeset.physics),
-                   position="upper_edge", font_size=font, color="black")
+        words = physics_words(modeset.physics) if view.width >= 320 else f"{modeset.physics} physics"
+        title = mode_caption(modeset, mode, reference=reference) + "\n" + words
+        # vtk's font size is roughly the glyph height in pixels, a glyph ~0.6 of it wide:
+        # fit the longest title line across the picture.
+        longest = max(len(line) for line in title.split("\n"))
+        font = max(5, min(int(view.width / (0.78 * longest)), int(view.height / 34)))
+        p.add_text(title, position="upper_edge", font_size=font, color="black")
         p.add_text(f"motion exaggerated: peak {view.amplitude:g} x radius", position="lower_left",
-                   font_size=max(6, font - 3), color="#404040")
+                   font_size=max(5, int(font * 0.75)), color="#404040")
         self.plotter = p
 
     def frame(self, phase: float) -> np.ndarray:

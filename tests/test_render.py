@@ -1,0 +1,207 @@
+"""Pictures: the drawn field puts nodes where the handbook says, files open with the asked-for
+frames and size, and bad requests end in one line and exit code 2. Runs with no display."""
+
+import re
+
+import imageio.v3 as iio
+import numpy as np
+import pytest
+from typer.testing import CliRunner
+
+from membrane import load_drum, solve
+from membrane.cli import app
+from membrane.render import stills
+
+# Abramowitz & Stegun, Handbook of Mathematical Functions (1964), Table 9.5 (SOURCES.md): j_{m,k}
+BESSEL_ZEROS = {
+    0: (2.4048255577, 5.5200781103, 8.6537279129),
+    1: (3.8317059702, 7.0155866698, 10.173468135),
+    2: (5.1356223018, 8.4172441404, 11.619841172),
+    3: (6.3801618959, 9.7610231300, 13.015200722),
+}
+
+runner = CliRunner(env={"DISPLAY": None})  # headless, as in CI
+
+
+@pytest.fixture(autouse=True)
+def no_display(monkeypatch):
+    monkeypatch.delenv("DISPLAY", raising=False)
+
+
+@pytest.fixture(scope="module")
+def ideal():
+    return solve(load_drum("kettledrum"), "ideal", m_max=3, n_max=3)
+
+
+def mesh_of(ax):
+    """The plotted field of one panel: (x, y, w) at the grid nodes, rows around the circle."""
+    from matplotlib.collections import QuadMesh
+
+    mesh = next(c for c in ax.collections if isinstance(c, QuadMesh))
+    xy = mesh.get_coordinates()
+    w = np.asarray(mesh.get_array()).reshape(xy.shape[:2])
+    return xy[..., 0], xy[..., 1], w
+
+
+def crossings(r, w):
+    """Radii where w changes sign, by linear interpolation."""
+    s = np.flatnonzero(np.sign(w[1:]) * np.sign(w[:-1]) < 0)
+    return r[s] - w[s] * (r[s + 1] - r[s]) / (w[s + 1] - w[s])
+
+
+def test_grid_nodal_circles_and_diameters_are_the_handbook_ones(ideal):
+    fig = stills.mode_grid(ideal, count=len(ideal.modes), columns=4)
+    checked = set()
+    for ax in fig.axes:
+        title = re.match(r"\((\d+),(\d+)\)", ax.get_title())
+        if not title:
+            continue  # the colour bar
+        m, n = int(title[1]), int(title[2])
+        x, y, w = mesh_of(ax)
+        r = np.hypot(x[0], y[0])  # the row at theta = 0, where cos(m theta) = 1
+        inner = r < 0.99  # the rim itself is a node of every mode
+        circles = crossings(r[inner], w[0][inner])
+        expected = [BESSEL_ZEROS[m][k] / BESSEL_ZEROS[m][n - 1] for k in range(n - 1)]
+        assert list(circles) == pytest.approx(expected, rel=0.01), (m, n)
+        # around the circle through the largest displacement: 2m sign changes
+        ring = w[:-1, np.argmax(np.abs(w[0]))]  # the seam theta = 2 pi repeats theta = 0
+        changes = np.count_nonzero(np.sign(ring) != np.sign(np.roll(ring, 1)))
+        assert changes == 2 * m, (m, n)
+        checked.add((m, n))
+    assert checked == {(m, n) for m in range(4) for n in range(1, 4)}
+    # sorted by frequency, as the grid promises
+    freqs = [float(re.search(r"([\d.]+) Hz", ax.get_title())[1]) for ax in fig.axes if ax.get_title()]
+    assert freqs == sorted(freqs)
+
+
+def test_a_stiff_mode_is_drawn_from_its_own_vector():
+    # A slack head is plate-like: its (0,2) nodal circle moves well away from the ideal
+    # 0.4357 (SOURCES.md), so a picture of the ideal Bessel function would fail here.
+    drum = load_drum("kettledrum", tension="30 N/m", thickness="0.5 mm")
+    stiff = solve(drum, "stiff", m_max=1, n_max=2)
+    fig = stills.nodal_diagram(stiff, 0, 2)
+    x, y, w = mesh_of(fig.axes[0])
+    r = np.hypot(x[0], y[0])
+    mode = stiff.find(0, 2)
+    assert w[0] == pytest.approx(mode.radial_shape(r * drum.head.radius), abs=1e-9)
+    circle = crossings(r[r < 0.99], w[0][r < 0.99])
+    assert len(circle) == 1 and abs(circle[0] - 0.4357) > 0.01, circle
+
+
+def test_nodal_diagram_marks_each_region_plus_or_minus(ideal):
+    fig = stills.nodal_diagram(ideal, 2, 2)
+    signs = [t.get_text() for t in fig.axes[0].texts if t.get_text() in ("+", "\u2212")]
+    assert len(signs) == 2 * 2 * 2  # 2m sectors times n rings
+    assert signs.count("+") == signs.count("\u2212")
+
+
+def test_ratio_chart_places_modes_at_their_frequency_ratios(ideal):
+    stiff = solve(load_drum("kettledrum"), "stiff", m_max=3, n_max=3)
+    fig = stills.ratio_chart([ideal, stiff])
+    panels = [ax for ax in fig.axes if ax.get_lines()]
+    assert len(panels) == 2
+    at = {line.get_gid(): (line.get_xdata()[0], line.get_ydata()[0]) for line in panels[0].get_lines()
+          if line.get_gid()}
+    # SOURCES.md, ideal membrane: f(2,1)/f(1,1) = 1.3403, f(3,1)/f(1,1) = 1.6651
+    assert at["(2,1)"][0] / at["(1,1)"][0] == pytest.approx(1.3403, abs=1e-4)
+    assert at["(3,1)"][0] / at["(1,1)"][0] == pytest.approx(1.6651, abs=1e-4)
+    for h, c in at.values():  # y is the distance in cents from the nearest harmonic
+        assert c == pytest.approx(1200 * np.log2(h / max(1, round(h))), abs=1e-9)
+
+
+def run(*args):
+    return runner.invoke(app, [str(a) for a in args])
+
+
+def test_gif_has_the_frames_and_size_asked_for(tmp_path):
+    out = tmp_path / "mode.gif"
+    result = run("render", "kettledrum", "--physics", "ideal", "--mode", "2,1", "--frames", 6,
+                 "--size", "96x80", "--out", out)
+    assert result.exit_code == 0, result.output
+    frames = iio.imread(out, index=None)
+    assert frames.shape[:3] == (6, 80, 96)
+    # the head swings: half a period on, the picture is not the same
+    assert np.abs(frames[0].astype(int) - frames[3].astype(int)).mean() > 1.0
+
+
+def test_mp4_has_the_frames_and_size_asked_for(tmp_path):
+    out = tmp_path / "mode.mp4"
+    result = run("render", "kettledrum", "--physics", "ideal", "--mode", "1,1", "--frames", 5,
+                 "--size", "128x96", "--out", out)
+    assert result.exit_code == 0, result.output
+    frames = iio.imread(out, index=None, plugin="pyav") if _has_pyav() else _ffmpeg_frames(out)
+    assert len(frames) == 5 and frames[0].shape[:2] == (96, 128)
+
+
+def _has_pyav():
+    try:
+        import av  # noqa: F401
+    except ImportError:
+        return False
+    return True
+
+
+def _ffmpeg_frames(path):
+    import imageio.v2 as imageio
+
+    with imageio.get_reader(str(path), format="FFMPEG") as reader:
+        return [frame for frame in reader]
+
+
+def test_png_still_and_3d_snapshot(tmp_path):
+    nodal, snap = tmp_path / "nodal.png", tmp_path / "snap.png"
+    assert run("render", "kettledrum", "--physics", "ideal", "--mode", "0,2", "--out", nodal).exit_code == 0
+    result = run("render", "kettledrum", "--physics", "ideal", "--mode", "0,2", "--snapshot",
+                 "--size", 100, "--out", snap)
+    assert result.exit_code == 0, result.output
+    assert iio.imread(snap).shape[:2] == (100, 100)
+    assert iio.imread(nodal).ndim == 3
+
+
+def test_grid_and_ratio_chart_from_the_command_line(tmp_path):
+    grid, chart = tmp_path / "grid.svg", tmp_path / "chart.png"
+    assert run("render", "kettledrum", "--physics", "ideal", "--grid", "--count", 4, "--m-max", 2,
+               "--n-max", 1, "--out", grid).exit_code == 0
+    assert "(2,1)" in grid.read_text()
+    assert run("render", "kettledrum", "--ratio-chart", "--compare", "ideal,stiff", "--m-max", 3,
+               "--n-max", 2, "--out", chart).exit_code == 0
+    assert iio.imread(chart).ndim == 3
+
+
+@pytest.mark.parametrize("args, key", [
+    (["--mode", "1,0", "--out", "x.png"], "--mode"),            # n counts the rim: at least 1
+    (["--mode", "60,1", "--out", "x.png"], "--mode"),           # beyond what is solved
+    (["--mode", "1,1", "--branch", "opposed", "--out", "x.png"], "--branch"),  # no branches in vacuum
+    (["--mode", "1,1", "--out", "x.avi"], "--out"),             # unknown format
+    (["--grid", "--out", "x.gif"], "--out"),                    # a grid is a still
+    (["--mode", "1,1", "--out", "no/such/folder/x.png"], "--out"),  # unwritable
+    (["--mode", "1,1", "--size", "95", "--out", "x.mp4"], "--size"),  # H.264 wants even sizes
+    (["--grid", "--ratio-chart", "--out", "x.png"], "picture"),
+    (["--ratio-chart", "--compare", "ideal,wet", "--out", "x.png"], "--compare"),
+])
+def test_bad_requests_give_one_line_and_exit_2(tmp_path, monkeypatch, args, key):
+    monkeypatch.chdir(tmp_path)
+    result = run("render", "kettledrum", "--physics", "ideal", *args)
+    assert result.exit_code == 2
+    err = result.stderr.strip()
+    assert len(err.splitlines()) == 1 and key in err and "Traceback" not in result.output
+    assert not any(p.name.startswith("x") for p in tmp_path.iterdir())
+
+
+def test_a_path_under_a_file_is_refused(tmp_path):
+    blocker = tmp_path / "file"
+    blocker.write_text("")
+    result = run("render", "kettledrum", "--physics", "ideal", "--mode", "1,1", "--out", blocker / "x.png")
+    assert result.exit_code == 2 and len(result.stderr.strip().splitlines()) == 1
+
+
+def test_existing_file_is_kept_without_force(tmp_path):
+    out = tmp_path / "nodal.png"
+    out.write_bytes(b"keep me")
+    result = run("render", "kettledrum", "--physics", "ideal", "--mode", "1,1", "--out", out)
+    assert result.exit_code == 2 and "--force" in result.stderr
+    assert out.read_bytes() == b"keep me"
+    assert run("render", "kettledrum", "--physics", "ideal", "--mode", "1,1", "--out", out,
+               "--force").exit_code == 0
+    assert out.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    assert [p.name for p in tmp_path.iterdir()] == ["nodal.png"]  # no temporary left behind
