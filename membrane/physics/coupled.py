@@ -25,14 +25,14 @@ A root that does not converge raises :class:`membrane.errors.SolverError`.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import lru_cache
 
 import numpy as np
 from scipy import special
 
 from ..errors import InputError, SolverError
-from .cavity import Duct
+from .cavity import duct_norms, duct_wavenumbers
 from .radiation import Quadrature, RadiationTable
 from .vacuum import RadialBasis, _ratio_i, ideal_basis, stiff_basis
 
@@ -230,14 +230,14 @@ def _radial_nodes(space: RitzSpace):
 # ----------------------------------------------------------------------------- settings
 @dataclass(frozen=True)
 class Settings:
-    """Numerical settings of the coupled solve (defaults from tests/test_coupled.py).
+    """Numerical settings of the coupled solve (defaults chosen by tests/test_coupled.py).
 
     Attributes
     ----------
     extra_modes : int
         In-vacuum modes kept beyond n_max in each order's Ritz space.
     duct_modes : int
-        Duct modes beyond the Ritz space's size.
+        Duct modes kept beyond the Ritz space's size.
     quadrature : Quadrature
         Wavenumber quadrature of the radiation tables.
     rim : bool
@@ -245,110 +245,301 @@ class Settings:
     tol : float
         Relative change of omega at which a root is converged.
     max_iter : int
-        Secant iterations per continuation step before the step is halved.
+        Iterations per continuation step before the step is halved.
     """
 
     extra_modes: int = 16
     duct_modes: int = 8
     quadrature: Quadrature = Quadrature()
     rim: bool = True
-    tol: float = 1e-11
-    max_iter: int = 30
+    tol: float = 1e-10
+    max_iter: int = 12
 
 
 DEFAULT = Settings()
 
 
-def head_space(head, *, m: int, count: int, rim: bool = True, radius: float | None = None) -> RitzSpace:
-    """Ritz space of order m for a head (exact stiff modes when it has bending stiffness)."""
-    a = head.radius if radius is None else radius
+# ----------------------------------------------------------------------------- templates
+@dataclass(frozen=True)
+class _Shape:
+    """Dimensionless description of a head's Ritz space: the cache key."""
+
+    m: int
+    count: int
+    rim: bool
+    s: float | None  # T a^2 / D, None for no bending stiffness
+    edge: str
+    nu: float
+
+
+def _shape(head, *, m: int, count: int, rim: bool) -> _Shape:
     d = head.bending_stiffness
-    if d > 0:
-        basis = stiff_basis(m=m, count=count, radius=a, tension=head.tension,
-                            areal_density=head.areal_density, bending_stiffness=d,
-                            poisson_ratio=head.poisson_ratio, edge=head.edge)
+    s = None if d <= 0 else float(head.tension * head.radius**2 / d)
+    return _Shape(m, count, rim, s, head.edge, float(head.poisson_ratio))
+
+
+@lru_cache(maxsize=512)
+def unit_space(shape: _Shape) -> RitzSpace:
+    """The Ritz space of radius 1, areal density 1 and tension 1 (or s with D = 1)."""
+    if shape.s is None:
+        basis = ideal_basis(m=shape.m, count=shape.count, radius=1.0, tension=1.0,
+                            areal_density=1.0)
     else:
-        basis = ideal_basis(m=m, count=count, radius=a, tension=head.tension,
-                            areal_density=head.areal_density)
-    return RitzSpace(basis, edge=head.edge, poisson_ratio=head.poisson_ratio, rim=rim)
+        basis = stiff_basis(m=shape.m, count=shape.count, radius=1.0, tension=shape.s,
+                            areal_density=1.0, bending_stiffness=1.0,
+                            poisson_ratio=shape.nu, edge=shape.edge)
+    return RitzSpace(basis, edge=shape.edge, poisson_ratio=shape.nu, rim=shape.rim)
 
 
-@lru_cache(maxsize=256)
-def _unit_table(m: int, count: int, rim: bool, s: float | None, edge: str, nu: float,
-                ka_max: float, quadrature: Quadrature) -> RadiationTable:
-    """Radiation table of the unit-radius space with dimensionless tension s = T a^2 / D.
+@lru_cache(maxsize=512)
+def unit_table(shape: _Shape, ka_max: float, quadrature: Quadrature) -> RadiationTable:
+    """Radiation table of :func:`unit_space` up to k a = ka_max.
 
-    Depends on dimensionless geometry only, so it is computed once per process and reused
-    for every drum with the same shape of basis (cached).
+    Depends on dimensionless geometry only, so it is computed once per process and shared
+    by every drum whose head has the same shape of basis (cached).
     """
-    if s is None:
-        basis = ideal_basis(m=m, count=count, radius=1.0, tension=1.0, areal_density=1.0)
-    else:
-        basis = stiff_basis(m=m, count=count, radius=1.0, tension=s, areal_density=1.0,
-                            bending_stiffness=1.0, poisson_ratio=nu, edge=edge)
-    return RadiationTable(RitzSpace(basis, edge=edge, poisson_ratio=nu, rim=rim),
-                          k_max=ka_max, quadrature=quadrature)
+    return RadiationTable(unit_space(shape), k_max=ka_max, quadrature=quadrature)
 
 
-def head_table(head, space: RitzSpace, *, k_max: float, quadrature: Quadrature):
-    """A(k)/rho of a head's face: callable on arrays of k (1/m) -> (R, N, N) in m^3."""
-    a = space.radius
-    d = head.bending_stiffness
-    s = None if d <= 0 else float(head.tension * a * a / d)
-    ka_max = 4.0 * np.ceil(k_max * a / 4.0)  # buckets, so nearby drums share a table
-    table = _unit_table(space.m, space.modes, space.rim, s, head.edge,
-                        float(head.poisson_ratio), float(ka_max), quadrature)
-    return lambda k: a**3 * table(np.asarray(k) * a)
+@lru_cache(maxsize=512)
+def _unit_duct(shape: _Shape, count: int):
+    """Duct wavenumbers, norms and overlaps of the unit space (gamma a, /a^2, /a^2)."""
+    space = unit_space(shape)
+    gamma = duct_wavenumbers(m=shape.m, count=count, radius=1.0)
+    return gamma, duct_norms(m=shape.m, gamma=gamma, radius=1.0), np.real(space.transform(gamma))
 
 
-# ----------------------------------------------------------------------------- one order
-class OrderProblem:
-    """Z(omega) of one angular order: heads, faces, body.
+class HeadOrder:
+    """One head's Ritz space of order m at its physical size, tension and density.
+
+    Scales the cached unit space: M = sigma a^2 M^, K = (T / T^) K^, Phi(kappa) = a^2 Phi^(kappa a),
+    A(k) = rho a^3 A^(k a).
+    """
+
+    def __init__(self, head, *, m: int, count: int, rim: bool, radius: float | None = None):
+        self.head = head
+        self.radius = float(head.radius if radius is None else radius)
+        self.shape = _shape(head, m=m, count=count, rim=rim)
+        self.unit = unit_space(self.shape)
+        t_unit = 1.0 if self.shape.s is None else self.shape.s
+        a, sigma, tension = self.radius, head.areal_density, head.tension
+        self.M = sigma * a * a * self.unit.M
+        self.K = (tension / t_unit) * self.unit.K
+        self.omega = np.sqrt(tension / (sigma * a * a * t_unit)) * self.unit.basis.omega
+        self.size, self.modes = self.unit.size, self.unit.modes
+        self.m = m
+
+    def basis(self) -> RadialBasis:
+        """The physical in-vacuum basis (for Mode shapes)."""
+        h = self.head
+        if self.shape.s is None:
+            return ideal_basis(m=self.m, count=self.modes, radius=self.radius, tension=h.tension,
+                               areal_density=h.areal_density)
+        return stiff_basis(m=self.m, count=self.modes, radius=self.radius, tension=h.tension,
+                           areal_density=h.areal_density, bending_stiffness=h.bending_stiffness,
+                           poisson_ratio=h.poisson_ratio, edge=h.edge)
+
+    def table(self, ka_max: float, quadrature: Quadrature) -> RadiationTable:
+        return unit_table(self.shape, float(ka_max), quadrature)
+
+    def duct(self, count: int):
+        """(gamma in 1/m, norms in m^2, overlaps in m^2 of shape (size, Q))."""
+        g, nrm, v = _unit_duct(self.shape, count)
+        a = self.radius
+        return g / a, nrm * a * a, v * a * a
+
+
+# ----------------------------------------------------------------------------- stacked roots
+@dataclass
+class Order:
+    """One eigenproblem of order m: its head(s), open faces and body.
+
+    ``heads`` holds one HeadOrder, or two for a shell with unequal heads; ``cross_sign`` is
+    +1 (in-phase) or -1 (opposed) for a shell of two identical heads solved on one head's
+    space by symmetry, else None. ``depth`` is the body's depth in m (None: no body).
+    """
+
+    m: int
+    heads: list
+    faces: int
+    depth: float | None = None
+    cross_sign: int | None = None
+
+
+class RootSet:
+    """Every root of a drum solved at once.
+
+    Each order keeps its own matrices (shared by its roots, so the Chebyshev and duct sums
+    are small matrix products); the linear solves of all roots are batched together.
 
     Parameters
     ----------
-    spaces : list of RitzSpace
-        One head, or two (struck first) for a shell.
-    tables : list of callables
-        A(k)/rho per head (see :func:`head_table`).
-    faces : int
-        Open faces per head: 2 with no body, 1 with a kettle or shell.
-    duct : Duct or None
-        The body's interior.
+    orders : list of Order
+        All of the same Ritz-space size.
+    which : array_like of int
+        Order index of each root.
     air : (density, sound_speed)
-    cross_sign : +1, -1 or None
-        For a shell of two identical heads: solve the in-phase (+1) or opposed (-1) half on
-        one head's space (exact, by symmetry).
+        kg/m^3, m/s (outside and inside alike).
+    settings : Settings
+    k_max : sequence of float
+        Largest acoustic wavenumber needed per order, 1/m (sets the radiation tables' range).
     """
 
-    def __init__(self, spaces, tables, *, faces: int, duct, air, cross_sign=None):
-        self.spaces, self.tables, self.faces, self.duct = spaces, tables, faces, duct
+    def __init__(self, orders, which, *, air, settings: Settings, k_max):
         self.rho, self.c = air
-        self.cross_sign = cross_sign
-        heads = spaces if cross_sign is None else spaces[:1]
-        self.K = _block_diag([s.K for s in heads])
-        self.M = _block_diag([s.M for s in heads])
-        self.offsets = np.cumsum([0] + [s.size for s in heads])
-        self.size = int(self.offsets[-1])
+        self.orders = orders
+        self.which = np.asarray(which)
+        self.data = [self._order_data(o, km, settings) for o, km in zip(orders, k_max)]
+        sizes = {d["K"].shape[0] for d in self.data}
+        if len(sizes) != 1:
+            raise SolverError("internal: orders of different sizes in one root set")
+        self.size = sizes.pop()
+        self.has_duct = orders[0].depth is not None
+        self.M = np.stack([self.data[i]["M"] for i in self.which])
 
-    def pencil(self, omega, *, outer: float, body: float):
-        """(K + S, M + A) at complex omega (R,), each (R, size, size); outer, body scale the air."""
-        omega = np.asarray(omega, dtype=complex)
-        R = len(omega)
-        Keff = np.broadcast_to(self.K, (R, self.size, self.size)).astype(complex)
-        Meff = np.broadcast_to(self.M, (R, self.size, self.size)).astype(complex)
-        if outer:
-            k = omega / self.c
-            for i, tab in enumerate(self.tables[: len(self.offsets) - 1]):
-                lo, hi = self.offsets[i], self.offsets[i + 1]
-                Meff[:, lo:hi, lo:hi] += (outer * self.rho * self.faces) * tab(k)
-        if body and self.duct is not None:
-            S = self.duct.matrix(omega, density=body * self.rho, sound_speed=self.c)
-            if self.cross_sign is not None:
-                n = self.spaces[0].size
-                S = S[:, :n, :n] + self.cross_sign * S[:, :n, n:]
-            Keff += S
+    def _order_data(self, order, kmax, settings):
+        d = {"K": _block_diag([h.K for h in order.heads]),
+             "M": _block_diag([h.M for h in order.heads]),
+             "offsets": np.cumsum([0] + [h.size for h in order.heads]), "faces": []}
+        for h in order.heads:
+            ka = 4.0 * np.ceil(kmax * h.radius / 4.0)  # buckets: nearby drums share a table
+            t = h.table(ka, settings.quadrature)
+            n = h.size
+            d["faces"].append((t._x.reshape(t.degree, n * n), t._y.reshape(t.degree, n * n),
+                               t.t_max, order.faces * t.weight * h.radius**3, h.radius))
+        if order.depth is not None:
+            ducts = [h.duct(order.heads[0].size + settings.duct_modes) for h in order.heads]
+            d["gamma"], d["norms"] = ducts[0][0], ducts[0][1]
+            d["V"] = [v for (_, _, v) in ducts]
+            d["weight"] = 2 * np.pi if order.m == 0 else np.pi
+        return d
+
+    def _groups(self, idx):
+        w = self.which[idx]
+        for i in np.unique(w):
+            yield i, np.nonzero(w == i)[0]
+
+    def _duct_terms(self, d, depth, omega):
+        k = omega / self.c
+        mu = np.sqrt(d["gamma"][None, :] ** 2 - (k * k)[:, None])
+        x = mu * depth
+        e1 = np.exp(-x)
+        den = -np.expm1(-2.0 * x)
+        fcot, fcsc = -(1.0 + e1 * e1) / den / mu, -2.0 * e1 / den / mu
+        scale = (self.rho * d["weight"]) * (omega**2)[:, None] / d["norms"][None, :]
+        return scale * fcot, scale * fcsc
+
+    def _duct_weights(self, order, fcot, fcsc, i, j):
+        if order.cross_sign is not None:
+            return fcot + order.cross_sign * fcsc
+        return fcot if i == j else fcsc
+
+    def pencil(self, idx, omega, *, outer, body):
+        """(K + S, M + A) at complex omega for roots idx: each (len idx, size, size)."""
+        n = self.size
+        Keff = np.empty((len(idx), n, n), complex)
+        Meff = np.empty((len(idx), n, n), complex)
+        for i, sel in self._groups(idx):
+            d, order, w = self.data[i], self.orders[i], omega[sel]
+            Kg = np.broadcast_to(d["K"], (len(sel), n, n)).astype(complex)
+            Mg = np.broadcast_to(d["M"], (len(sel), n, n)).astype(complex)
+            k = w / self.c
+            if outer:
+                for h, (X, Y, tmax, scale, a) in enumerate(d["faces"]):
+                    lo, hi = d["offsets"][h], d["offsets"][h + 1]
+                    ka = k * a
+                    T = np.polynomial.chebyshev.chebvander(2.0 * ka * ka / tmax - 1.0, X.shape[0] - 1)
+                    A = _cmul(T, X) - 1j * ka[:, None] * _cmul(T, Y)
+                    Mg[:, lo:hi, lo:hi] += (outer * self.rho * scale) * A.reshape(len(sel), hi - lo, hi - lo)
+            if body and order.depth is not None:
+                fcot, fcsc = self._duct_terms(d, order.depth, w)
+                V, off = d["V"], d["offsets"]
+                for a_ in range(len(V)):
+                    for b_ in range(len(V)):
+                        f = body * self._duct_weights(order, fcot, fcsc, a_, b_)
+                        Kg[:, off[a_]:off[a_ + 1], off[b_]:off[b_ + 1]] += \
+                            np.einsum("nq,rq,kq->rnk", V[a_], f, V[b_], optimize=True)
+            Keff[sel], Meff[sel] = Kg, Mg
         return Keff, Meff
+
+    def rayleigh(self, idx, x, *, outer, body):
+        r"""The scalar :math:`r(\omega) = x^T Z(\omega) x` for vectors x (len idx, size).
+
+        Z is complex symmetric, so this bilinear Rayleigh functional is stationary at an
+        eigenvector: its root is second-order accurate in the vector's error. The returned
+        function is vectorised over all roots at once (no loop over orders).
+        """
+        R = len(idx)
+        P = max(f[0].shape[0] for d in self.data for f in d["faces"])
+        nheads = len(self.orders[0].heads)
+        kx, mx = np.empty(R, complex), np.empty(R, complex)
+        cx = np.zeros((nheads, R, P), complex)
+        cy = np.zeros((nheads, R, P), complex)
+        tmax, scale, rad = np.empty((3, nheads, R))
+        duct = body and self.has_duct
+        if duct:
+            Q = len(self.data[0]["gamma"])
+            gamma, norms, depth = np.empty((R, Q)), np.empty((R, Q)), np.empty(R)
+            dweight, cross = np.empty(R), np.zeros(R)
+            proj = np.zeros((nheads, nheads, R, Q), complex)
+        for i, sel in self._groups(idx):
+            d, order, xs = self.data[i], self.orders[i], x[sel]
+            kx[sel] = np.einsum("rn,nk,rk->r", xs, d["K"], xs)
+            mx[sel] = np.einsum("rn,nk,rk->r", xs, d["M"], xs)
+            for h, (X, Y, tm, sc, a) in enumerate(d["faces"]):
+                xh = xs[:, d["offsets"][h]:d["offsets"][h + 1]]
+                cx[h, sel, : X.shape[0]] = _quad(X, xh)
+                cy[h, sel, : X.shape[0]] = _quad(Y, xh)
+                tmax[h, sel], scale[h, sel], rad[h, sel] = tm, sc, a
+            if duct:
+                gamma[sel], norms[sel], depth[sel] = d["gamma"], d["norms"], order.depth
+                dweight[sel] = d["weight"]
+                ps = [xs[:, d["offsets"][h]:d["offsets"][h + 1]] @ v for h, v in enumerate(d["V"])]
+                for a_ in range(len(ps)):
+                    for b_ in range(len(ps)):
+                        proj[a_, b_, sel] = ps[a_] * ps[b_]
+                cross[sel] = order.cross_sign or 0.0
+        rho, c = self.rho, self.c
+
+        def r(omega):
+            k = omega / c
+            mass = mx.copy()
+            for h in range(nheads):
+                ka = k * rad[h]
+                T = np.polynomial.chebyshev.chebvander(2.0 * ka * ka / tmax[h] - 1.0, P - 1)
+                mass += (outer * rho) * scale[h] * (np.sum(T * cx[h], axis=1)
+                                                    - 1j * ka * np.sum(T * cy[h], axis=1))
+            val = kx - omega**2 * mass
+            if duct:
+                mu = np.sqrt(gamma**2 - (k * k)[:, None])
+                z = mu * depth[:, None]
+                e1 = np.exp(-z)
+                den = -np.expm1(-2.0 * z)
+                sc = (rho * dweight)[:, None] * (omega**2)[:, None] / norms / mu / den
+                fcot, fcsc = -sc * (1.0 + e1 * e1), -sc * 2.0 * e1
+                if nheads == 1:
+                    val = val + body * np.sum((fcot + cross[:, None] * fcsc) * proj[0, 0], axis=1)
+                else:
+                    for a_ in range(nheads):
+                        for b_ in range(nheads):
+                            f = fcot if a_ == b_ else fcsc
+                            val = val + body * np.sum(f * proj[a_, b_], axis=1)
+            return val
+
+        return r
+
+
+def _cmul(T, X):
+    """Complex (R, P) times real (P, n) without a complex copy of X."""
+    return T.real @ X + 1j * (T.imag @ X)
+
+
+def _quad(C, x):
+    """x^T C_p x for each root and p: C (P, n*n) real, x (R, n) -> (R, P)."""
+    P = C.shape[0]
+    n = x.shape[1]
+    Cx = C.reshape(P * n, n) @ x.T  # (P n, R)
+    return np.einsum("pnr,rn->rp", Cx.reshape(P, n, -1), x)
 
 
 def _block_diag(blocks):
@@ -362,106 +553,289 @@ def _block_diag(blocks):
 
 
 # ----------------------------------------------------------------------------- root tracking
-def _eigs(problem: OrderProblem, omega, vecs, *, outer, body):
-    """Tracked eigenvalue of (K+S) x = lam (M+A) x at each omega: (lam, vector, overlap, margin)."""
-    Keff, Meff = problem.pencil(omega, outer=outer, body=body)
-    lam, vec = np.linalg.eig(np.linalg.solve(Meff, Keff))
-    Mx = vecs @ problem.M  # (R, n): x^H M with x real or complex (M symmetric)
-    num = np.abs(np.einsum("rn,rnj->rj", np.conj(Mx), vec))
-    nv = np.sqrt(np.abs(np.einsum("rnj,nk,rkj->rj", np.conj(vec), problem.M, vec)))
-    nx = np.sqrt(np.abs(np.einsum("rn,rn->r", np.conj(Mx), vecs)))
-    ovl = num / (nv * nx[:, None])
-    order = np.argsort(-ovl, axis=1)
-    best = order[:, 0]
-    idx = np.arange(len(omega))
-    second = ovl[idx, order[:, 1]] if ovl.shape[1] > 1 else np.zeros(len(omega))
-    return lam[idx, best], vec[idx, :, best], ovl[idx, best], ovl[idx, best] - second
+def _secant(f, w0, *, tol, max_iter=40):
+    """Roots of the vectorised scalar function f near w0 (complex secant)."""
+    w0 = np.asarray(w0, dtype=complex)
+    w1 = w0 * (1.0 + 1e-5)
+    f0, f1 = f(w0), f(w1)
+    ok = np.zeros(len(w0), bool)
+    for _ in range(max_iter):
+        df = f1 - f0
+        zero = df == 0
+        step = np.where(zero, 0.0, f1 * (w1 - w0) / np.where(zero, 1.0, df))
+        w0, f0 = w1, f1
+        w1 = w1 - step
+        ok = np.abs(step) <= tol * np.abs(w1)
+        if np.all(ok):
+            break
+        f1 = f(w1)
+    return w1, ok
 
 
-def _sqrt_root(lam):
-    w = np.sqrt(lam.astype(complex))
-    return np.where(w.real < 0, -w, w)
+def _mnorm(x, M):
+    return np.sqrt(np.abs(np.einsum("rn,rnk,rk->r", np.conj(x), M, x)))
 
 
-def _solve_step(problem, omega, vecs, *, outer, body, settings):
-    """Secant iteration on lam(omega) - omega^2 from the given starts; returns
-    (omega, vecs, ok) with ok False where it did not converge or the tracking was ambiguous."""
-    lam0, v0, o0, g0m = _eigs(problem, omega, vecs, outer=outer, body=body)
-    w0, g0 = omega, lam0 - omega**2
-    w1 = _sqrt_root(lam0)
-    ok_track = (o0 > 0.7) & (g0m > 0.15)
-    R = len(omega)
-    done = np.zeros(R, bool)
-    w_out, v_out = w1.copy(), v0.copy()
-    active = np.arange(R)
-    for _ in range(settings.max_iter):
-        lam1, v1, o1, m1 = _eigs(problem, w1[active], v0[active], outer=outer, body=body)
-        ok_track[active] &= (o1 > 0.7) & (m1 > 0.15)
-        g1 = lam1 - w1[active] ** 2
-        dg = g1 - g0[active]
-        safe = np.where(dg == 0, 1.0, dg)
-        w2 = np.where(dg == 0, w1[active], w1[active] - g1 * (w1[active] - w0[active]) / safe)
-        conv = np.abs(w2 - w1[active]) <= settings.tol * np.abs(w1[active])
-        w_out[active], v_out[active] = w2, v1
-        w0[active], g0[active], v0[active] = w1[active], g1, v1
-        w1[active] = w2
+def _normalise(x, M):
+    """Scale vectors (R, n) to unit M-norm with the largest entry real and positive."""
+    big = x[np.arange(len(x)), np.argmax(np.abs(x), axis=1)]
+    return x * (np.abs(big) / big / _mnorm(x, M))[:, None]
+
+
+def _overlap(x, y, M):
+    """|x^H M y| / (|x|_M |y|_M), per row."""
+    num = np.abs(np.einsum("rn,rnk,rk->r", np.conj(x), M, y))
+    return num / (_mnorm(x, M) * _mnorm(y, M))
+
+
+def _solve_step(rs: RootSet, idx, omega, vecs, *, outer, body, settings):
+    """Rayleigh-functional iteration at one continuation point, for roots idx.
+
+    Alternates the scalar root of x^T Z(omega) x (secant) with an inverse-iteration update
+    x <- Z(omega)^{-1} M x. Returns (omega, vecs, ok); ok is False where it did not converge
+    in ``max_iter`` steps or the vector turned away from the previous step's (a jump to
+    another root).
+    """
+    x, w = vecs.copy(), omega.copy()
+    done = np.zeros(len(idx), bool)
+    active = np.arange(len(idx))
+    for it in range(settings.max_iter):
+        sub = idx[active]
+        f = rs.rayleigh(sub, x[active], outer=outer, body=body)
+        w_new, ok_s = _secant(f, w[active], tol=0.01 * settings.tol)
+        Keff, Meff = rs.pencil(sub, w_new, outer=outer, body=body)
+        rhs = np.einsum("rnk,rk->rn", rs.M[sub], x[active])[:, :, None]
+        y = np.linalg.solve(Keff - (w_new**2)[:, None, None] * Meff, rhs)[:, :, 0]
+        y = _normalise(y, rs.M[sub])
+        conv = ok_s & (np.abs(w_new - w[active]) <= settings.tol * np.abs(w_new)) & (it > 0)
+        w[active], x[active] = w_new, y
         done[active[conv]] = True
         active = active[~conv]
         if not len(active):
             break
-    return w_out, v_out, done & ok_track & np.isfinite(w_out)
+    ok = done & np.isfinite(w) & (_overlap(x, vecs, rs.M[idx]) > 0.8)
+    # two roots of one order on the same resonance: at least one jumped
+    for i in np.unique(rs.which[idx]):
+        sel = np.nonzero(rs.which[idx] == i)[0]
+        ww = w[sel]
+        same = np.abs(ww[:, None] - ww[None, :]) <= 1e-6 * np.abs(ww)[:, None]
+        np.fill_diagonal(same, False)
+        ok[sel[same.any(axis=1)]] = False
+    return w, x, ok
 
 
-def _advance(problem, state, roots, start, target, *, settings, depth=0):
-    """Move the given roots from parameter point start to target (outer, body), halving
-    the step where a root fails; raises SolverError when halving does not help."""
+def _advance(rs, state, roots, start, target, *, settings, depth=0, final=True):
+    """Move roots from parameter point start to target (outer, body), halving the step where
+    a root fails; raises SolverError when halving does not help. Points short of the end
+    of the path (final False) are solved to a loose tolerance only: they are starts."""
     omega, vecs = state
-    w, v, ok = _solve_step(problem, omega[roots], vecs[roots], outer=target[0], body=target[1],
-                           settings=settings)
+    step_settings = settings if final else replace(settings, tol=max(settings.tol, 1e-6))
+    w, v, ok = _solve_step(rs, roots, omega[roots], vecs[roots], outer=target[0],
+                           body=target[1], settings=step_settings)
     good = roots[ok]
     omega[good], vecs[good] = w[ok], v[ok]
     bad = roots[~ok]
     if len(bad):
-        if depth >= 8:
+        if depth >= 6:
+            ms = sorted({rs.orders[i].m for i in rs.which[bad]})
             raise SolverError(
-                f"coupled solve did not converge for order m = {problem.spaces[0].m} at air "
-                f"scale {target} (roots near {np.round(omega[bad].real / (2 * np.pi), 2)} Hz)")
+                f"coupled solve did not converge (orders m = {ms}, air scale {target}, roots "
+                f"near {np.round(omega[bad].real / (2 * np.pi), 2).tolist()} Hz)")
         mid = (0.5 * (start[0] + target[0]), 0.5 * (start[1] + target[1]))
-        _advance(problem, state, bad, start, mid, settings=settings, depth=depth + 1)
-        _advance(problem, state, bad, mid, target, settings=settings, depth=depth + 1)
+        _advance(rs, state, bad, start, mid, settings=settings, depth=depth + 1, final=False)
+        _advance(rs, state, bad, mid, target, settings=settings, depth=depth + 1, final=final)
 
 
-def track_roots(problem: OrderProblem, omega0, vectors0, *, settings: Settings = DEFAULT):
-    """Complex roots of Z(omega) continued from in-vacuum starts.
+def track_roots(rs: RootSet, omega0, vectors0, *, settings: Settings = DEFAULT):
+    """Complex roots continued from in-vacuum starts: outside air on, then the body's air.
 
     Parameters
     ----------
-    problem : OrderProblem
+    rs : RootSet
+        Stacked problem (after :meth:`RootSet.stack`).
     omega0 : array_like
         In-vacuum angular frequencies (rad/s), one per root.
     vectors0 : array_like
         In-vacuum Ritz vectors, (R, size).
+    settings : Settings
 
     Returns
     -------
     (numpy.ndarray, numpy.ndarray)
-        Complex omega (R,) in rad/s and Ritz vectors (R, size).
+        Complex omega (R,) in rad/s (Im omega > 0: decaying) and Ritz vectors (R, size).
+
+    Raises
+    ------
+    SolverError
+        If a root does not converge, or two roots end on the same resonance.
     """
     omega = np.array(omega0, dtype=complex)
-    vecs = np.array(vectors0, dtype=complex)
-    path = [(0.0, 0.0), (0.5, 0.0), (1.0, 0.0)]
-    if problem.duct is not None:
-        path += [(1.0, 0.25), (1.0, 0.5), (1.0, 0.75), (1.0, 1.0)]
+    vecs = _normalise(np.array(vectors0, dtype=complex), rs.M)
+    path = [(0.0, 0.0), (1.0, 0.0)]
+    if rs.has_duct:
+        path += [(1.0, 0.5), (1.0, 1.0)]
     roots = np.arange(len(omega))
     for start, target in zip(path[:-1], path[1:]):
-        _advance(problem, (omega, vecs), roots, start, target, settings=settings)
-    _check_distinct(problem, omega)
+        _advance(rs, (omega, vecs), roots, start, target, settings=settings,
+                 final=target == path[-1])
+    for i in np.unique(rs.which):
+        w = np.sort_complex(omega[rs.which == i])
+        same = np.abs(np.diff(w)) <= 1e-8 * np.abs(w[1:])
+        if np.any(same):
+            raise SolverError(f"two roots of order m = {rs.orders[i].m} converged to the same "
+                              f"resonance near {w[1:][same][0].real / (2 * np.pi):.2f} Hz")
     return omega, vecs
 
 
-def _check_distinct(problem, omega):
-    w = np.sort_complex(omega)
-    gaps = np.abs(np.diff(w)) <= 1e-8 * np.abs(w[1:])
-    if np.any(gaps):
-        raise SolverError(f"two roots of order m = {problem.spaces[0].m} converged to the same "
-                          f"resonance near {w[1:][gaps][0].real / (2 * np.pi):.2f} Hz")
+# ----------------------------------------------------------------------------- the drum
+def _identical(h1, h2) -> bool:
+    keys = ("radius", "tension", "areal_density", "poisson_ratio", "edge")
+    return all(getattr(h1, k) == getattr(h2, k) for k in keys) and \
+        h1.bending_stiffness == h2.bending_stiffness
+
+
+def _orders(drum, *, m_max: int, n_max: int, settings: Settings):
+    """The eigenproblems of a drum, and each root's start: (orders, which, omega0, x0, tags)."""
+    body, head, res = drum.body, drum.head, drum.resonant_head
+    count = n_max + settings.extra_modes
+    a = head.radius
+    kind = body.kind
+    if kind == "kettle":
+        if body.volume is None or not body.volume > 0:
+            raise InputError("body.volume", body.volume, "a kettle needs a volume > 0 (m^3)")
+        depth, faces = body.volume / (np.pi * a * a), 1
+    elif kind == "shell":
+        if body.depth is None or not body.depth > 0:
+            raise InputError("body.depth", body.depth, "a shell needs a depth > 0 (m)")
+        if res is None:
+            raise InputError("resonant_head", None, "a shell needs a [resonant_head]")
+        if abs(res.radius - a) > 1e-9 * a:
+            raise InputError("resonant_head.diameter", 2 * res.radius,
+                             f"must equal the struck head's diameter {2 * a:g} m for a shell")
+        depth, faces = body.depth, 1
+    elif kind == "none":
+        depth, faces = None, 2
+    else:
+        raise InputError("body.kind", kind, "must be one of: none, kettle, shell")
+    orders, which, omega0, x0, tags = [], [], [], [], []
+    for m in range(m_max + 1):
+        h1 = HeadOrder(head, m=m, count=count, rim=settings.rim)
+        if kind != "shell":
+            groups = [(Order(m, [h1], faces, depth), [(h1, 0, None)])]
+        elif _identical(head, res):
+            groups = [(Order(m, [h1], faces, depth, cross_sign=+1), [(h1, 0, "in-phase")]),
+                      (Order(m, [h1], faces, depth, cross_sign=-1), [(h1, 0, "opposed")])]
+        else:
+            h2 = HeadOrder(res, m=m, count=count, rim=settings.rim, radius=a)
+            groups = [(Order(m, [h1, h2], faces, depth), [(h1, 0, "struck"), (h2, h1.size, "resonant")])]
+        for order, starts in groups:
+            orders.append(order)
+            size = sum(h.size for h in order.heads)
+            for h, offset, tag in starts:
+                for n in range(n_max):
+                    which.append(len(orders) - 1)
+                    omega0.append(h.omega[n])
+                    x = np.zeros(size)
+                    x[offset + n] = 1.0
+                    x0.append(x)
+                    tags.append((m, n + 1, tag))
+    return orders, which, omega0, x0, tags
+
+
+def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT):
+    """Complex roots of a drum: (orders, which, omega, vectors, tags); see :func:`full_modes`."""
+    orders, which, omega0, x0, tags = _orders(drum, m_max=m_max, n_max=n_max, settings=settings)
+    air = (drum.air.density, drum.air.sound_speed)
+    k_max = [1.3 * max(h.omega[n_max - 1] for h in o.heads) / air[1] for o in orders]
+    rs = RootSet(orders, which, air=air, settings=settings, k_max=k_max)
+    omega, vecs = track_roots(rs, omega0, x0, settings=settings)
+    return orders, np.asarray(which), omega, vecs, tags
+
+
+def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT) -> list:
+    """Modes of a drum with air on its faces and in its body (``--physics full``).
+
+    Parameters
+    ----------
+    drum : membrane.drum.Drum
+        The drum (body ``none``: air on both faces; ``kettle``; ``shell`` with a resonant head).
+    m_max, n_max : int
+        Orders 0..m_max and n = 1..n_max per order (and per branch for a shell).
+    settings : Settings
+        Numerical settings; the defaults converge the frequencies to about 1e-5 or better.
+
+    Returns
+    -------
+    list of membrane.modes.Mode
+        (m, n) labels follow the in-vacuum mode each root was continued from; for a shell
+        each (m, n) appears once per branch, ``"in-phase"`` or ``"opposed"``. Decay is T60
+        from radiation damping only.
+    """
+    from ..modes import Mode
+
+    orders, which, omega, vecs, tags = solve_drum(drum, m_max=m_max, n_max=n_max,
+                                                  settings=settings)
+    bases = {}
+    out = []
+    pair = {}
+    for r, (m, n, tag) in enumerate(tags):
+        order = orders[which[r]]
+        h1 = order.heads[0]
+        if m not in bases:
+            bases[m] = h1.basis()
+        x = vecs[r]
+        coef = h1.unit.to_basis(x[: h1.size])
+        res_coef = res_basis = None
+        branch = head = None
+        if drum.body.kind == "shell":
+            if order.cross_sign is not None:
+                branch = tag
+                res_coef = coef * order.cross_sign
+            else:
+                h2 = order.heads[1]
+                res_coef = h2.unit.to_basis(x[h1.size:])
+                head = tag
+                pair.setdefault((m, n), []).append(len(out))
+            res_basis = bases[m] if order.cross_sign is not None else h2.basis()
+        scale = np.max(np.abs(coef)) if res_coef is None else max(np.max(np.abs(coef)),
+                                                                  np.max(np.abs(res_coef)))
+        w = complex(omega[r])
+        out.append(Mode(m=m, n=n, frequency=w.real / (2 * np.pi),
+                        decay=LN1000 / w.imag if w.imag > 0 else None,
+                        multiplicity=1 if m == 0 else 2, omega=w,
+                        coefficients=coef / scale, basis=bases[m], branch=branch, head=head,
+                        resonant_coefficients=None if res_coef is None else res_coef / scale,
+                        resonant_basis=res_basis))
+    for (m, n), (i, j) in pair.items():  # unequal heads: label the pair's branches
+        s = [_phase_score(out[k], n) for k in (i, j)]
+        hi, lo = (i, j) if s[0] >= s[1] else (j, i)
+        out[hi] = replace(out[hi], branch="in-phase")
+        out[lo] = replace(out[lo], branch="opposed")
+    return out
+
+
+def _phase_score(mode, n) -> float:
+    """Signed agreement of the two heads' outward displacement in the pair's own shape n."""
+    a, b = mode.coefficients[n - 1], mode.resonant_coefficients[n - 1]
+    den = abs(a) * abs(b)
+    return float(np.real(a * np.conj(b)) / den) if den > 0 else 0.0
+
+
+def model_notes(drum) -> list[str]:
+    """What the full model includes and leaves out, for output."""
+    notes = ["air loading from baffled radiation on each open face (an infinite rigid baffle "
+             "at the rim: approximate for a drum without one)",
+             "decay times (T60) are from sound radiation only; losses in the film, the rim "
+             "and the air are not modelled, so real partials die sooner"]
+    kind = drum.body.kind
+    if kind == "kettle":
+        notes.append("kettle modelled as a rigid cylinder of the bowl's volume under the head: "
+                     "the bowl's shape enters only through its volume")
+    elif kind == "shell":
+        notes.append("shell modelled as a rigid cylinder of the given depth with a head at each "
+                     "end, coupled through the enclosed air (in-phase / opposed pairs)")
+    else:
+        notes.append("no body: air on both faces of the head")
+    if drum.head.bending_stiffness > 0:
+        notes.append("bending stiffness of the film included (exact stiff in-vacuum modes)")
+    return notes
