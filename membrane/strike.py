@@ -236,7 +236,45 @@ def _stiffness_form(mode: Mode) -> complex:
     return total
 
 
-def _gain(mode: Mode, strike: Strike, listener: Listener, air) -> complex:
+def kettle_stiffness(mode: Mode, drum, omega: complex) -> tuple[complex, complex]:
+    r"""The kettle's uniform-pressure term :math:`c^T S c` and its omega-derivative.
+
+    DESIGN.md 3.4, the duct's q = 0 term (psi = 1, beta = k), as a generalised stiffness:
+    :math:`S = \rho c\,\omega \cot(\omega L / c)\, W^2 / (\pi a^2)` with
+    :math:`W = \int w\, dA = 2\pi \sum_n c_n \Phi_n(0)` and L = V / (pi a^2); at low
+    frequency it is the lumped :math:`\rho c^2 W^2 / V`. Zero for m >= 1 and other bodies.
+
+    Returns
+    -------
+    (complex, complex)
+        S in N/m and dS/domega in N s/m (per unit coefficient scale squared).
+    """
+    if mode.m != 0 or drum.body.kind != "kettle" or drum.body.volume is None:
+        return 0j, 0j
+    a, rho, c = mode.basis.radius, drum.air.density, drum.air.sound_speed
+    big_w = 2 * np.pi * complex(_coefficients(mode) @ mode.basis.transform(np.array([0.0]))[:, 0])
+    depth = drum.body.volume / (np.pi * a * a)
+    x = omega * depth / c
+    scale = rho * c * big_w ** 2 / (np.pi * a * a)
+    cot = np.cos(x) / np.sin(x)
+    return scale * omega * cot, scale * (cot - x / np.sin(x) ** 2)
+
+
+def effective_mass(mode: Mode, drum=None, physics: str = "full") -> complex:
+    r"""The effective modal mass :math:`-c^T Z'(\tilde\omega) c / (2\tilde\omega)` in kg.
+
+    With :math:`Z = K + S(\omega) - \omega^2 (M + A(\omega))`, S the kettle's
+    uniform-pressure term (:func:`kettle_stiffness`, full physics only) and A every
+    mass-like air load, the root condition :math:`c^T (K + S) c = \tilde\omega^2 c^T (M + A) c`
+    gives :math:`\mathcal M = (c^T K c + S)/\tilde\omega^2 - S'/(2\tilde\omega)`, neglecting
+    only :math:`dA/d\omega` (an approximation). In vacuum it is the plain modal mass.
+    """
+    w = _complex_omega(mode)
+    s, ds = kettle_stiffness(mode, drum, w) if (drum is not None and physics == "full") else (0j, 0j)
+    return (_stiffness_form(mode) + s) / (w * w) - ds / (2 * w)
+
+
+def _gain(mode: Mode, strike: Strike, listener: Listener, drum, physics: str) -> complex:
     """B_j divided by phi_j(r0): everything but the strike radius (module docstring)."""
     if mode.head == "resonant":  # an uncoupled resonant head is not struck
         return 0j
@@ -244,11 +282,12 @@ def _gain(mode: Mode, strike: Strike, listener: Listener, air) -> complex:
     if w.real <= 0:
         return 0j
     c = _coefficients(mode)
+    air = drum.air
     k = w / air.sound_speed
     phi_far = complex(c @ mode.basis.transform(np.array([k * math.sin(listener.angle)]))[:, 0])
     azimuth = strike.angle if listener.azimuth is None else listener.azimuth
-    q_per_shape = w * complex(pulse_spectrum(w, contact_time=strike.contact_time)) / \
-        _stiffness_form(mode)
+    q_per_shape = complex(pulse_spectrum(w, contact_time=strike.contact_time)) / \
+        (w * effective_mass(mode, drum, physics))
     return (-air.density * w * w * (1j ** mode.m) * math.cos(mode.m * (azimuth - strike.angle))
             * phi_far * q_per_shape / listener.distance)
 
@@ -286,8 +325,7 @@ def strike_partials(modeset: ModeSet, *, strike: Strike = Strike(),
     tuple of Partial
         In the ModeSet's order (by frequency).
     """
-    air = modeset.drum.air
-    pressures = [_gain(mode, strike, listener, air) * complex(_shape(mode, strike.at)[0])
+    pressures = [_gain(mode, strike, listener, modeset.drum, modeset.physics) * complex(_shape(mode, strike.at)[0])
                  for mode in modeset]
     levels = _levels(pressures)
     out = []
@@ -319,10 +357,9 @@ def pressure_across_radius(modeset: ModeSet, *, at, contact_time: float = MALLET
     """
     at = np.atleast_1d(np.asarray(at, dtype=float))
     probe = Strike(at=DEFAULT_AT, contact_time=contact_time, angle=angle)
-    air = modeset.drum.air
     rows = []
     for mode in modeset:
-        g = _gain(mode, probe, listener, air)
+        g = _gain(mode, probe, listener, modeset.drum, modeset.physics)
         rows.append(g * _shape(mode, at) if g != 0 else np.zeros(at.size, dtype=complex))
     return np.array(rows)
 
