@@ -52,9 +52,9 @@ def test_the_mode_table_is_text_with_the_solved_numbers(a4):
     for ratio in ("1.5933", "2.1355", "2.2954"):
         assert ratio in table
     # text and lines, no picture of a table: the page draws no image (the PDF "Do" operator);
-    # only the mode grid's colour fills are small images
+    # only the mode grid's six colour fills and its colour bar are small images
     draws = [page.get_contents().get_data().count(b" Do") for page in a4.pages]
-    assert draws[0] == draws[1] == draws[3] == 0 and draws[2] == 6
+    assert draws[0] == draws[1] == draws[3] == 0 and draws[2] == 6 + 1
 
 
 def test_first_page_describes_the_drum_and_cautions(a4):
