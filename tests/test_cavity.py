@@ -1,0 +1,109 @@
+"""Air in the body: duct terms, the lumped-kettle limit, the sign of the kettle's stiffness."""
+
+import numpy as np
+import pytest
+from scipy import special
+
+from membrane.drum import Air, Body, Drum, Head
+from membrane.physics.cavity import (duct_norms, duct_terms, duct_wavenumbers, kettle_matrix,
+                                     shell_matrices)
+from membrane.physics.coupled import RitzSpace, full_modes
+from membrane.physics.vacuum import ideal_basis
+
+GAMMA_P0 = 1.4 * 101325.0  # adiabatic bulk modulus of air, gamma P0 (Pa)
+
+
+def test_duct_wavenumbers_and_norms():
+    # zeros of J_m' (A&S Table 9.5 via SOURCES.md), plus the uniform mode for m = 0
+    assert np.allclose(duct_wavenumbers(m=1, count=3, radius=1.0), [1.8411837813, 5.3314427735,
+                                                                     8.5363163663])
+    g0 = duct_wavenumbers(m=0, count=3, radius=2.0)
+    assert np.allclose(g0, [0.0, 3.8317059702 / 2, 7.0155866698 / 2])
+    # norm against direct quadrature
+    r = np.linspace(0, 1, 20001)
+    for g in duct_wavenumbers(m=2, count=3, radius=1.0):
+        ref = np.trapezoid(special.jv(2, g * r) ** 2 * r, r)
+        assert duct_norms(m=2, gamma=np.array([g]), radius=1.0)[0] == pytest.approx(ref, rel=1e-7)
+
+
+def test_duct_terms_against_cot_csc_and_without_overflow():
+    k = np.array([3.0 + 0.05j, 11.0 + 0.2j])
+    gamma = np.array([0.0, 5.0, 9.0])
+    L = 0.4
+    fcot, fcsc = duct_terms(k, gamma, L)
+    beta = np.sqrt(k[:, None] ** 2 - gamma[None, :] ** 2)
+    assert np.allclose(fcot, 1 / np.tan(beta * L) / beta, rtol=1e-12)
+    assert np.allclose(fcsc, 1 / np.sin(beta * L) / beta, rtol=1e-12)
+    # deep evanescent terms: cot/beta -> -1/mu (added mass), csc/beta -> 0, no overflow
+    fcot, fcsc = duct_terms(np.array([1.0 + 0.1j]), np.array([1e4]), 10.0)
+    assert np.isfinite(fcot).all() and np.isfinite(fcsc).all()
+    assert fcot[0, 0] == pytest.approx(-1 / np.sqrt(1e8 - (1 + 0.1j) ** 2), rel=1e-14)
+    assert abs(fcsc[0, 0]) < 1e-300 or fcsc[0, 0] == 0
+
+
+def _space(m, count=10, radius=0.325):
+    return RitzSpace(ideal_basis(m=m, count=count, radius=radius, tension=3000.0,
+                                 areal_density=0.262))
+
+
+def test_kettle_is_minus_rho_c2_dV_over_V_at_low_frequency():
+    # adiabatic compression (Raichel Eq. 6.28 derivation): p = -rho c^2 dV / V, so the modal
+    # stiffness is rho c^2 / V * (2 pi Phi_n(0)) (2 pi Phi_n'(0)), positive: it stiffens
+    s = _space(0)
+    rho, c, L = 1.2041, 343.24, 0.5
+    V = np.pi * s.radius**2 * L
+    S = kettle_matrix(s, omega=1e-3 * c, density=rho, sound_speed=c, depth=L)
+    dv = 2 * np.pi * s.transform(np.array([0.0]))[:, 0]
+    assert np.allclose(S.real, rho * c**2 / V * np.outer(dv, dv), rtol=1e-5,
+                       atol=1e-9 * np.abs(S).max())
+
+
+def test_shell_blocks_symmetric_and_cross_term_vanishes_when_deep():
+    s = _space(1, 6)
+    S = shell_matrices(s, s, omega=800.0, density=1.2, sound_speed=343.0, depth=0.3)
+    assert np.allclose(S, S.T, atol=1e-12 * np.abs(S).max())
+    deep = shell_matrices(s, s, omega=800.0, density=1.2, sound_speed=343.0, depth=30.0)
+    n = s.size
+    assert np.abs(deep[:n, n:]).max() < 1e-12 * np.abs(deep[:n, :n]).max()  # evanescent for m = 1
+
+
+# Raichel, The Science and Applications of Acoustics, 2nd ed., 2006, Eq. 6.28 / Table 6.2
+# (READ; roots COMPUTED in SOURCES.md; B = gamma P0 pi a^4 / (T V), the a^4 correction;
+# the table's 5.87 at B = 10 is a misprint for 5.675)
+RAICHEL = [(1, [2.5437, 5.5323, 8.6569]), (2, [2.6736, 5.5451]), (5, [3.0197, 5.5878]),
+           (10, [3.4874, 5.6753, 8.6888])]
+
+
+@pytest.mark.parametrize("B, roots", RAICHEL)
+def test_lumped_kettle_limit(B, roots):
+    # outside air off and the kettle air taken to rho -> 0, c -> inf at fixed rho c^2 = gamma P0,
+    # through the full solver: the (0,n) roots satisfy J0(ka) = -B J2(ka)/(ka)^2
+    a, T, sigma = 0.325, 3000.0, 0.262
+    rho = 1e-9
+    air = Air(density=rho, sound_speed=np.sqrt(GAMMA_P0 / rho))
+    V = GAMMA_P0 * np.pi * a**4 / (T * B)
+    drum = Drum(head=Head(radius=a, tension=T, areal_density=sigma),
+                body=Body(kind="kettle", volume=V), air=air)
+    modes = [md for md in full_modes(drum, m_max=0, n_max=len(roots)) if md.m == 0]
+    ka = [md.omega.real * a * np.sqrt(sigma / T) for md in modes]
+    assert ka == pytest.approx(roots, abs=6e-5)
+
+
+def test_kettle_raises_the_axisymmetric_modes_only():
+    # the enclosed air must stiffen (0,n) (DESIGN.md 3.4); the (m >= 1, n) modes change no volume
+    # and, in the lumped limit, do not feel the kettle at all (Raichel 2006, as summarised in
+    # SOURCES.md: only the axisymmetric modes feel a lumped cavity)
+    a, T, sigma = 0.325, 3000.0, 0.262
+    rho = 1e-9
+    air = Air(density=rho, sound_speed=np.sqrt(GAMMA_P0 / rho))
+    head = Head(radius=a, tension=T, areal_density=sigma)
+    with_kettle = full_modes(Drum(head=head, body=Body("kettle", volume=0.15), air=air),
+                             m_max=2, n_max=2)
+    vac = {(m, n): special.jn_zeros(m, 2)[n - 1] / a * np.sqrt(T / sigma) for m in range(3)
+           for n in (1, 2)}
+    for md in with_kettle:
+        ratio = md.omega.real / vac[(md.m, md.n)]
+        if md.m == 0:
+            assert ratio > 1.01
+        else:
+            assert ratio == pytest.approx(1.0, abs=1e-8)
