@@ -34,7 +34,6 @@ import numpy as np
 import scipy.fft
 import scipy.io.wavfile
 import scipy.optimize
-import scipy.signal
 
 from membrane.errors import InputError, RecordingError
 
@@ -417,23 +416,25 @@ def _seeds(y: np.ndarray, *, rate: float, floor_db: float, min_frequency: float,
     band to look in; the band fit decides whether a partial is there.
     """
     found = {}
-    for length in sorted({y.size, min(y.size, int(0.3 * rate))}):
-        nfft = scipy.fft.next_fast_len(4 * length, real=True)
+    short = min(y.size, int(0.3 * rate))
+    for length in sorted({y.size, short}):
+        # pad the short window more: its peaks are broad and few bins cover them
+        nfft = scipy.fft.next_fast_len((4 if length == short else 2) * length, real=True)
         power = np.abs(scipy.fft.rfft(y[:length] * np.hanning(length), nfft)) ** 2
         freqs = np.arange(power.size) * rate / nfft
         level = 10 * np.log10(power + 1e-300)
-        noise = 10 * np.log10(_noise_per_bin(power) + 1e-300)
+        centres, med = _noise_blocks(power)
+        noise = 10 * np.log10(np.interp(np.arange(power.size), centres, med) + 1e-300)
         level[freqs < min_frequency] = -np.inf
         # a fast-dying partial has a low, broad peak: look 20 dB below the floor
         height = np.maximum(level.max() + floor_db - 20.0, noise + 8.0)
         spacing = max(1, nfft // length)  # one bin of the unpadded window
-        peaks, props = scipy.signal.find_peaks(level - height, height=0.0, distance=spacing,
-                                               prominence=3.0)
-        for k, h in zip(peaks, props["peak_heights"]):
+        for k in _peaks(level, height=height, spacing=spacing):
+            h = float(level[k] - height[k])
             found[float(freqs[k])] = max(h, found.get(float(freqs[k]), -np.inf))
         if length == y.size:
             # a Hann window keeps sum(w^2) = 3n/8 of white noise's power per bin
-            grid, noise_var = freqs, 10 ** (noise / 10) / (0.375 * length)
+            grid, noise_var = centres * rate / nfft, med / (0.375 * length)
     # strongest first, dropping any within 1.5 Hz of a stronger one (the same peak twice)
     seeds = []
     for f in sorted(found, key=lambda f: -found[f]):
@@ -444,13 +445,37 @@ def _seeds(y: np.ndarray, *, rate: float, floor_db: float, min_frequency: float,
     return sorted(seeds), grid, noise_var
 
 
-def _noise_per_bin(power: np.ndarray) -> np.ndarray:
-    """Noise power per FFT bin, from medians over blocks of bins (lines are sparse)."""
+def _peaks(level: np.ndarray, *, height: np.ndarray, spacing: int) -> list[int]:
+    """Local maxima of ``level`` [dB] above ``height``, standing 3 dB above both sides.
+
+    A maximum counts when the spectrum dips at least 3 dB below it on each side within two
+    bins of the unpadded window (``2 * spacing``); of maxima closer than ``spacing`` the
+    higher is kept.
+    """
+    mid = level[1:-1]
+    cand = np.nonzero((mid > level[:-2]) & (mid >= level[2:]) & (mid > height[1:-1]))[0] + 1
+    reach = 2 * spacing
+    kept: list[int] = []
+    for k in cand[np.argsort(-level[cand])]:
+        left = level[max(0, k - reach): k]
+        right = level[k + 1: k + 1 + reach]
+        if left.size and right.size and min(left.min(), right.min()) <= level[k] - 3.0 \
+                and max(left.min(), right.min()) <= level[k] - 3.0 \
+                and all(abs(k - j) >= spacing for j in kept):
+            kept.append(int(k))
+    return kept
+
+
+def _noise_blocks(power: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Noise power per FFT bin from medians over blocks of bins (lines are sparse).
+
+    Returns the blocks' centre bins and the mean noise power per bin there (the median of
+    an exponentially distributed power is ln 2 times its mean).
+    """
     block = max(64, power.size // 256)
     nb = max(1, power.size // block)
     med = np.median(power[: nb * block].reshape(nb, block), axis=1) / math.log(2.0)
-    centres = (np.arange(nb) + 0.5) * block
-    return np.interp(np.arange(power.size), centres, med)
+    return (np.arange(nb) + 0.5) * block, med
 
 
 def _band_fit(spectrum: np.ndarray, *, fc: float, df: float, nfft: int, duration: float,
@@ -539,25 +564,44 @@ def _amplitudes(z: np.ndarray, poles: np.ndarray) -> tuple[np.ndarray, np.ndarra
 
 
 def _polish(z: np.ndarray, poles: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """Variable-projection least squares on the poles, from the ESPRIT estimate."""
+    """Nonlinear least squares on poles and amplitudes together, from the ESPRIT estimate.
+
+    Parameters per component: ln(pole) = -r dt + i w dt and the complex amplitude c; the
+    model z_t = sum c exp(t ln(pole)) has the analytic Jacobian used here, so a
+    Levenberg-Marquardt run costs a few evaluations of the basis.
+    """
     poles = poles[np.abs(poles) < 1.05]  # drop growing components: noise or transient
     if poles.size == 0:
         return poles, np.zeros(0, dtype=complex)
+    k = poles.size
+    t = np.arange(z.size, dtype=float)[:, None]
+    c0 = _amplitudes(z, poles)[0]
     p0 = np.log(poles)
 
+    def unpack(v):
+        return v[:k] + 1j * v[k:2 * k], v[2 * k:3 * k] + 1j * v[3 * k:]
+
     def residual(v):
-        lam = np.exp(v[: poles.size] + 1j * v[poles.size:])
-        res = _amplitudes(z, lam)[1]
+        s, c = unpack(v)
+        res = np.exp(t * s[None, :]) @ c - z
         return np.concatenate([res.real, res.imag])
 
-    v0 = np.concatenate([p0.real, p0.imag])
+    def jacobian(v):
+        s, c = unpack(v)
+        e = np.exp(t * s[None, :])
+        d_s = t * e * c[None, :]  # d model / d ln(pole), complex-analytic
+        cols = np.concatenate([d_s, 1j * d_s, e, 1j * e], axis=1)
+        return np.concatenate([cols.real, cols.imag], axis=0)
+
+    v0 = np.concatenate([p0.real, p0.imag, c0.real, c0.imag])
     try:
-        sol = scipy.optimize.least_squares(residual, v0, method="lm", xtol=1e-10, max_nfev=200)
+        sol = scipy.optimize.least_squares(residual, v0, jac=jacobian, method="lm",
+                                           xtol=1e-10, ftol=1e-12, max_nfev=50)
         v = sol.x if sol.cost <= 0.5 * np.sum(residual(v0) ** 2) else v0
     except (ValueError, np.linalg.LinAlgError):
         v = v0
-    lam = np.exp(v[: poles.size] + 1j * v[poles.size:])
-    return lam, _amplitudes(z, lam)[0]
+    s, c = unpack(v)
+    return np.exp(s), c
 
 
 def decay_spectrum(recording: Recording, analysis: Analysis) -> tuple[np.ndarray, np.ndarray]:

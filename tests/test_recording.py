@@ -242,3 +242,13 @@ def test_listen_json_and_clip_warning(tmp_path):
     assert freqs == sorted(freqs) and min(abs(f - 150.0) for f in freqs) < 0.05
     assert set(data["partials"][0]) >= {"frequency_hz", "level_db", "decay_s"}
     assert max(p["level_db"] for p in data["partials"]) == 0.0
+
+
+@pytest.mark.parametrize("fmt, head", [("table", "T60 (s)"), ("markdown", "| f (Hz) |"),
+                                       ("csv", "frequency_hz,level_db,decay_s")])
+def test_listen_other_formats(tmp_path, fmt, head):
+    path = tmp_path / "tap.wav"
+    scipy.io.wavfile.write(path, RATE, synth(PARTIALS[:3], seed=13, duration=1.0).astype(np.float32))
+    result = CliRunner().invoke(cli(), ["listen", str(path), "--format", fmt, "--channel", "1"])
+    assert result.exit_code == 0, result.output
+    assert head in result.stdout and "150.8" in result.stdout

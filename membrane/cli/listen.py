@@ -48,7 +48,7 @@ def listen(
              "head's tension.")] = None,
     physics: Annotated[Physics, typer.Option(
         help="Model for the labels (with --drum): ideal, stiff, or full (air and body).")
-    ] = Physics.full,
+    ] = Physics.stiff,
     channel: Annotated[str, typer.Option(
         help="mix (mean of the channels), left, right, or a channel number from 1.")] = "mix",
     floor: Annotated[float, typer.Option(
@@ -228,24 +228,34 @@ def _draw(path: Path, spectrum, analysis, ident, name: str) -> None:
     ax.plot([p.frequency for p in analysis.partials], at, "o", ms=5, color="tab:red",
             label="partials found (damped-sinusoid fit)")
     if ident is not None:
-        for i, mt in enumerate(ident.matches):
+        seen, last = set(), -np.inf
+        row = 0
+        span = top * 1.25 + 20
+        for mt in ident.matches:
+            if (mt.m, mt.n) in seen:
+                continue  # the other half of a split: one line, one label
+            seen.add((mt.m, mt.n))
             ax.axvline(mt.model_frequency, color="tab:blue", lw=0.8, ls="--",
-                       label="model modes at the fitted tension" if i == 0 else None)
-            ax.annotate(f"({mt.m},{mt.n})", (mt.model_frequency, 2.0), rotation=90, fontsize=8,
-                        ha="center", va="bottom", color="tab:blue")
+                       label="model modes at the fitted tension" if len(seen) == 1 else None)
+            # labels closer than 2 % of the axis take turns on three rows
+            row = (row + 1) % 3 if mt.model_frequency - last < 0.02 * span else 0
+            last = mt.model_frequency
+            ax.annotate(f"({mt.m},{mt.n})", (mt.model_frequency, 3.0 + 7.0 * row), fontsize=7,
+                        ha="center", va="bottom", color="tab:blue",
+                        bbox=dict(boxstyle="round,pad=0.1", fc="white", ec="none", alpha=0.8))
         for sp in ident.splits:
-            ax.annotate(f"split, beat {sp.beat_hz:.2f} Hz", (sp.high.frequency, -8), fontsize=8,
-                        color="tab:red")
+            ax.annotate(f"({sp.m},{sp.n}) split: beat {sp.beat_hz:.2f} Hz", (sp.high.frequency, 0.0),
+                        xytext=(8, -14), textcoords="offset points", fontsize=8, color="tab:red")
         title = f"{name}: fitted tension {ident.tension:.0f} N/m, rms {ident.rms_cents:.1f} cents"
     else:
         title = f"{name}: {len(analysis.partials)} partials"
     floor = max(level[keep].min(), -100.0)
-    ax.set_ylim(floor, 12)
+    ax.set_ylim(floor, 26)
     ax.set_xlim(0, freqs[keep][-1])
     ax.set_xlabel("frequency (Hz)")
     ax.set_ylabel("level (dB re highest peak)")
     ax.set_title(title)
-    ax.legend(loc="upper right", fontsize=8)
+    ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.12), ncol=3, fontsize=8, frameon=False)
     ax.grid(alpha=0.3)
     fig.tight_layout()
     fig.savefig(path, format="png")
