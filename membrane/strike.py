@@ -16,20 +16,24 @@ a shorter contact (harder mallet) reaches higher partials.
 m(\theta-\theta_0)`, :math:`\phi_j = \sum_n c_{jn}\phi_n` over the in-vacuum basis. Of a
 degenerate pair only the member :math:`\cos m(\theta-\theta_0)` is excited (the other has a
 nodal diameter through the strike point). The coupled problem is
-:math:`Z(\omega) c = [K - \omega^2 (M + A(\omega))] c = 0` with :math:`K_{nn} = \omega_n^2
-M_n` (:attr:`RadialBasis.modal_mass` :math:`M_n`) and A the air (and body) loading. Its modal
-expansion near the complex root :math:`\tilde\omega_j`, taking A at :math:`\tilde\omega_j`
-(neglecting :math:`dA/d\omega`, an approximation), has the effective modal mass
+:math:`Z(\omega) c = [K + S(\omega) - \omega^2 (M + A(\omega))] c = 0` with
+:math:`K_{nn} = \omega_n^2 M_n` (:attr:`RadialBasis.modal_mass` :math:`M_n`), S the body's
+plane-wave air stiffness (:func:`body_stiffness`) and A every mass-like air load (radiation,
+the body's evanescent terms). The response to a generalised force g near the complex root
+:math:`\tilde\omega_j` is :math:`c\,(c^T g) / (c^T Z'(\tilde\omega_j) c\,(\omega -
+\tilde\omega_j))` (unconjugated products: the loaded problem is complex symmetric), which
+defines the effective modal mass :math:`\mathcal M_j = -c^T Z' c / (2\tilde\omega_j)`. The
+root condition :math:`c^T (M + A) c = c^T (K + S) c / \tilde\omega_j^2` leaves
 
-.. math:: \mathcal M_j = c^T (M + A) c = c^T K c / \tilde\omega_j^2
+.. math:: \mathcal M_j = \frac{c^T K c + S(\tilde\omega_j)}{\tilde\omega_j^2}
+          - \frac{S'(\tilde\omega_j)}{2\tilde\omega_j}
 
-(the unconjugated product: the loaded problem is complex symmetric), so only the basis and
-the frequency are needed, and in vacuum it is the plain modal mass. Closing the inverse
-Fourier integral around the pole gives, after the pulse, the modal coordinate
+neglecting only :math:`dA/d\omega` (an approximation): only the basis, the frequency and the
+body's plane-wave term are needed, and in vacuum it is the plain modal mass. Closing the
+inverse Fourier integral around the pole gives, after the pulse, the modal coordinate
 
 .. math:: q_j(t) = \mathrm{Im}[Q_j e^{i\tilde\omega_j t}],\qquad
-          Q_j = \phi_j(r_0) \hat F(\tilde\omega_j) / (\tilde\omega_j \mathcal M_j)
-              = \tilde\omega_j \phi_j(r_0) \hat F(\tilde\omega_j) / (c^T K c),
+          Q_j = \phi_j(r_0) \hat F(\tilde\omega_j) / (\tilde\omega_j \mathcal M_j),
 
 which for an undamped oscillator is the familiar :math:`\phi(r_0)|\hat F|/(M\omega)`.
 The amplitude is independent of how the coefficients are scaled.
@@ -236,48 +240,72 @@ def _stiffness_form(mode: Mode) -> complex:
     return total
 
 
-def kettle_stiffness(mode: Mode, drum, omega: complex) -> tuple[complex, complex]:
-    r"""The kettle's uniform-pressure term :math:`c^T S c` and its omega-derivative.
+def _volume_displacement(coef, basis) -> complex:
+    """W = integral of w over the head = 2 pi sum_n c_n Phi_n(0), m^2 per unit coefficient."""
+    return 2 * np.pi * complex(np.asarray(coef, dtype=complex) @ basis.transform(np.array([0.0]))[:, 0])
 
-    DESIGN.md 3.4, the duct's q = 0 term (psi = 1, beta = k), as a generalised stiffness:
-    :math:`S = \rho c\,\omega \cot(\omega L / c)\, W^2 / (\pi a^2)` with
-    :math:`W = \int w\, dA = 2\pi \sum_n c_n \Phi_n(0)` and L = V / (pi a^2); at low
-    frequency it is the lumped :math:`\rho c^2 W^2 / V`. Zero for m >= 1 and other bodies.
+
+def body_stiffness(mode: Mode, drum, omega: complex) -> tuple[complex, complex]:
+    r"""The body's uniform-pressure term :math:`c^T S c` and its omega-derivative.
+
+    DESIGN.md 3.4, the duct's plane-wave (q = 0) term, as a generalised stiffness. For a
+    duct of length L, the struck head's volume displacement :math:`W_1 = \int w\, dA =
+    2\pi \sum_n c_n \Phi_n(0)` and, for a shell, the resonant head's :math:`W_2` (both
+    outward), the plane-wave pressure on the heads gives
+
+    .. math:: S = \frac{\rho c\,\omega}{\pi a^2}
+              \left[\cot x\,(W_1^2 + W_2^2) + 2 \csc x\, W_1 W_2\right], \quad x = \omega L / c,
+
+    with L = V / (pi a^2) and :math:`W_2 = 0` for a kettle (at low frequency
+    :math:`\rho c^2 W_1^2 / V`, the lumped bowl). Zero for m >= 1 (no plane wave) and a
+    head without a body. The duct's higher terms are mass-like and left inside A.
 
     Returns
     -------
     (complex, complex)
         S in N/m and dS/domega in N s/m (per unit coefficient scale squared).
     """
-    if mode.m != 0 or drum.body.kind != "kettle" or drum.body.volume is None:
+    body = drum.body
+    if mode.m != 0 or body.kind not in ("kettle", "shell"):
         return 0j, 0j
     a, rho, c = mode.basis.radius, drum.air.density, drum.air.sound_speed
-    big_w = 2 * np.pi * complex(_coefficients(mode) @ mode.basis.transform(np.array([0.0]))[:, 0])
-    depth = drum.body.volume / (np.pi * a * a)
-    x = omega * depth / c
-    scale = rho * c * big_w ** 2 / (np.pi * a * a)
-    cot = np.cos(x) / np.sin(x)
-    return scale * omega * cot, scale * (cot - x / np.sin(x) ** 2)
+    w1 = _volume_displacement(mode.coefficients, mode.basis)
+    w2 = 0j
+    if body.kind == "kettle":
+        length = body.volume / (np.pi * a * a)
+    else:
+        length = body.depth
+        if mode.resonant_coefficients is None:  # an uncoupled head: no plane wave through it
+            return 0j, 0j
+        w2 = _volume_displacement(mode.resonant_coefficients, mode.resonant_basis)
+    x = omega * length / c
+    scale = rho * c / (np.pi * a * a)
+    cot, csc = np.cos(x) / np.sin(x), 1 / np.sin(x)
+    self_, cross = w1 * w1 + w2 * w2, 2 * w1 * w2
+    s_value = scale * omega * (cot * self_ + csc * cross)
+    # d/dw [w cot x] = cot x - x csc^2 x;  d/dw [w csc x] = csc x - x csc x cot x
+    ds = scale * ((cot - x * csc * csc) * self_ + (csc - x * csc * cot) * cross)
+    return s_value, ds
 
 
 def effective_mass(mode: Mode, drum=None, physics: str = "full") -> complex:
     r"""The effective modal mass :math:`-c^T Z'(\tilde\omega) c / (2\tilde\omega)` in kg.
 
-    With :math:`Z = K + S(\omega) - \omega^2 (M + A(\omega))`, S the kettle's
-    uniform-pressure term (:func:`kettle_stiffness`, full physics only) and A every
+    With :math:`Z = K + S(\omega) - \omega^2 (M + A(\omega))`, S the body's
+    uniform-pressure term (:func:`body_stiffness`, full physics only) and A every
     mass-like air load, the root condition :math:`c^T (K + S) c = \tilde\omega^2 c^T (M + A) c`
     gives :math:`\mathcal M = (c^T K c + S)/\tilde\omega^2 - S'/(2\tilde\omega)`, neglecting
     only :math:`dA/d\omega` (an approximation). In vacuum it is the plain modal mass.
     """
     w = _complex_omega(mode)
-    s, ds = kettle_stiffness(mode, drum, w) if (drum is not None and physics == "full") else (0j, 0j)
+    s, ds = body_stiffness(mode, drum, w) if (drum is not None and physics == "full") else (0j, 0j)
     return (_stiffness_form(mode) + s) / (w * w) - ds / (2 * w)
 
 
 def _gain(mode: Mode, strike: Strike, listener: Listener, drum, physics: str) -> complex:
     """B_j divided by phi_j(r0): everything but the strike radius (module docstring)."""
-    if mode.head == "resonant":  # an uncoupled resonant head is not struck
-        return 0j
+    if mode.head == "resonant" and mode.resonant_coefficients is None:
+        return 0j  # a resonant head's own mode in vacuum: not coupled to the struck head
     w = _complex_omega(mode)
     if w.real <= 0:
         return 0j
@@ -330,7 +358,7 @@ def strike_partials(modeset: ModeSet, *, strike: Strike = Strike(),
     levels = _levels(pressures)
     out = []
     for mode, p, lev in zip(modeset, pressures, levels):
-        shape = 0.0 if mode.head == "resonant" else \
+        shape = 0.0 if (mode.head == "resonant" and mode.resonant_coefficients is None) else \
             float(mode.radial_shape(np.array([strike.at * mode.basis.radius]))[0])
         out.append(Partial(mode=mode, frequency=mode.frequency, decay=mode.decay, pressure=p,
                            shape_at_strike=shape, level_db=float(lev)))

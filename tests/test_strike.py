@@ -393,3 +393,44 @@ def test_cli_plot_of_levels_against_strike_radius(tmp_path):
     assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n" and json.loads(result.stdout)["plot"] == str(png)
     assert run(*STIFF, "--plot", str(png)).exit_code == 2
     assert run(*STIFF, "--plot", str(tmp_path / "levels.gif")).exit_code == 2
+
+
+def test_effective_mass_of_a_shell_mode_is_the_residue_of_the_two_head_dynamic_stiffness():
+    """Two ideal (0,1) shapes, one per head of a shell, coupled only by the duct's plane wave
+    (DESIGN.md 3.4: cot(kL) self and csc(kL) cross terms, outward displacements): a 2 x 2
+    Z(w); at its lower root the effective mass must be -c^T Z' c / (2 w), c the null vector."""
+    from membrane.modes import Mode
+    from membrane.physics.vacuum import ideal_basis
+    from membrane.strike import effective_mass
+
+    snare = load_drum("snare")
+    heads = (snare.head, snare.resonant_head)
+    rho, c, depth = snare.air.density, snare.air.sound_speed, snare.body.depth
+    a = heads[0].radius
+    bases = [ideal_basis(m=0, count=1, radius=a, tension=h.tension, areal_density=h.areal_density)
+             for h in heads]
+    mass = np.array([b.modal_mass[0] for b in bases])
+    stiff_k = mass * np.array([b.omega[0] for b in bases]) ** 2
+    big_w = np.array([2 * np.pi * scipy.integrate.quad(lambda r: scipy.special.j0(b.k1[0] * r) * r, 0, a)[0]
+                      for b in bases])
+
+    def z(w):
+        x = w * depth / c
+        s = rho * c * w / (np.pi * a * a) * np.array(
+            [[big_w[0] ** 2 / math.tan(x), big_w[0] * big_w[1] / math.sin(x)],
+             [big_w[0] * big_w[1] / math.sin(x), big_w[1] ** 2 / math.tan(x)]])
+        return np.diag(stiff_k) + s - w * w * np.diag(mass)
+
+    lo = 2 * np.pi * 20.0
+    grid = np.linspace(lo, 0.99 * np.pi * c / depth, 4000)
+    det = np.array([np.linalg.det(z(w)) for w in grid])
+    i = int(np.argmax(np.sign(det[:-1]) != np.sign(det[1:])))
+    root = scipy.optimize.brentq(lambda w: np.linalg.det(z(w)), grid[i], grid[i + 1], xtol=1e-12)
+    vals, vecs = np.linalg.eigh(z(root))
+    vec = vecs[:, np.argmin(np.abs(vals))]
+    mode = Mode(m=0, n=1, frequency=root / (2 * np.pi), decay=None, multiplicity=1, omega=root,
+                coefficients=np.array([vec[0]]), basis=bases[0],
+                resonant_coefficients=np.array([vec[1]]), resonant_basis=bases[1])
+    h = 1e-5 * root
+    residue = -vec @ ((z(root + h) - z(root - h)) / (2 * h)) @ vec / (2 * root)
+    assert effective_mass(mode, snare, "full") == pytest.approx(residue, rel=1e-6)
