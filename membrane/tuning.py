@@ -158,8 +158,10 @@ class Tuning:
         What sqrt(T) scaling of the first target would suggest, N/m (for comparison).
     targets : tuple of Target
         Each target with its predicted frequency at the suggestion.
-    modes : ModeSet
-        All modes solved at the suggestion (the new ratio table).
+    drum : Drum
+        The drum at the suggestion.
+    modes : ModeSet or None
+        All modes solved at the suggestion (the new ratio table), if asked for.
     free, current_value, value : str, float or None
         The freed parameter ("areal-density" kg/m^2 or "volume" m^3), before and after.
     together : bool
@@ -174,7 +176,8 @@ class Tuning:
     tension: float
     naive_tension: float
     targets: tuple
-    modes: ModeSet
+    drum: Drum
+    modes: ModeSet | None
     free: str | None
     current_value: float | None
     value: float | None
@@ -190,7 +193,7 @@ class Tuning:
     @property
     def stress(self) -> float | None:
         """Film stress at the suggestion, Pa (None without a thickness)."""
-        return stress(self.modes.drum.head, self.tension)
+        return stress(self.drum.head, self.tension)
 
     @property
     def rms_cents(self) -> float:
@@ -199,35 +202,45 @@ class Tuning:
 
 
 # ------------------------------------------------------------------ single target: a root
-def _root_log_tension(g, *, x0: float, g0: float, lo: float, hi: float) -> tuple[float, float, float]:
-    """Bracket and solve g(x) = 0 in x = ln T, starting from (x0, g0) and sqrt(T) scaling.
+def _root_log_tension(g, *, x0: float, g0: float, lo: float, hi: float) -> float:
+    """Solve g(x) = 0 in x = ln T on [lo, hi], from (x0, g0) and the sqrt(T) guess.
 
     g is ln(f / f*), increasing in x with slope about 1/2 (less with stiffness or a
-    kettle's air spring, a little more with air mass). Returns the root and the bracket
-    ends' values of g for the caller's error messages when there is no root.
+    kettle's air spring, a little more with air mass), smooth and nearly straight, so
+    secant steps converge in a few solves; a bracket is kept once the sign changes
+    and a step leaving it is replaced by bisection. Each evaluation is a model solve,
+    so the count matters more than the arithmetic. Returns NaN when g keeps its sign
+    up to a bound (no tension in range reaches the target).
     """
-    x1 = min(max(x0 - 2.0 * g0, lo), hi)  # sqrt(T) scaling: the first guess only
-    a, ga, b, gb = x0, g0, x1, g(x1)
-    while ga * gb > 0:
-        if b in (lo, hi):
-            return math.nan, ga, gb
-        slope = (gb - ga) / (b - a) if b != a else 0.5
-        slope = min(max(slope, 0.05), 1.0)  # keep the extrapolation sane
-        step = -gb / slope * 1.5
-        a, ga = b, gb
-        b = min(max(b + step, lo), hi)
-        gb = g(b)
-    if gb == 0:
-        return b, ga, gb
-    if ga == 0:
-        return a, ga, gb
-    tol = TOLERANCE_CENTS / 1200 * math.log(2) / 4  # in ln T (slope about 1/2)
-    x = optimize.brentq(g, min(a, b), max(a, b), xtol=tol, rtol=4 * np.finfo(float).eps)
-    return x, ga, gb
+    close = TOLERANCE_CENTS / 1200 * math.log(2)  # |g| below this is on pitch
+    if abs(g0) < close:
+        return x0
+    below, above = (x0, math.inf) if g0 < 0 else (-math.inf, x0)  # the bracket so far
+    xa, ga = x0, g0
+    xb = min(max(x0 - 2.0 * g0, lo), hi)  # sqrt(T) scaling: the first guess only
+    for _ in range(60):
+        gb = g(xb)
+        if abs(gb) < close:
+            return xb
+        if gb < 0:
+            below = max(below, xb)
+        else:
+            above = min(above, xb)
+        slope = (gb - ga) / (xb - xa) if xb != xa else 0.5
+        x = xb - gb / min(max(slope, 0.02), 2.0)  # keep the extrapolation sane
+        if math.isfinite(below) and math.isfinite(above):
+            if not below < x < above:
+                x = 0.5 * (below + above)
+        elif x <= lo or x >= hi:
+            if xb in (lo, hi):
+                return math.nan  # already at the bound, still on the same side
+            x = min(max(x, lo), hi)
+        xa, ga, xb = xb, gb, x
+    raise SolverError(f"the tension search did not settle in 60 solves (last {math.exp(xb):.6g} N/m)")
 
 
 def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None = None,
-                n_max: int = 3, m_max: int = 6) -> Tuning:
+                n_max: int = 3, m_max: int = 6, table: bool = True) -> Tuning:
     """The tension (and optionally one more parameter) that puts modes on target pitches.
 
     Parameters
@@ -243,7 +256,10 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
         (kg/m^2) or the kettle's volume (m^3).
     n_max, m_max : int
         Orders of the mode table reported at the suggestion (the search solves only
-        the orders the targets need).
+        the orders the targets need, with the same n_max, hence the same basis).
+    table : bool
+        Solve the whole mode table at the suggestion (one more solve); without it
+        ``modes`` is None and the predictions come from the search's last solve.
 
     Returns
     -------
@@ -278,8 +294,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     if len(targets) == 1 and free is None:
         (m, n), hz = targets[0]
         g = lambda x: float(np.log(model.frequencies(math.exp(x))[0] / hz))  # noqa: E731
-        x, g_lo_end, g_hi_end = _root_log_tension(g, x0=math.log(t_now), g0=float(np.log(f_now[0] / hz)),
-                                                  lo=lo, hi=hi)
+        x = _root_log_tension(g, x0=math.log(t_now), g0=float(np.log(f_now[0] / hz)), lo=lo, hi=hi)
         if math.isnan(x):
             _no_root(drum, (m, n), hz, model, lo, hi)
         tension = math.exp(x)
@@ -303,19 +318,22 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
         tension = math.exp(fit.x[0])
         value = math.exp(fit.x[1]) if free else None
 
-    final = solve(model.variant(tension, free, value), physics,
-                  m_max=max(m_max, model.m_max), n_max=model.n_max)
-    found = [Target(m=m, n=n, target_hz=hz, current_hz=float(f0),
-                    predicted_hz=final.find(m, n).frequency)
-             for ((m, n), hz), f0 in zip(targets, f_now)]
+    suggested = model.variant(tension, free, value)
+    if table:
+        final = solve(suggested, physics, m_max=max(m_max, model.m_max), n_max=model.n_max)
+        predicted = [final.find(m, n).frequency for m, n in modes]
+    else:  # the search's own solve at the suggestion (same orders and basis)
+        final, predicted = None, model.frequencies(tension, free, value)
+    found = [Target(m=m, n=n, target_hz=hz, current_hz=float(f0), predicted_hz=float(f1))
+             for ((m, n), hz), f0, f1 in zip(targets, f_now, predicted)]
     together = all(abs(t.residual_cents) <= TOGETHER_CENTS for t in found)
     if len(found) == 1 and free is None and not together:
         raise SolverError(f"the tension search ended {found[0].residual_cents:+.2f} cents from the target "
                           f"for mode ({m},{n}); the mode may change character near this tension")
-    warnings = safety_warnings(final.drum.head, tension)
+    warnings = safety_warnings(suggested.head, tension)
     return Tuning(current_tension=t_now, tension=tension, naive_tension=naive, targets=tuple(found),
-                  modes=final, free=free, current_value=current_value, value=value,
-                  together=together, warnings=tuple(warnings), solves=model.solves + 1)
+                  drum=suggested, modes=final, free=free, current_value=current_value, value=value,
+                  together=together, warnings=tuple(warnings), solves=model.solves + bool(table))
 
 
 def _check_free(drum: Drum, free: str, physics: str, count: int) -> None:

@@ -1,0 +1,260 @@
+"""``membrane tune``: the tension that lands chosen modes on target pitches, and lug by lug."""
+
+from __future__ import annotations
+
+import sys
+from enum import Enum
+from typing import Annotated, List, Optional
+
+import typer
+
+from .. import tuning
+from ..errors import InputError
+from ..units import note_name, parse_pitch
+from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
+                     Radius, Tension, Thickness, Volume, drum_from, emit, fail, num, parse_mode,
+                     signed)
+
+TARGET_HELP = ("Target pitch: Hz ('87.3', '87.3 Hz'), a note ('F2', 'F#2', 'Bb2') or either with cents "
+               "('F2+15c', 'D3 -8 cents'). With --mode give one bare PITCH; for several modes give "
+               "M,N=PITCH and repeat: --target 1,1=F2 --target 2,1=C3.")
+
+
+class Free(str, Enum):
+    """A second parameter the several-target fit may change."""
+
+    areal_density = "areal-density"
+    volume = "volume"
+
+
+def parse_targets(texts: list[str], mode: str | None) -> list[tuple[tuple[int, int], float, str]]:
+    """``--target`` values (with ``--mode`` for the bare form) -> ((m, n), Hz, text)."""
+    out = []
+    for text in texts:
+        if "=" in text:
+            left, pitch = text.split("=", 1)
+            m_n = parse_mode(left, key="--target")
+        elif mode is None:
+            fail("--target", text, "say which mode: add --mode M,N, or write the target as M,N=PITCH")
+        else:
+            m_n, pitch = parse_mode(mode), text
+        out.append((m_n, parse_pitch(pitch, key="--target"), text))
+    if mode is not None and all("=" in t for t in texts):
+        fail("--mode", mode, "--mode goes with a bare --target PITCH; with M,N=PITCH targets leave it out")
+    return out
+
+
+def parse_lug_pitches(texts: list[str]) -> tuple[float, ...]:
+    """``--lug-pitches`` (comma-separated, or repeated) -> Hz, each positive."""
+    items = [item.strip() for text in texts for item in text.split(",") if item.strip()]
+    hz = []
+    for item in items:
+        if item.startswith("-"):
+            fail("--lug-pitches", item, "tap pitches must be positive frequencies or notes, e.g. D3,D3+6c,147")
+        hz.append(parse_pitch(item, key="--lug-pitches"))
+    if len(hz) < 3:
+        fail("--lug-pitches", ",".join(items), "give the tap pitch at each of at least 3 lugs")
+    return tuple(hz)
+
+
+def _hz_note(hz: float) -> str:
+    note, off = note_name(hz)
+    return f"{hz:.2f} Hz ({note}{off:+.0f}c)"
+
+
+def tune(
+    drum_file: DrumFile = None,
+    target: Annotated[Optional[List[str]], typer.Option(help=TARGET_HELP, metavar="[M,N=]PITCH")] = None,
+    mode: Annotated[Optional[str], typer.Option(
+        help="The mode a bare --target PITCH is for, M,N (m nodal diameters, n nodal circles).")] = None,
+    free: Annotated[Optional[Free], typer.Option(
+        help="With several targets, also fit the head's areal density or the kettle's volume.")] = None,
+    lug_pitches: Annotated[Optional[List[str]], typer.Option(
+        help="Tap pitch near each lug in order round the rim, comma-separated or repeated "
+             "(e.g. D3,D3+6c,D3-4c); default the drum file's lugs table. Rule of thumb: tap pitch "
+             "taken as proportional to sqrt(local tension).")] = None,
+    cents_per_turn: Annotated[Optional[float], typer.Option(
+        help="Calibration: pitch change in cents for one full turn of a lug; gives turns in 1/8.")] = None,
+    diameter: Diameter = None,
+    radius: Radius = None,
+    tension: Tension = None,
+    areal_density: ArealDensity = None,
+    film: Film = None,
+    thickness: Thickness = None,
+    body: Body = None,
+    volume: Volume = None,
+    depth: Depth = None,
+    physics: Annotated[Physics, typer.Option(
+        help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
+    ] = Physics.full,
+    m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters in the new mode table (0-50).")] = 6,
+    n_max: Annotated[int, typer.Option(help="Highest number of nodal circles in the new mode table (1-50).")] = 3,
+    format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
+) -> None:
+    """Find the head tension that puts chosen modes on target pitches, and each lug's change.
+
+    One target, met by root-finding on the model: --mode 1,1 --target F2
+
+    Several, met in the least-squares sense in cents: --target 1,1=F2 --target 2,1=C3
+
+    The suggestion is checked against the film's yield stress and the slack limit.
+    """
+    drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
+                     areal_density=areal_density, film=film, thickness=thickness, body=body,
+                     volume=volume, depth=depth)
+    targets = parse_targets(target or [], mode)
+    if mode is not None and not targets:
+        fail("--mode", mode, "needs a --target PITCH")
+    pitches = parse_lug_pitches(lug_pitches) if lug_pitches else (drum.lugs.pitches if drum.lugs else None)
+    per_turn = cents_per_turn if cents_per_turn is not None else (drum.lugs.cents_per_turn if drum.lugs else None)
+    if not targets and pitches is None:
+        fail("--target", None, "give a target (--mode M,N --target PITCH, or --target M,N=PITCH) "
+             "and/or lug tap pitches (--lug-pitches)")
+    if free is not None and len(targets) < 2:
+        fail("--free", free.value, "a second free parameter needs at least two --target M,N=PITCH")
+
+    payload = {"drum": drum.name, "physics": physics.value, "current_tension_n_per_m": drum.head.tension,
+               "tension_n_per_m": drum.head.tension, "change_percent": 0.0, "predicted_hz": None,
+               "warnings": [], "cautions": list(tuning.CAUTIONS)}
+    result = None
+    if targets:
+        try:
+            result = tuning.tension_for(drum, targets=[(mn, hz) for mn, hz, _ in targets],
+                                        physics=physics.value, free=free.value if free else None,
+                                        m_max=m_max, n_max=n_max)
+        except InputError as exc:
+            if exc.key == "target" and len(targets) == 1:
+                raise InputError("--target", targets[0][2], exc.allowed) from None
+            raise
+        payload.update(_result_payload(result))
+    ratio = result.tension / result.current_tension if result else 1.0
+    if pitches is not None:
+        lug_target, lugs = tuning.equalise_lugs(pitches, tension_ratio=ratio, cents_per_turn=per_turn,
+                                                key="--lug-pitches" if lug_pitches else "lugs.pitches")
+        payload["lugs"] = {"rule": tuning.LUG_RULE, "target_tap_hz": lug_target, "cents_per_turn": per_turn,
+                           "turn_step": tuning.TURN_STEP if per_turn else None,
+                           "lugs": [vars(lug) for lug in lugs]}
+    if format is Format.json:
+        emit(format, payload=payload, rows=[], columns=[])
+    elif format is Format.csv:
+        _print_csv(payload)
+    else:
+        _print_human(format, drum, payload, result)
+
+
+def _print_csv(payload: dict) -> None:
+    """One machine-readable table (targets, else lugs); cautions go to stderr."""
+    if "targets" in payload:
+        keys = ("tension_n_per_m", "current_tension_n_per_m", "change_percent", "stress_pa")
+        rows = [dict(t, **{k: payload[k] for k in keys}) for t in payload["targets"]]
+        columns = [(k, k, str) for k in ("m", "n", "target_hz", "current_hz", "predicted_hz",
+                                         "residual_cents") + keys]
+    else:
+        rows = payload["lugs"]["lugs"]
+        columns = [(k, k, str) for k in rows[0]]
+    emit(Format.csv, payload=payload, rows=rows, columns=columns)
+    for w in payload["warnings"]:
+        print(f"caution: {w}", file=sys.stderr)
+
+
+def _result_payload(result: tuning.Tuning) -> dict:
+    first = result.targets[0]
+    head = result.drum.head
+    s = result.stress
+    ref = (first.m, first.n)
+    data = {
+        "tension_n_per_m": result.tension,
+        "change_percent": result.change_percent,
+        "predicted_hz": first.predicted_hz,
+        "target_hz": first.target_hz,
+        "error_cents": first.residual_cents,
+        "mode": {"m": first.m, "n": first.n},
+        "naive_tension_n_per_m": result.naive_tension,
+        "targets": [{"m": t.m, "n": t.n, "target_hz": t.target_hz, "current_hz": t.current_hz,
+                     "predicted_hz": t.predicted_hz, "residual_cents": t.residual_cents}
+                    for t in result.targets],
+        "rms_cents": result.rms_cents,
+        "together": result.together,
+        "statement": _statement(result),
+        "free": None if result.free is None else
+        {"parameter": result.free, "unit": "kg/m^2" if result.free == "areal-density" else "m^3",
+         "current": result.current_value, "value": result.value},
+        "stress_pa": s,
+        "yield_stress_pa": head.yield_stress,
+        "stress_fraction_of_yield": None if s is None or head.yield_stress is None else s / head.yield_stress,
+        "safe_stress_fraction": tuning.SAFE_STRESS_FRACTION,
+        "slack_tension_n_per_m": tuning.slack_tension(head),
+        "reference": {"m": ref[0], "n": ref[1]},
+        "modes": result.modes.table(reference=ref),
+        "warnings": list(result.warnings),
+        "notes": list(result.modes.notes),
+        "solves": result.solves,
+    }
+    return data
+
+
+def _statement(result: tuning.Tuning) -> str:
+    if result.together:
+        return (f"all {len(result.targets)} targets met within {tuning.TOGETHER_CENTS:g} cent"
+                if len(result.targets) > 1 else "target met")
+    worst = max(result.targets, key=lambda t: abs(t.residual_cents))
+    hint = "" if result.free else " To change the modes' ratios, free the head's mass (--free areal-density) " \
+        "or, for a kettle, its volume (--free volume)."
+    return (f"No {'tension and ' + result.free if result.free else 'single tension'} puts these targets "
+            f"on pitch together: the best compromise (least squares in cents) leaves ({worst.m},{worst.n}) "
+            f"{worst.residual_cents:+.1f} cents off, rms {result.rms_cents:.1f} cents.{hint}")
+
+
+def _print_human(fmt: Format, drum, payload: dict, result) -> None:
+    if result is not None:
+        head_rows = [
+            {"what": "current tension", "value": f"{payload['current_tension_n_per_m']:.1f} N/m"},
+            {"what": "suggested tension", "value": f"{payload['tension_n_per_m']:.1f} N/m "
+                                                   f"({payload['change_percent']:+.1f} %)"},
+            {"what": "sqrt(T) scaling would say", "value": f"{payload['naive_tension_n_per_m']:.1f} N/m"},
+        ]
+        if result.free:
+            unit = payload["free"]["unit"]
+            head_rows.append({"what": f"{result.free}", "value": f"{result.current_value:.4g} -> "
+                                                                 f"{result.value:.4g} {unit}"})
+        if payload["stress_pa"] is not None:
+            frac = payload["stress_fraction_of_yield"]
+            head_rows.append({"what": "film stress T/(plies h)", "value": f"{payload['stress_pa'] / 1e6:.1f} MPa"
+                              + (f" ({100 * frac:.0f} % of yield {payload['yield_stress_pa'] / 1e6:.0f} MPa)"
+                                 if frac is not None else "")})
+        head_rows.append({"what": "slack limit", "value": f"{payload['slack_tension_n_per_m']:.3g} N/m"})
+        emit(fmt, payload=payload, rows=head_rows, columns=[("what", "", str), ("value", "", str)],
+             title=f"{drum.name}: tune with {payload['physics']} physics")
+        rows = [{"mode": f"({t['m']},{t['n']})", "target": _hz_note(t["target_hz"]), "now": t["current_hz"],
+                 "predicted": t["predicted_hz"], "residual": t["residual_cents"]} for t in payload["targets"]]
+        emit(fmt, payload=payload, rows=rows, title="targets",
+             columns=[("mode", "mode", str), ("target", "target", str), ("now", "now (Hz)", num(2)),
+                      ("predicted", "at suggestion (Hz)", num(3)), ("residual", "error (cents)", signed(3))],
+             notes=[payload["statement"]])
+        ref = payload["reference"]
+        mode_rows = [dict(row, mode=f"({row['m']},{row['n']})" + (f" {row['branch']}" if "branch" in row else "")
+                          + (" resonant" if row.get("head") == "resonant" else ""))
+                     for row in payload["modes"]]
+        emit(fmt, payload=payload, rows=mode_rows, title=f"modes at the suggestion, ratios to ({ref['m']},{ref['n']})",
+             columns=[("mode", "mode", str), ("frequency_hz", "f (Hz)", num(2)), ("decay_s", "T60 (s)", num(2)),
+                      ("ratio", "ratio", num(4)), ("note", "note", str), ("cents_from_note", "cents off", signed(1))],
+             notes=payload["notes"])
+    if "lugs" in payload:
+        lugs = payload["lugs"]
+        rows = [dict(lug, turns_text=None if lug["turns"] is None else tuning.turns_text(lug["turns"]),
+                     tap=_hz_note(lug["tap_hz"])) for lug in lugs["lugs"]]
+        columns = [("lug", "lug", str), ("tap", "tap pitch", str), ("relative_tension", "relative tension", num(3)),
+                   ("change_cents", "change (cents)", signed(1)),
+                   ("tension_change_percent", "tension change (%)", signed(1))]
+        if lugs["cents_per_turn"]:
+            columns.append(("turns_text", "turns (+ tighten)", str))
+        emit(fmt, payload=payload, rows=rows, columns=columns,
+             title=f"lugs: bring each to {_hz_note(lugs['target_tap_hz'])}",
+             notes=[lugs["rule"]] + ([f"turns from {lugs['cents_per_turn']:g} cents per turn, rounded to 1/8 turn"]
+                                     if lugs["cents_per_turn"] else []))
+    notes = [f"caution: {w}" for w in payload["warnings"]] + list(tuning.CAUTIONS)
+    if fmt is Format.markdown:
+        print("\n" + "\n".join(f"- {n}" for n in notes))
+    else:
+        for n in notes:
+            print(n)
