@@ -91,6 +91,7 @@ class RitzSpace:
                 nu = poisson_ratio
                 self.b1 = (4 * m + 2 + 2 * nu) / (y * y + m * (1 - nu) - (1 - nu) * yr)
             self.a1 = 1.0 - self.b1
+        self._constants()
         self._assemble()
 
     # -- the rim function chi(r) = (r/a)^(m+2) - a1 (r/a)^m - b1 I_m(ks r)/I_m(ks a)
@@ -104,38 +105,63 @@ class RitzSpace:
                 * np.exp(self.ks * a * (x - 1.0))
         return out
 
-    def _rim_transform(self, kappa):
-        a, m = self.radius, self.m
-        x = kappa * a
-        t0 = _jx(m, 1, x)
-        out = a * a * (t0 - 2.0 * _jx(m, 2, x) - self.a1 * t0)
+    def _bessels(self, kappa):
+        """J_m, J_m' and, for the rim function, J_{m+1}/x, J_{m+2}/x^2 at x = kappa a.
+
+        Three Bessel evaluations per node (the derivative from the recurrence
+        J_m' = (m/x) J_m - J_{m+1}); near x = 0 the quotients take their series.
+        """
+        m = self.m
+        x = kappa * self.radius
+        jm, jm1 = special.jv(m, x), special.jv(m + 1, x)
+        small = np.abs(x) < 1e-4
+        safe = np.where(small, 1.0, x)
+        djm = np.where(small, 0.5 if m == 1 else 0.0, (m / safe) * jm - jm1)
+        if not self.rim:
+            return jm, djm, None, None
+        q1 = jm1 / safe
+        q2 = special.jv(m + 2, x) / safe**2
+        if np.any(small):
+            q1 = np.where(small, _jx(m, 1, x), q1)
+            q2 = np.where(small, _jx(m, 2, x), q2)
+        return jm, djm, q1, q2
+
+    def _rim_transform(self, kappa, jm, djm, q1, q2):
+        a = self.radius
+        out = a * a * ((1.0 - self.a1) * q1 - 2.0 * q2)
         if self.ks is not None:
-            du = self.ks * _ratio_i(m, self.ks * a)
-            out = out - self.b1 * a * (kappa * special.jvp(m, x) - du * special.jv(m, x)) / \
+            out = out - self.b1 * a * (kappa * djm - self._rim_du * jm) / \
                 (-self.ks**2 - kappa * kappa)
         return out
 
-    def _mode_parts(self, kappa, *, exact_poles: bool):
+    def _constants(self):
+        """Edge values that every transform evaluation reuses."""
         b, a, m = self.basis, self.radius, self.m
+        self._j1 = special.jv(m, b.k1 * a)[:, None]
+        self._dj1 = special.jvp(m, b.k1 * a)[:, None]
+        self._du = None if b.k2 is None else (b.k2 * _ratio_i(m, b.k2 * a))[:, None]
+        self._rim_du = None if self.ks is None else self.ks * _ratio_i(m, self.ks * a)
+
+    def _mode_parts(self, kappa):
+        b, a = self.basis, self.radius
         k1 = b.k1[:, None]
         kap = kappa[None, :]
-        j1, dj1 = special.jv(m, k1 * a), special.jvp(m, k1 * a)
         den = k1 * k1 - kap * kap
         near = np.abs(den) < 1e-9 * k1 * k1
         safe = np.where(near, 1.0, den)
-        A = -a * k1 * dj1 / safe
-        B = a * kap * j1 / safe
+        A = (-a * k1 * self._dj1) / safe
+        B = (a * self._j1) * kap / safe
         if b.k2 is not None:
             k2, c = b.k2[:, None], b.c[:, None]
-            du = k2 * _ratio_i(m, k2 * a)
-            A = A - c * a * du / (-k2 * k2 - kap * kap)
-            B = B + c * a * kap / (-k2 * k2 - kap * kap)
+            inv = (c * a) / (-k2 * k2 - kap * kap)
+            A = A - inv * self._du
+            B = B + inv * kap
         return A, B, near
 
     def parts(self, kappa):
         """(A, B) with transform = A J_m(kappa a) + B J_m'(kappa a), each (size, len kappa)."""
         kappa = np.atleast_1d(np.asarray(kappa))
-        A, B, _ = self._mode_parts(kappa, exact_poles=False)
+        A, B, _ = self._mode_parts(kappa)
         if self.rim:
             a, m = self.radius, self.m
             x = kappa * a
@@ -144,9 +170,8 @@ class RitzSpace:
             ar = a * a * ((1.0 - self.a1) * a0 - 2.0 * a2)
             br = a * a * ((1.0 - self.a1) * b0 - 2.0 * b2)
             if self.ks is not None:
-                du = self.ks * _ratio_i(m, self.ks * a)
                 den = -self.ks**2 - kappa * kappa
-                ar = ar + self.b1 * a * du / den
+                ar = ar + self.b1 * a * self._rim_du / den
                 br = br - self.b1 * a * kappa / den
             A = np.vstack([A, ar[None, :]])
             B = np.vstack([B, br[None, :]])
@@ -156,9 +181,9 @@ class RitzSpace:
         """Hankel transforms Phi(kappa), (size, len kappa), m^2; complex kappa allowed."""
         kappa = np.atleast_1d(np.asarray(kappa))
         a, m = self.radius, self.m
-        A, B, near = self._mode_parts(kappa, exact_poles=True)
-        x = kappa * a
-        out = A * special.jv(m, x)[None, :] + B * special.jvp(m, x)[None, :]
+        A, B, near = self._mode_parts(kappa)
+        jm, djm, q1, q2 = self._bessels(kappa)
+        out = A * jm[None, :] + B * djm[None, :]
         if np.any(near):  # removable pole kappa = k1: Lommel's equal-argument limit
             k1 = np.broadcast_to(self.basis.k1[:, None], near.shape)[near]
             xa = k1 * a
@@ -170,7 +195,7 @@ class RitzSpace:
                 lim = lim + c * a * (k1 * special.jvp(m, xa) - du * special.jv(m, xa)) / (-k2 * k2 - k1 * k1)
             out[near] = lim
         if self.rim:
-            out = np.vstack([out, self._rim_transform(kappa)[None, :]])
+            out = np.vstack([out, self._rim_transform(kappa, jm, djm, q1, q2)[None, :]])
         return out
 
     def _assemble(self):
@@ -213,14 +238,14 @@ def _radial_nodes(space: RitzSpace):
     head, whose modes have a boundary layer of width about 1 / k2 there."""
     a = space.radius
     kmax = float(np.max(space.basis.k1))
-    edges = np.linspace(0.0, a, int(np.ceil(kmax * a / 2.0)) + 4)
+    edges = np.linspace(0.0, a, int(np.ceil(kmax * a / 4.0)) + 4)
     if space.ks is not None:
         ks = max(space.ks, float(np.max(space.basis.k2)))
         layer = a - np.array([60.0, 20.0, 6.0, 2.0]) / ks
         layer = layer[layer > 0.5 * a]
         if len(layer):
             edges = np.concatenate([edges[edges < layer[0]], layer, [a]])
-    x, w = np.polynomial.legendre.leggauss(20)
+    x, w = np.polynomial.legendre.leggauss(16)
     lo, hi = edges[:-1], edges[1:]
     r = (0.5 * (hi - lo)[:, None] * (x + 1.0)[None, :] + lo[:, None]).ravel()
     wr = (0.5 * (hi - lo)[:, None] * w[None, :]).ravel()
@@ -405,8 +430,9 @@ class RootSet:
             ka = 4.0 * np.ceil(kmax * h.radius / 4.0)  # buckets: nearby drums share a table
             t = h.table(ka, settings.quadrature)
             n = h.size
-            d["faces"].append((t._x.reshape(t.degree, n * n), t._y.reshape(t.degree, n * n),
-                               t.t_max, order.faces * t.weight * h.radius**3, h.radius))
+            xy = np.vstack([t._x.reshape(t.degree, n * n), t._y.reshape(t.degree, n * n)])
+            d["faces"].append((xy, t.degree, t.t_max, order.faces * t.weight * h.radius**3,
+                               h.radius))
         if order.depth is not None:
             ducts = [h.duct(order.heads[0].size + settings.duct_modes) for h in order.heads]
             d["gamma"], d["norms"] = ducts[0][0], ducts[0][1]
@@ -445,12 +471,12 @@ class RootSet:
             Mg = np.broadcast_to(d["M"], (len(sel), n, n)).astype(complex)
             k = w / self.c
             if outer:
-                for h, (X, Y, tmax, scale, a) in enumerate(d["faces"]):
+                for h, (XY, P, tmax, scale, a) in enumerate(d["faces"]):
                     lo, hi = d["offsets"][h], d["offsets"][h + 1]
                     ka = k * a
-                    T = np.polynomial.chebyshev.chebvander(2.0 * ka * ka / tmax - 1.0, X.shape[0] - 1)
-                    A = _cmul(T, X) - 1j * ka[:, None] * _cmul(T, Y)
-                    Mg[:, lo:hi, lo:hi] += (outer * self.rho * scale) * A.reshape(len(sel), hi - lo, hi - lo)
+                    T = np.polynomial.chebyshev.chebvander(2.0 * ka * ka / tmax - 1.0, P - 1)
+                    TT = (outer * self.rho * scale) * np.hstack([T, -1j * ka[:, None] * T])
+                    Mg[:, lo:hi, lo:hi] += _cmul(TT, XY).reshape(len(sel), hi - lo, hi - lo)
             if body and order.depth is not None:
                 fcot, fcsc = self._duct_terms(d, order.depth, w)
                 V, off = d["V"], d["offsets"]
@@ -458,7 +484,7 @@ class RootSet:
                     for b_ in range(len(V)):
                         f = body * self._duct_weights(order, fcot, fcsc, a_, b_)
                         Kg[:, off[a_]:off[a_ + 1], off[b_]:off[b_ + 1]] += \
-                            np.einsum("nq,rq,kq->rnk", V[a_], f, V[b_], optimize=True)
+                            (V[a_][None, :, :] * f[:, None, :]) @ V[b_].T
             Keff[sel], Meff[sel] = Kg, Mg
         return Keff, Meff
 
@@ -470,7 +496,7 @@ class RootSet:
         function is vectorised over all roots at once (no loop over orders).
         """
         R = len(idx)
-        P = max(f[0].shape[0] for d in self.data for f in d["faces"])
+        P = max(f[1] for d in self.data for f in d["faces"])
         nheads = len(self.orders[0].heads)
         kx, mx = np.empty(R, complex), np.empty(R, complex)
         cx = np.zeros((nheads, R, P), complex)
@@ -486,10 +512,10 @@ class RootSet:
             d, order, xs = self.data[i], self.orders[i], x[sel]
             kx[sel] = np.einsum("rn,nk,rk->r", xs, d["K"], xs)
             mx[sel] = np.einsum("rn,nk,rk->r", xs, d["M"], xs)
-            for h, (X, Y, tm, sc, a) in enumerate(d["faces"]):
+            for h, (XY, Ph, tm, sc, a) in enumerate(d["faces"]):
                 xh = xs[:, d["offsets"][h]:d["offsets"][h + 1]]
-                cx[h, sel, : X.shape[0]] = _quad(X, xh)
-                cy[h, sel, : X.shape[0]] = _quad(Y, xh)
+                q = _quad(XY, xh)
+                cx[h, sel, :Ph], cy[h, sel, :Ph] = q[:, :Ph], q[:, Ph:]
                 tmax[h, sel], scale[h, sel], rad[h, sel] = tm, sc, a
             if duct:
                 gamma[sel], norms[sel], depth[sel] = d["gamma"], d["norms"], order.depth
@@ -599,15 +625,18 @@ def _solve_step(rs: RootSet, idx, omega, vecs, *, outer, body, settings):
     x, w = vecs.copy(), omega.copy()
     done = np.zeros(len(idx), bool)
     active = np.arange(len(idx))
+    change = np.ones(len(idx))  # last relative change of omega, sets the scalar tolerance
     for it in range(settings.max_iter):
         sub = idx[active]
         f = rs.rayleigh(sub, x[active], outer=outer, body=body)
-        w_new, ok_s = _secant(f, w[active], tol=0.01 * settings.tol)
+        w_new, ok_s = _secant(f, w[active], tol=np.maximum(0.01 * settings.tol,
+                                                            1e-3 * change[active]))
         Keff, Meff = rs.pencil(sub, w_new, outer=outer, body=body)
         rhs = np.einsum("rnk,rk->rn", rs.M[sub], x[active])[:, :, None]
         y = np.linalg.solve(Keff - (w_new**2)[:, None, None] * Meff, rhs)[:, :, 0]
         y = _normalise(y, rs.M[sub])
-        conv = ok_s & (np.abs(w_new - w[active]) <= settings.tol * np.abs(w_new)) & (it > 0)
+        change[active] = np.abs(w_new - w[active]) / np.abs(w_new)
+        conv = ok_s & (change[active] <= settings.tol) & (it > 0)
         w[active], x[active] = w_new, y
         done[active[conv]] = True
         active = active[~conv]
@@ -629,7 +658,7 @@ def _advance(rs, state, roots, start, target, *, settings, depth=0, final=True):
     a root fails; raises SolverError when halving does not help. Points short of the end
     of the path (final False) are solved to a loose tolerance only: they are starts."""
     omega, vecs = state
-    step_settings = settings if final else replace(settings, tol=max(settings.tol, 1e-6))
+    step_settings = settings if final else replace(settings, tol=max(settings.tol, 1e-4))
     w, v, ok = _solve_step(rs, roots, omega[roots], vecs[roots], outer=target[0],
                            body=target[1], settings=step_settings)
     good = roots[ok]

@@ -71,12 +71,12 @@ class Quadrature:
         K0 = pole_bound + |k| + margin / a.
     """
 
-    arc: int = 24
-    panel: int = 12
-    panel_width: float = 3.0
-    laguerre: int = 24
-    mixed: int = 20
-    margin: float = 8.0
+    arc: int = 20
+    panel: int = 10
+    panel_width: float = 4.0
+    laguerre: int = 16
+    mixed: int = 16
+    margin: float = 6.0
 
     def refined(self, factor: float = 1.5) -> "Quadrature":
         """The same quadrature with about ``factor`` times the nodes everywhere."""
@@ -100,7 +100,8 @@ def _laguerre(n: int) -> tuple[np.ndarray, np.ndarray]:
 def _dhankel(kind: int, m: int, z):
     """Exponentially scaled H_m^(kind)(z) and its derivative (same scaling)."""
     h = special.hankel1e if kind == 1 else special.hankel2e
-    return h(m, z), 0.5 * (h(m - 1, z) - h(m + 1, z))
+    hm = h(m, z)
+    return hm, h(m - 1, z) - (m / z) * hm  # H_m' = H_{m-1} - (m/z) H_m (|z| >= K0 a > 0)
 
 
 def _tail_factor(space, kind: int, kappa):

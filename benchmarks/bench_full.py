@@ -1,0 +1,78 @@
+"""The full kettledrum table (air on the open face, kettle air, decay) timed, same-run reference.
+
+Run: python benchmarks/bench_full.py
+
+Times, on one core (BLAS threads pinned to 1 before numpy loads), best of several runs:
+  * cold: every cache cleared (Bessel zeros, stiff roots, the unit Ritz spaces, the
+    dimensionless radiation tables and duct overlaps), so everything is computed;
+  * warm: the same drum again. The radiation tables and duct overlaps depend only on
+    dimensionless geometry (m, basis size, T a^2 / D, edge, nu, k a range), so they are
+    cached once per process and shared by any drum of the same shape of basis: this is
+    the time a tuning loop or a second drum of the same film and diameter pays;
+  * reference: the in-vacuum ideal table of the same size through membrane.solve, cold.
+Table: the builtin 26-inch kettledrum, m = 0..8, n = 1..6 (54 complex roots).
+Prints the times and their ratios to the reference, and the (m,1) ratios and T60s.
+"""
+
+from __future__ import annotations
+
+import os
+
+for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
+    os.environ.setdefault(_var, "1")  # one core, as the target is stated
+
+import time  # noqa: E402
+
+
+def clear_caches():
+    from membrane import bessel
+    from membrane.physics import coupled, vacuum
+
+    for cache in (bessel._jn_zeros_cached, bessel._jnp_zeros_cached, vacuum.stiff_roots,
+                  coupled.unit_space, coupled.unit_table, coupled._unit_duct):
+        cache.cache_clear()
+    if hasattr(bessel, "_table"):
+        bessel._table.cache_clear()
+
+
+def best_of(fn, repeat, cold):
+    times = []
+    for _ in range(repeat):
+        if cold:
+            clear_caches()
+        t = time.perf_counter()
+        out = fn()
+        times.append(time.perf_counter() - t)
+    return min(times), out
+
+
+def main():
+    from membrane import load_drum
+    from membrane.physics.coupled import full_modes
+    from membrane.solve import solve
+
+    drum = load_drum("kettledrum")
+    m_max, n_max = 8, 6
+
+    def full():
+        modes = full_modes(drum, m_max=m_max, n_max=n_max)
+        assert len(modes) == (m_max + 1) * n_max
+        return modes
+
+    ref, _ = best_of(lambda: solve(drum, "ideal", m_max=m_max, n_max=n_max), 5, cold=True)
+    cold, _ = best_of(full, 3, cold=True)
+    full()
+    warm, modes = best_of(full, 5, cold=False)
+    print(f"full kettledrum table, m <= {m_max}, n <= {n_max}: {len(modes)} complex roots")
+    print(f"  reference (ideal, in vacuum, cold): {ref * 1e3:8.1f} ms")
+    print(f"  full, cold (all caches cleared):    {cold * 1e3:8.1f} ms   {cold / ref:7.1f} x reference")
+    print(f"  full, warm (dimensionless tables cached): {warm * 1e3:8.1f} ms   "
+          f"{warm / ref:7.1f} x reference   target < 300 ms: {'met' if warm < 0.3 else 'NOT met'}")
+    f = {(md.m, md.n): md for md in modes}
+    f11 = f[(1, 1)].frequency
+    print("  (m,1) / (1,1):", ", ".join(f"({m},1) {f[(m, 1)].frequency / f11:.3f}" for m in range(6)))
+    print("  T60 (s, radiation only):", ", ".join(f"({m},1) {f[(m, 1)].decay:.3g}" for m in range(6)))
+
+
+if __name__ == "__main__":
+    main()
