@@ -171,9 +171,9 @@ def strike(
         t60 = to_si(assume_t60, "time", key="--assume-t60")
         if not t60 > 0:
             fail("--assume-t60", assume_t60, "must be a positive time, e.g. '2 s'")
+    if wav_format not in ("int16", "float32"):
+        fail("--wav-format", wav_format, "must be int16 or float32")
     if out is not None:
-        if wav_format not in ("int16", "float32"):
-            fail("--wav-format", wav_format, "must be int16 or float32")
         if not RATE_RANGE[0] <= rate <= RATE_RANGE[1]:
             fail("--rate", rate, f"must be from {RATE_RANGE[0]} to {RATE_RANGE[1]} Hz")
         if not 0.05 <= seconds <= MAX_SECONDS:
