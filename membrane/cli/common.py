@@ -186,6 +186,9 @@ def write_atomic(path: str | Path, writer: Callable[[Path], None], *, force: boo
     tmp = Path(tmp)
     try:
         writer(tmp)
+        umask = os.umask(0)  # mkstemp makes 0600 files; give the usual permissions instead
+        os.umask(umask)
+        os.chmod(tmp, 0o666 & ~umask)
         os.replace(tmp, path)
     except BaseException:
         tmp.unlink(missing_ok=True)
