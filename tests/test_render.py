@@ -79,7 +79,7 @@ def test_a_stiff_mode_is_drawn_from_its_own_vector():
     # 0.4357 (SOURCES.md), so a picture of the ideal Bessel function would fail here.
     drum = load_drum("kettledrum", tension="30 N/m", thickness="0.5 mm")
     stiff = solve(drum, "stiff", m_max=1, n_max=2)
-    fig = stills.nodal_diagram(stiff, 0, 2)
+    fig = stills.nodal_diagram(stiff, stiff.find(0, 2))
     x, y, w = mesh_of(fig.axes[0])
     r = np.hypot(x[0], y[0])
     mode = stiff.find(0, 2)
@@ -89,7 +89,7 @@ def test_a_stiff_mode_is_drawn_from_its_own_vector():
 
 
 def test_nodal_diagram_marks_each_region_plus_or_minus(ideal):
-    fig = stills.nodal_diagram(ideal, 2, 2)
+    fig = stills.nodal_diagram(ideal, ideal.find(2, 2))
     signs = [t.get_text() for t in fig.axes[0].texts if t.get_text() in ("+", "\u2212")]
     assert len(signs) == 2 * 2 * 2  # 2m sectors times n rings
     assert signs.count("+") == signs.count("\u2212")

@@ -79,6 +79,16 @@ def _solve(drum, physics: str, m_max: int, n_max: int, need=(0, 1)):
     return solve(drum, physics, m_max=max(m_max, m), n_max=max(n_max, n))
 
 
+def _find(modeset, m: int, n: int, branch: str | None):
+    """The mode (m, n) of the given branch, whichever head it is counted on."""
+    if branch is None:
+        return modeset.find(m, n)
+    for mode in modeset:
+        if (mode.m, mode.n, mode.branch) == (m, n, branch):
+            return mode
+    return modeset.find(m, n, branch)  # raises the library's one-line error
+
+
 def render(
     drum_file: DrumFile = None,
     out: Annotated[Optional[Path], typer.Option("--out", help=(
@@ -149,7 +159,7 @@ def render(
         modeset = _solve(drum, physics.value, m_max, n_max, need=(m, n))
         if branch is not None and not any(x.branch for x in modeset):
             fail("--branch", branch, "only a shell's two heads solved together (--physics full) have branches")
-        the_mode = modeset.find(m, n, branch)
+        the_mode = _find(modeset, m, n, branch)
         if fmt in ANIMATIONS or snapshot:
             from ..render.animate import render_mode
 
@@ -160,7 +170,7 @@ def render(
             from ..render.stills import nodal_diagram, save
 
             def writer(tmp):
-                save(nodal_diagram(modeset, m, n, branch=branch, reference=ref), tmp)
+                save(nodal_diagram(modeset, the_mode, reference=ref), tmp)
     elif grid:
         modeset = _solve(drum, physics.value, m_max, n_max)
         from ..render.stills import mode_grid, save

@@ -22,7 +22,7 @@ FORMATS = ("gif", "mp4", "png")
 # A 480-pixel picture shows no difference from the stills' finer grid; half the
 # triangles render nearly twice as fast in software.
 SCENE_GRID = {"radial": 81, "angular": 145}
-BODY_DEPTH = 0.45  # drawn depth of a shell or kettle below the head, in radii (a hint, not to scale)
+BODY_DEPTH = 0.45  # drawn depth of a kettle below the head, in radii (a hint, not to scale)
 
 
 @dataclass(frozen=True)
@@ -63,18 +63,26 @@ def _quiet_vtk() -> None:
     vtkLogger.SetStderrVerbosity(vtkLogger.VERBOSITY_ERROR)
 
 
-def _body(kind: str):
+def _depth(drum) -> float:
+    """Drawn depth of the body below the rim, in radii (a shell to scale, else a hint)."""
+    body = getattr(drum, "body", None)
+    if getattr(body, "kind", None) == "shell" and body.depth:
+        return float(body.depth / drum.head.radius)
+    return BODY_DEPTH
+
+
+def _body(kind: str, depth: float):
     """A shell's wall or a kettle's bowl below the rim, in radii; None for no body."""
     import pyvista as pv
 
     theta = np.linspace(0.0, 2.0 * np.pi, 73)
     if kind == "shell":
-        tt, zz = np.meshgrid(theta, np.array([0.0, -BODY_DEPTH]))
+        tt, zz = np.meshgrid(theta, np.array([0.0, -depth]))
         return pv.StructuredGrid(np.cos(tt), np.sin(tt), zz)
     if kind == "kettle":
         tt, pp = np.meshgrid(theta, np.linspace(0, 0.5 * np.pi, 13))
         return pv.StructuredGrid(np.cos(tt) * np.cos(pp), np.sin(tt) * np.cos(pp),
-                                 -1.6 * BODY_DEPTH * np.sin(pp))
+                                 -1.6 * depth * np.sin(pp))
     return None
 
 
@@ -98,27 +106,39 @@ class HeadScene:
 
         _quiet_vtk()
         self.view = view
-        field = sample(mode, **SCENE_GRID)
-        x, y = field.xy
-        self.w = field.w
-        self.grid = pv.StructuredGrid(x, y, view.amplitude * self.w)
-        self.grid["displacement"] = self.w.ravel(order="F")
         p = pv.Plotter(off_screen=True, window_size=(view.width, view.height))
         # vtk's default multisampling costs 3-5x per frame in software rendering
         # (no GPU); the mesh is fine enough that the edges stay clean without it.
         p.disable_anti_aliasing()
         p.set_background("white")
-        p.add_mesh(self.grid, scalars="displacement", cmap=CMAP, clim=(-1.0, 1.0),
-                   show_scalar_bar=False, smooth_shading=False, ambient=0.25, diffuse=0.8)
-        rim = np.column_stack([np.cos(field.theta), np.sin(field.theta), np.zeros_like(field.theta)])
-        p.add_mesh(pv.lines_from_points(rim).tube(radius=0.018), color="#303030")
-        kind = getattr(getattr(modeset.drum, "body", None), "kind", "none")
-        el, az = np.radians(view.elevation), np.radians(view.azimuth)
-        body = _body(kind)
+        drum = modeset.drum
+        kind = getattr(getattr(drum, "body", None), "kind", "none")
+        depth = _depth(drum)
+        # (grid, shape, height of its rim): the struck head, and a shell's resonant head below
+        self.heads = []
+        sides = [(False, 0.0)] + ([(True, -depth)] if mode.resonant_coefficients is not None else [])
+        for resonant, z0 in sides:
+            field = sample(mode, resonant=resonant, **SCENE_GRID)
+            # Mode shapes are outward displacements: outward is down for the resonant
+            # head. Drawn and coloured as up (red) / down (blue) for both heads.
+            up = -field.w if resonant else field.w
+            x, y = field.xy
+            grid = pv.StructuredGrid(x, y, z0 + view.amplitude * up)
+            grid["displacement"] = up.ravel(order="F")
+            p.add_mesh(grid, scalars="displacement", cmap=CMAP, clim=(-1.0, 1.0), show_scalar_bar=False,
+                       smooth_shading=False, ambient=0.25, diffuse=0.8)
+            rim = np.column_stack([np.cos(field.theta), np.sin(field.theta), np.full_like(field.theta, z0)])
+            p.add_mesh(pv.lines_from_points(rim).tube(radius=0.018), color="#303030")
+            self.heads.append((grid, up.ravel(order="F"), z0))
+        body = _body(kind, depth)
         if body is not None:  # see-through, so the head below the rim stays in sight
             p.add_mesh(body, color="#a0a0a0", opacity=0.25, smooth_shading=True)
-        p.camera.focal_point = (0.0, 0.0, -0.05)
-        p.camera.position = (4.2 * np.cos(el) * np.cos(az), 4.2 * np.cos(el) * np.sin(az), 4.2 * np.sin(el))
+        el, az = np.radians(view.elevation), np.radians(view.azimuth)
+        centre = -0.05 - 0.5 * depth * (len(self.heads) - 1)
+        distance = 4.2 + 1.2 * depth * (len(self.heads) - 1)
+        p.camera.focal_point = (0.0, 0.0, centre)
+        p.camera.position = (distance * np.cos(el) * np.cos(az), distance * np.cos(el) * np.sin(az),
+                             centre + distance * np.sin(el))
         p.camera.up = (0.0, 0.0, 1.0)
         p.camera.view_angle = 30.0
         words = physics_words(modeset.physics) if view.width >= 320 else f"{modeset.physics} physics"
@@ -128,17 +148,20 @@ class HeadScene:
         longest = max(len(line) for line in title.split("\n"))
         font = max(5, min(int(view.width / (1.3 * longest)), int(view.height / 34)))
         p.add_text(title, position="upper_edge", font_size=font, color="black")
-        p.add_text(f"motion exaggerated: peak {view.amplitude:g} x radius", position="lower_left",
-                   font_size=max(6, font - 1), color="#404040")
+        note = f"motion exaggerated: peak {view.amplitude:g} x radius"
+        if len(self.heads) > 1:
+            note += "; below: the resonant head"
+        p.add_text(note, position="lower_left", font_size=max(6, font - 1), color="#404040")
         self.plotter = p
 
     def frame(self, phase: float) -> np.ndarray:
-        """RGB image (height, width, 3) with the head at cos(phase) of its peak."""
-        w = self.w * np.cos(phase)
-        points = self.grid.points
-        points[:, 2] = self.view.amplitude * w.ravel(order="F")
-        self.grid.points = points
-        self.grid["displacement"] = w.ravel(order="F")
+        """RGB image (height, width, 3) with the head(s) at cos(phase) of the peak."""
+        c = np.cos(phase)
+        for grid, w, z0 in self.heads:
+            points = grid.points
+            points[:, 2] = z0 + self.view.amplitude * c * w
+            grid.points = points
+            grid["displacement"] = c * w
         self.plotter.render()
         return np.asarray(self.plotter.screenshot(return_img=True))[..., :3]
 

@@ -107,24 +107,20 @@ def antinodes(r, shape, m: int):
     return out
 
 
-def nodal_diagram(modeset, m: int, n: int, *, branch: str | None = None,
-                  reference: tuple[int, int] = (0, 1), size: float = 5.0):
+def nodal_diagram(modeset, mode, *, reference: tuple[int, int] = (0, 1), size: float = 5.0):
     """One mode's nodal diagram: nodal diameters and circles, + and - regions.
 
     Parameters
     ----------
     modeset : membrane.modes.ModeSet
-        Solved modes.
-    m, n : int
-        The mode (nodal diameters, nodal circles counting the rim).
-    branch : str, optional
-        For a shell, ``"in-phase"`` or ``"opposed"``.
+        Solved modes (for the ratio in the caption).
+    mode : membrane.modes.Mode
+        The mode, e.g. ``modeset.find(2, 1)``; for a shell, its struck head is drawn.
     reference : (int, int)
         Mode the ratio in the caption is taken to.
     size : float
         Figure width in inches.
     """
-    mode = modeset.find(m, n, branch)
     fig = _figure((size, size * 1.12))
     ax = fig.add_subplot()
     draw_field(ax, mode, signs=True, hatch=True)
