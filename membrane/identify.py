@@ -37,8 +37,10 @@ MAX_CENTS = 60.0  # a partial further than this from its mode is no match (0.6 s
 SPLIT_CENTS = 25.0  # partials closer than this are one split mode (0.8 Hz at 150 Hz is 9 cents)
 MISSING_MODE_COST = 0.3  # a model mode without a partial, in units of MAX_CENTS
 MAX_TENSION_FACTOR = 25.0  # search within this factor of the drum's nominal tension
-MAX_RANGE = 10.0  # model modes up to this ratio to the lowest mode (the table grows as its square)
-_SECANT_TOL = 1e-7  # in ln T: far below the 1 % the fit can promise
+# model modes up to this ratio to the ideal (0,1) mode: the table grows as its square, and a
+# full-physics solve takes about 0.1 s a mode, so the full model gets the smaller range
+MAX_RANGE = {"ideal": 10.0, "stiff": 10.0, "full": 6.0}
+_SECANT_TOL = 1e-6  # in ln T: 1e-4 %, far below the 1 % the fit can promise
 _MAX_ROUNDS = 6  # assignment / tension rounds
 
 
@@ -113,6 +115,9 @@ class Identification:
     splits : tuple of SplitPair
     modes : ModeSet
         The model's modes at the fitted tension.
+    beyond : tuple of Partial
+        Partials above the range where the model's table is complete (:data:`MAX_RANGE`),
+        not labelled.
     """
 
     drum: Drum
@@ -122,6 +127,7 @@ class Identification:
     unmatched: tuple[Partial, ...]
     splits: tuple[SplitPair, ...]
     modes: ModeSet
+    beyond: tuple[Partial, ...] = ()
 
     @property
     def rms_cents(self) -> float:
@@ -130,7 +136,7 @@ class Identification:
 
 
 def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float = MAX_CENTS,
-             split_cents: float = SPLIT_CENTS) -> Identification:
+             split_cents: float = SPLIT_CENTS, progress=None) -> Identification:
     """Fit the struck head's tension to measured partials and label them (m, n).
 
     Parameters
@@ -145,6 +151,8 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
         Largest distance of a partial from its mode to count as a match [cents].
     split_cents : float
         Partials closer than this are taken as one split degenerate mode [cents].
+    progress : callable or None
+        Called with a short message at each stage (the full model takes seconds a solve).
 
     Returns
     -------
@@ -164,11 +172,19 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
     parts = sorted(partials, key=lambda p: p.frequency)
     if len(parts) < 2:
         raise InputError("partials", len(parts), "need at least two partials to fit a tension")
+    # the table reaches 1.6 times the partials' span (the lowest partial may be the (1,1),
+    # 1.59 times the (0,1), when the (0,1) is missed), at most MAX_RANGE times the (0,1)
+    limit = MAX_RANGE.get(physics, 6.0)
     fp = np.array([p.frequency for p in parts])
     t0 = drum.head.tension
-    m_max, n_max = _orders(fp.max() / fp.min() * 1.6)
+    say = progress or (lambda message: None)
+    m_max, n_max = _orders(fp.max() / fp.min() * 1.6, limit)
+    say(f"solving the {physics} model, m <= {m_max}, n <= {n_max}, at the drum file's tension")
     base = solve(drum, physics, m_max=m_max, n_max=n_max)
     labels = [(md.m, md.n, md.branch, md.head) for md in base.modes]
+    # every mode below the table's (m_max, 1) and (0, n_max) is in it; partials above that
+    # cannot be told from the modes left out, so they stay unpaired
+    edge = [k for k, lb in enumerate(labels) if lb[:2] in ((m_max, 1), (0, n_max))]
     double = np.array([md.multiplicity == 2 for md in base.modes])
     f_base = np.array([md.frequency for md in base.modes])
 
@@ -180,7 +196,8 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
             t = t0 * (fp[i] / f_base[k]) ** 2
             if not 1 / MAX_TENSION_FACTOR <= t / t0 <= MAX_TENSION_FACTOR:
                 continue
-            cost, pairs = _assign(fp, f_base * math.sqrt(t / t0), double, max_cents, split_cents)
+            g = f_base * math.sqrt(t / t0)
+            cost, pairs = _assign(fp, g, double, max_cents, split_cents, cover=g[edge].min())
             if best is None or cost < best[0] - 1e-9:
                 best = (cost, t, pairs)
     if best is None or len(best[2]) < 2:
@@ -190,19 +207,25 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
 
     # refine: tension for the pairs (model solved at each trial), then pair again
     modes = base
-    for _ in range(_MAX_ROUNDS):
-        tension = _fit_tension(drum, physics, fp, pairs, labels, tension, m_max, n_max)
+    for round_ in range(_MAX_ROUNDS):
+        say(f"round {round_ + 1}: fitting the tension to {len(pairs)} paired partials")
+        tension = _fit_tension(drum, physics, fp, pairs, labels, tension,
+                               known=None if round_ == 0 else _by_label(modes, labels))
+        say(f"round {round_ + 1}: pairing again at {tension:.1f} N/m")
         modes = solve(drum.with_tension(tension), physics, m_max=m_max, n_max=n_max)
-        new_pairs = _assign(fp, _by_label(modes, labels), double, max_cents, split_cents)[1]
+        g = _by_label(modes, labels)
+        new_pairs = _assign(fp, g, double, max_cents, split_cents, cover=g[edge].min())[1]
         if new_pairs == pairs:
             break
         pairs = new_pairs
-    return _result(drum, tension, t0, parts, pairs, labels, _by_label(modes, labels), modes)
+    g = _by_label(modes, labels)
+    return _result(drum, tension, t0, parts, pairs, labels, g, modes, cover=g[edge].min())
 
 
-def _orders(ratio: float) -> tuple[int, int]:
-    """m_max, n_max so that every ideal mode up to ``ratio`` times the lowest is in the table."""
-    top = min(max(ratio, 3.0), MAX_RANGE) * float(jn_zeros(0, 1)[0])
+def _orders(ratio: float, limit: float) -> tuple[int, int]:
+    """m_max, n_max so that every ideal mode up to ``ratio`` (at most ``limit``) times the
+    lowest is in the table."""
+    top = min(max(ratio, 3.0), limit) * float(jn_zeros(0, 1)[0])
     m_max = 0
     while float(jn_zeros(m_max + 1, 1)[0]) <= top:
         m_max += 1
@@ -211,7 +234,7 @@ def _orders(ratio: float) -> tuple[int, int]:
 
 
 def _assign(f: np.ndarray, g: np.ndarray, double: np.ndarray, max_cents: float,
-            split_cents: float) -> tuple[float, list[tuple[int, int]]]:
+            split_cents: float, cover: float) -> tuple[float, list[tuple[int, int]]]:
     """Pair partials ``f`` with modes ``g`` (both Hz) at least cost; returns cost and pairs.
 
     A pair costs its distance in cents (no pair beyond ``max_cents``). An unpaired partial
@@ -219,6 +242,7 @@ def _assign(f: np.ndarray, g: np.ndarray, double: np.ndarray, max_cents: float,
     :data:`MISSING_MODE_COST` of that (a strike on a mode's nodal line leaves it out, but a
     model far too dense must not win by pairing everything). A degenerate mode
     (``double``) has a second place, for the other half of a split, within ``split_cents``.
+    Partials above ``cover`` [Hz], where the table is no longer complete, stay unpaired.
     """
     cents = np.abs(1200.0 * np.log2(f[:, None] / g[None, :]))
     big = 1e6
@@ -233,6 +257,7 @@ def _assign(f: np.ndarray, g: np.ndarray, double: np.ndarray, max_cents: float,
     missing = np.concatenate([np.where(in_range, MISSING_MODE_COST * max_cents, 0.0),
                               np.zeros(second.size)])
     full = np.full((n_f + n_c, n_c + n_f), big)
+    cost[f > cover, :] = big
     full[:n_f, :n_c] = cost
     full[np.arange(n_f), n_c + np.arange(n_f)] = max_cents  # partial left unpaired
     full[n_f + np.arange(n_c), np.arange(n_c)] = missing
@@ -249,26 +274,29 @@ def _by_label(modes: ModeSet, labels) -> np.ndarray:
     return np.array([table.get(lb, math.nan) for lb in labels])
 
 
-def _fit_tension(drum, physics, fp, pairs, labels, tension, m_max, n_max) -> float:
-    """Least squares in cents over ln T for fixed pairs: the root of the mean log residual.
+def _fit_tension(drum, physics, fp, pairs, labels, tension, *, known=None) -> float:
+    """The tension at which the paired partials sit on their modes on average.
 
-    The mean of ln(f_partial / f_model(T)) over the pairs is zero at the least-squares
-    tension (for a common scale factor); secant steps in ln T, started with the sqrt(T)
-    slope of 1/2, converge in a few solves.
+    The root in ln T of the mean of ln(f_partial / f_model(T)) over the pairs: the
+    least-squares tension in cents when every mode scales alike (exactly so for the ideal
+    membrane, nearly so with stiffness; with air loading the modes' slopes differ a little
+    and this is the zero-mean-residual tension). Secant steps in ln T, started with the
+    sqrt(T) slope of 1/2, converge in a few solves.
     """
     idx_f = np.array([i for i, _ in pairs])
     wanted = [labels[k] for _, k in pairs]
-    if physics != "full":
-        # in vacuum each (m, n) root is independent of the table's size: solve only what we need
-        m_max = max(lb[0] for lb in wanted)
-        n_max = max(lb[1] for lb in wanted)
+    # solve only the orders the pairs need: each m is a separate problem, and the basis
+    # the full model uses does not depend on the table's size beyond 1e-7 relative
+    m_max = max(lb[0] for lb in wanted)
+    n_max = max(lb[1] for lb in wanted)
 
     def h(x):
         modes = solve(drum.with_tension(math.exp(x)), physics, m_max=m_max, n_max=n_max)
         return float(np.mean(np.log(fp[idx_f] / _by_label(modes, wanted))))
 
     x = math.log(tension)
-    hx = h(x)
+    # the model's frequencies at this tension, when the caller has them already
+    hx = h(x) if known is None else float(np.mean(np.log(fp[idx_f] / known[[k for _, k in pairs]])))
     slope = 0.5
     for _ in range(30):
         step = hx / slope
@@ -282,7 +310,7 @@ def _fit_tension(drum, physics, fp, pairs, labels, tension, m_max, n_max) -> flo
     raise SolverError("the tension fit did not settle in 30 model solves")
 
 
-def _result(drum, tension, t0, parts, pairs, labels, freqs, modes) -> Identification:
+def _result(drum, tension, t0, parts, pairs, labels, freqs, modes, cover) -> Identification:
     matches, splits, by_mode = [], [], {}
     for i, k in pairs:
         m, n, branch, head = labels[k]
@@ -298,6 +326,7 @@ def _result(drum, tension, t0, parts, pairs, labels, freqs, modes) -> Identifica
     return Identification(drum=drum.with_tension(tension), tension=float(tension),
                           nominal_tension=float(t0),
                           matches=tuple(sorted(matches, key=lambda mt: mt.partial.frequency)),
-                          unmatched=tuple(p for i, p in enumerate(parts) if i not in paired),
+                          unmatched=tuple(p for i, p in enumerate(parts)
+                                          if i not in paired and p.frequency <= cover),
                           splits=tuple(sorted(splits, key=lambda sp: sp.low.frequency)),
-                          modes=modes)
+                          modes=modes, beyond=tuple(p for p in parts if p.frequency > cover))

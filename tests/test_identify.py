@@ -99,6 +99,26 @@ def test_a_nominal_tension_far_off_still_finds_the_head(kettle, nominal):
     assert result.tension == pytest.approx(TRUE_TENSION, rel=1e-8)
 
 
+def test_full_physics_where_sqrt_t_fails(kettle):
+    # with air loading and the kettle, f is not proportional to sqrt(T) (DESIGN.md 3.7), so
+    # this exercises the fit that re-solves the model; the partials are the full model's own
+    # modes at 4400 N/m (a self-consistency check: the fit must return the tension used)
+    from membrane.solve import solve
+
+    true = solve(kettle.with_tension(TRUE_TENSION), "full", m_max=4, n_max=2)
+    nominal = solve(kettle, "full", m_max=0, n_max=1)
+    low = {(md.m, md.n): md.frequency for md in true.modes}
+    scaled = {(md.m, md.n): md.frequency * math.sqrt(TRUE_TENSION / 4000.0) for md in nominal.modes}
+    # the premise: sqrt(T) scaling misses the (0,1) mode by over a cent here
+    assert abs(1200 * math.log2(scaled[(0, 1)] / low[(0, 1)])) > 1.0
+    modes = [(1, 1), (2, 1), (0, 1), (3, 1), (4, 1), (1, 2), (0, 2)]
+    parts = [Partial(frequency=low[mn], amplitude=1.0 / (1 + i), decay_rate=3.0)
+             for i, mn in enumerate(modes)]
+    result = identify(kettle, parts, physics="full")
+    assert result.tension == pytest.approx(TRUE_TENSION, rel=1e-4)
+    assert [(mt.m, mt.n) for mt in result.matches] == sorted(modes, key=lambda mn: low[mn])
+
+
 def test_too_few_partials_is_an_input_error(kettle):
     with pytest.raises(InputError, match="at least two"):
         identify(kettle, ideal_partials(kettle, TRUE_TENSION, [(1, 1)]), physics="ideal")

@@ -48,7 +48,7 @@ def listen(
              "head's tension.")] = None,
     physics: Annotated[Physics, typer.Option(
         help="Model for the labels (with --drum): ideal, stiff, or full (air and body).")
-    ] = Physics.stiff,
+    ] = Physics.full,
     channel: Annotated[str, typer.Option(
         help="mix (mean of the channels), left, right, or a channel number from 1.")] = "mix",
     floor: Annotated[float, typer.Option(
@@ -97,7 +97,8 @@ def listen(
     if model is not None:
         from ..identify import identify
 
-        ident = identify(model, analysis.partials, physics=physics.value)
+        show = (lambda m: print(f"listen: {m}", file=sys.stderr)) if physics is Physics.full else None
+        ident = identify(model, analysis.partials, physics=physics.value, progress=show)
     rows = []
     labels = {id(mt.partial): mt for mt in ident.matches} if ident else {}
     for p in analysis.partials:
@@ -170,6 +171,7 @@ def _identification_payload(ident, physics: str) -> dict:
         "rms_cents": ident.rms_cents,
         "matched": len(ident.matches),
         "unmatched": [{"frequency_hz": p.frequency, "level_db": p.level_db} for p in ident.unmatched],
+        "beyond_model_range": [{"frequency_hz": p.frequency, "level_db": p.level_db} for p in ident.beyond],
         "splits": [{"m": s.m, "n": s.n, "low_hz": s.low.frequency, "high_hz": s.high.frequency,
                     "beat_hz": s.beat_hz, "cents": s.cents} for s in ident.splits],
         "model_notes": list(ident.modes.notes) + [MODEL_NOTE],
@@ -185,6 +187,9 @@ def _identification_notes(ident, physics: str) -> list[str]:
                    f"beating at {s.beat_hz:.2f} Hz ({s.cents:.1f} cents) - uneven tension round the rim")
     if ident.unmatched:
         out.append("no mode within reach: " + ", ".join(f"{p.frequency:.1f} Hz" for p in ident.unmatched))
+    if ident.beyond:
+        out.append(f"{len(ident.beyond)} partials from {ident.beyond[0].frequency:.0f} Hz up are above "
+                   f"the range of the {physics} model's mode table and are not labelled")
     out += list(ident.modes.notes) + [MODEL_NOTE]
     return out
 
