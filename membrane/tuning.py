@@ -6,6 +6,20 @@ tension is found by root-finding on the model in use; the sqrt(T) scaling only
 supplies the first guess. Several targets are met in the least-squares sense in
 cents, optionally freeing the head's areal density or the kettle's volume.
 
+Safety and validity, as used in the output:
+
+* Stress: film stress T / (plies h) against the film's yield stress (for polyester the
+  producer's stress at 5 % elongation, membrane/data/films.toml). A suggestion above
+  SAFE_STRESS_FRACTION = 0.5 of it gets a caution (a safety factor of 2 on yield:
+  common practice, no source); one that would need more than the tensile strength is
+  refused. The maker's rating of a head always wins over these numbers.
+* Slack limit: the tension D (j11/a)^2 at which bending stiffness holds the (1,1) mode
+  as much as tension does (see :func:`slack_tension`). A target the model cannot reach
+  above it is refused; a suggestion below it (several targets) gets a caution.
+* Lugs: the pitch tapped near a lug is taken as proportional to sqrt(local tension).
+  This is a rule of thumb (common practice, no source), not a result of the model,
+  which treats the tension as uniform; it is labelled so wherever it is printed.
+
 Everything here takes and returns SI floats (N/m, Hz, kg/m^2, m^3, Pa).
 """
 

@@ -59,7 +59,7 @@ def parse_lug_pitches(texts: list[str]) -> tuple[float, ...]:
 
 def _hz_note(hz: float) -> str:
     note, off = note_name(hz)
-    return f"{hz:.2f} Hz ({note}{off:+.0f}c)"
+    return f"{hz:.2f} ({note}{off:+.0f}c)"
 
 
 def tune(
@@ -228,7 +228,7 @@ def _print_human(fmt: Format, drum, payload: dict, result) -> None:
         rows = [{"mode": f"({t['m']},{t['n']})", "target": _hz_note(t["target_hz"]), "now": t["current_hz"],
                  "predicted": t["predicted_hz"], "residual": t["residual_cents"]} for t in payload["targets"]]
         emit(fmt, payload=payload, rows=rows, title="targets",
-             columns=[("mode", "mode", str), ("target", "target", str), ("now", "now (Hz)", num(2)),
+             columns=[("mode", "mode", str), ("target", "target (Hz)", str), ("now", "now (Hz)", num(2)),
                       ("predicted", "at suggestion (Hz)", num(3)), ("residual", "error (cents)", signed(3))],
              notes=[payload["statement"]])
         ref = payload["reference"]
@@ -243,13 +243,13 @@ def _print_human(fmt: Format, drum, payload: dict, result) -> None:
         lugs = payload["lugs"]
         rows = [dict(lug, turns_text=None if lug["turns"] is None else tuning.turns_text(lug["turns"]),
                      tap=_hz_note(lug["tap_hz"])) for lug in lugs["lugs"]]
-        columns = [("lug", "lug", str), ("tap", "tap pitch", str), ("relative_tension", "relative tension", num(3)),
+        columns = [("lug", "lug", str), ("tap", "tap (Hz)", str), ("relative_tension", "relative tension", num(3)),
                    ("change_cents", "change (cents)", signed(1)),
                    ("tension_change_percent", "tension change (%)", signed(1))]
         if lugs["cents_per_turn"]:
             columns.append(("turns_text", "turns (+ tighten)", str))
         emit(fmt, payload=payload, rows=rows, columns=columns,
-             title=f"lugs: bring each to {_hz_note(lugs['target_tap_hz'])}",
+             title=f"lugs: bring each to {_hz_note(lugs['target_tap_hz'])} Hz",
              notes=[lugs["rule"]] + ([f"turns from {lugs['cents_per_turn']:g} cents per turn, rounded to 1/8 turn"]
                                      if lugs["cents_per_turn"] else []))
     notes = [f"caution: {w}" for w in payload["warnings"]] + list(tuning.CAUTIONS)
