@@ -40,6 +40,7 @@ from membrane.errors import InputError, RecordingError
 LN1000 = 3.0 * math.log(10.0)  # an amplitude falls by 60 dB when r t = 3 ln 10
 
 MIN_DURATION_S = 0.1  # shortest decay worth analysing
+MAX_DURATION_S = 10.0  # longest decay analysed: enough for 0.01 Hz, and bounded work
 DEFAULT_FLOOR_DB = -50.0
 DEFAULT_MAX_PARTIALS = 32
 MIN_FREQUENCY_HZ = 20.0  # below this: rumble and DC, not a partial of a drumhead
@@ -314,6 +315,7 @@ def analyse(recording: Recording, *, floor_db: float = DEFAULT_FLOOR_DB,
     if not np.all(np.isfinite(x)):
         raise RecordingError("recording holds NaN or infinite samples")
     onset, start, end = find_strike(x, rate=rate)
+    end = min(end, start + int(MAX_DURATION_S * rate))
     if recording.clipped >= 3:
         stuck = np.nonzero(np.abs(x) >= np.max(np.abs(x)) * (1 - 1e-6))[0]
         later = stuck[-1] + int(0.002 * rate)

@@ -185,6 +185,9 @@ def _bad_files(tmp_path):
     files["too short"] = tmp_path / "short.wav"
     scipy.io.wavfile.write(files["too short"], RATE,
                            np.round(synth(PARTIALS, duration=0.05, lead=0.0) * 32767).astype(np.int16))
+    files["noise only"] = tmp_path / "hiss.wav"
+    hiss = np.random.default_rng(14).normal(0, 0.01, 2 * RATE)
+    scipy.io.wavfile.write(files["noise only"], RATE, np.round(hiss * 32767).astype(np.int16))
     # 8 kHz: a partial at 4100 Hz is above the 4000 Hz Nyquist limit and folds to 3900 Hz
     files["8 kHz"] = tmp_path / "phone.wav"
     low = synth([(700.0, 0.0, 1.0), (1900.0, -6.0, 0.8), (4100.0, -3.0, 0.8)], rate=8000)
@@ -193,7 +196,8 @@ def _bad_files(tmp_path):
 
 
 MESSAGES = {"empty": "empty file", "truncated header": "WAV", "not a WAV": "not a WAV file",
-            "all zeros": "silent", "too short": "at least 0.1 s", "8 kHz": "Nyquist"}
+            "all zeros": "silent", "too short": "at least 0.1 s", "8 kHz": "Nyquist",
+            "noise only": "no partial"}
 
 
 def test_bad_recordings_raise_a_recording_error(tmp_path):
@@ -252,3 +256,12 @@ def test_listen_other_formats(tmp_path, fmt, head):
     result = CliRunner().invoke(cli(), ["listen", str(path), "--format", fmt, "--channel", "1"])
     assert result.exit_code == 0, result.output
     assert head in result.stdout and "150.8" in result.stdout
+
+
+def test_gain_does_not_change_the_partials(decay):
+    # a quieter recording of the same tap: same partials, same relative levels
+    a = analyse(read_array(decay), floor_db=FLOOR)
+    b = analyse(read_array(0.05 * decay), floor_db=FLOOR)
+    check_partials(b.partials, [(p.frequency, p.level_db, p.t60) for p in a.partials],
+                   df=1e-6, t60_rel=1e-6, db=1e-6)
+    assert b.partials[0].amplitude == pytest.approx(0.05 * a.partials[0].amplitude, rel=1e-6)
