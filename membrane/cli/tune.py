@@ -12,8 +12,7 @@ from .. import tuning
 from ..errors import InputError
 from ..units import note_name, parse_pitch
 from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
-                     Radius, Tension, Thickness, Volume, drum_from, emit, fail, num, parse_mode,
-                     signed)
+                     Radius, Tension, Thickness, Volume, drum_from, emit, fail, num, parse_mode)
 
 TARGET_HELP = ("Target pitch: Hz ('87.3', '87.3 Hz'), a note ('F2', 'F#2', 'Bb2') or either with cents "
                "('F2+15c', 'D3 -8 cents'). With --mode give one bare PITCH; for several modes give "
@@ -57,9 +56,18 @@ def parse_lug_pitches(texts: list[str]) -> tuple[float, ...]:
     return tuple(hz)
 
 
-def _hz_note(hz: float) -> str:
+def _note(hz: float) -> str:
     note, off = note_name(hz)
-    return f"{hz:.2f} ({note}{off:+.0f}c)"
+    return f"{note}{round(off) + 0:+d}c"
+
+
+def _hz_note(hz: float) -> str:
+    return f"{hz:.2f} ({_note(hz)})"
+
+
+def _signed(digits: int):
+    """Like common.signed, but a value that rounds to zero prints as +0 (no '-0.000')."""
+    return lambda v: f"{round(v, digits) + 0.0:+.{digits}f}"
 
 
 def tune(
@@ -206,6 +214,9 @@ def _statement(result: tuning.Tuning) -> str:
 
 
 def _print_human(fmt: Format, drum, payload: dict, result) -> None:
+    def gap():
+        print()
+
     if result is not None:
         head_rows = [
             {"what": "current tension", "value": f"{payload['current_tension_n_per_m']:.1f} N/m"},
@@ -225,31 +236,34 @@ def _print_human(fmt: Format, drum, payload: dict, result) -> None:
         head_rows.append({"what": "slack limit", "value": f"{payload['slack_tension_n_per_m']:.3g} N/m"})
         emit(fmt, payload=payload, rows=head_rows, columns=[("what", "", str), ("value", "", str)],
              title=f"{drum.name}: tune with {payload['physics']} physics")
+        gap()
         rows = [{"mode": f"({t['m']},{t['n']})", "target": _hz_note(t["target_hz"]), "now": t["current_hz"],
                  "predicted": t["predicted_hz"], "residual": t["residual_cents"]} for t in payload["targets"]]
         emit(fmt, payload=payload, rows=rows, title="targets",
              columns=[("mode", "mode", str), ("target", "target (Hz)", str), ("now", "now (Hz)", num(2)),
-                      ("predicted", "at suggestion (Hz)", num(3)), ("residual", "error (cents)", signed(3))],
+                      ("predicted", "at suggestion (Hz)", num(3)), ("residual", "error (cents)", _signed(3))],
              notes=[payload["statement"]])
+        gap()
         ref = payload["reference"]
         mode_rows = [dict(row, mode=f"({row['m']},{row['n']})" + (f" {row['branch']}" if "branch" in row else "")
                           + (" resonant" if row.get("head") == "resonant" else ""))
                      for row in payload["modes"]]
         emit(fmt, payload=payload, rows=mode_rows, title=f"modes at the suggestion, ratios to ({ref['m']},{ref['n']})",
              columns=[("mode", "mode", str), ("frequency_hz", "f (Hz)", num(2)), ("decay_s", "T60 (s)", num(2)),
-                      ("ratio", "ratio", num(4)), ("note", "note", str), ("cents_from_note", "cents off", signed(1))],
+                      ("ratio", "ratio", num(4)), ("note", "note", str), ("cents_from_note", "cents off", _signed(1))],
              notes=payload["notes"])
+        gap()
     if "lugs" in payload:
         lugs = payload["lugs"]
         rows = [dict(lug, turns_text=None if lug["turns"] is None else tuning.turns_text(lug["turns"]),
                      tap=_hz_note(lug["tap_hz"])) for lug in lugs["lugs"]]
         columns = [("lug", "lug", str), ("tap", "tap (Hz)", str), ("relative_tension", "relative tension", num(3)),
-                   ("change_cents", "change (cents)", signed(1)),
-                   ("tension_change_percent", "tension change (%)", signed(1))]
+                   ("change_cents", "change (cents)", _signed(1)),
+                   ("tension_change_percent", "tension change (%)", _signed(1))]
         if lugs["cents_per_turn"]:
             columns.append(("turns_text", "turns (+ tighten)", str))
         emit(fmt, payload=payload, rows=rows, columns=columns,
-             title=f"lugs: bring each to {_hz_note(lugs['target_tap_hz'])} Hz",
+             title=f"lugs: bring each to {lugs['target_tap_hz']:.2f} Hz ({_note(lugs['target_tap_hz'])})",
              notes=[lugs["rule"]] + ([f"turns from {lugs['cents_per_turn']:g} cents per turn, rounded to 1/8 turn"]
                                      if lugs["cents_per_turn"] else []))
     notes = [f"caution: {w}" for w in payload["warnings"]] + list(tuning.CAUTIONS)
