@@ -35,6 +35,7 @@ def _write(name: str, writer) -> None:
     os.close(fd)
     try:
         writer(tmp)
+        os.chmod(tmp, 0o644)  # mkstemp makes it private; these are for everyone
         os.replace(tmp, path)
     finally:
         Path(tmp).unlink(missing_ok=True)
@@ -53,7 +54,7 @@ def main() -> None:
     ref = (1, 1)  # a kettledrum's principal tone
     _write("kettledrum_mode21.gif",
            lambda p: animate.render_mode(main_set, main_set.find(2, 1), p, view=GIF_VIEW, reference=ref))
-    _write("kettledrum_modes.png", lambda p: stills.save(stills.mode_grid(main_set, reference=ref), p, dpi=90))
+    _write("kettledrum_modes.png", lambda p: stills.save(stills.mode_grid(main_set, reference=ref), p, dpi=72))
     _write("kettledrum_ratios.png", lambda p: stills.save(stills.ratio_chart([*others, main_set]), p, dpi=90))
     _write("kettledrum_nodal22.png",
            lambda p: stills.save(stills.nodal_diagram(main_set, main_set.find(2, 2), reference=ref), p, dpi=90))
