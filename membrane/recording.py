@@ -252,9 +252,9 @@ def find_strike(samples: np.ndarray, *, rate: float) -> tuple[int, int, int]:
     k0 = onset // hop
     # the mallet is off the head by the loudest frame within 10 ms of the onset
     look = env[k0: k0 + max(1, int(0.01 * rate) // hop) + 1]
-    start = onset + max(0, (k0 + int(np.argmax(look)) - k0)) * hop if look.size else onset
-    start = min(max(start, onset + int(0.002 * rate)), x.size)
-    # noise: quiet frames before the onset, or the quietest tenth of the decay
+    loudest = (k0 + int(np.argmax(look))) * hop if look.size else onset
+    start = min(max(loudest, onset + int(0.002 * rate)), x.size)
+    # the noise level from the frames before the onset, when there are enough of them
     pre = env[: max(0, k0 - 2)]
     post = env[k0:]
     noise = np.median(pre) if pre.size >= 10 else 0.0
