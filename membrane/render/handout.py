@@ -27,6 +27,7 @@ FALLBACK_CAUTIONS = (
 
 TABLE_COLUMNS = ("mode", "f (Hz)", "ratio", "note", "off note\n(cents)", "harmonic", "off harm.\n(cents)",
                  "T60 (s)")
+TABLE_ROWS = 30  # what fits above the legend on one page
 TABLE_WIDTHS = (0.16, 0.12, 0.11, 0.09, 0.12, 0.11, 0.12, 0.11)
 
 
@@ -149,7 +150,7 @@ def handout_pages(modeset, *, compare=(), paper: str = "a4", reference=(0, 1), c
     columns, widths = list(TABLE_COLUMNS), list(TABLE_WIDTHS)
     if all(mode.decay is None for mode in modeset.modes):  # in vacuum: no decay column
         columns, widths, cells = columns[:-1], widths[:-1], [c[:-1] for c in cells]
-    rows = min(len(cells), 36)
+    rows = min(len(cells), TABLE_ROWS)
     ax = fig.add_axes((0.08, 0.30, 0.84, 0.62))
     ax.set_axis_off()
     table = ax.table(cellText=cells[:rows], colLabels=columns, colWidths=widths, loc="upper center",
@@ -168,8 +169,8 @@ def handout_pages(modeset, *, compare=(), paper: str = "a4", reference=(0, 1), c
         *modeset.notes,
     ]
     if len(cells) > rows:
-        legend.insert(0, f"First {rows} of {len(cells)} modes shown.")
-    y = 0.25
+        legend.insert(0, f"The lowest {rows} of {len(cells)} solved modes (membrane modes lists them all).")
+    y = 0.31
     for line in legend:
         for part in textwrap.wrap(line, 100):
             fig.text(0.08, y, part, fontsize=8.5, va="top")

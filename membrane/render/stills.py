@@ -17,6 +17,7 @@ from .shape import CMAP, mode_caption, physics_words, sample
 NODAL_COLOUR = "black"
 # A grid panel is small: a coarser polar grid looks the same and draws 2-3x faster.
 PANEL_GRID = {"radial": 81, "angular": 121}
+LABEL_ALL_UP_TO = 16  # the ratio chart names every mode only when there are this few
 RIM_COLOUR = "0.15"
 
 
@@ -216,6 +217,7 @@ def ratio_chart(modesets, *, fit_modes=None, width: float = 11.0, height: float 
     for ax, modeset in zip(axes, modesets):
         fit, points = ratio_points(modeset, fit_modes=fit_modes)
         hmax = max(p["harmonic_ratio"] for p in points)
+        label_all = len(points) <= LABEL_ALL_UP_TO  # else only the fitted modes, to stay legible
         for h in range(1, int(hmax) + 2):
             ax.axvline(h, color="0.8", linewidth=0.8, zorder=0)
         ax.axhline(0.0, color="0.4", linewidth=0.8, zorder=0)
@@ -226,17 +228,20 @@ def ratio_chart(modesets, *, fit_modes=None, width: float = 11.0, height: float 
                     markersize=7 if filled else 5, linestyle="none",
                     markerfacecolor="#b2182b" if filled else "white",
                     markeredgecolor="#b2182b" if filled else "0.35", gid=p["label"])
-            ax.annotate(p["label"], (p["harmonic_ratio"], p["cents"]), textcoords="offset points",
-                        xytext=(4, 4), fontsize=7 if filled else 6, color="black" if filled else "0.35")
-        ax.set_xlim(0.5, int(hmax) + 1.5)
-        ax.set_xticks(range(1, int(hmax) + 2))
-        ax.set_xlabel("f / f0 (harmonics at whole numbers)")
-        ax.set_title(f"{modeset.physics}: f0 = {fit.fundamental:.1f} Hz, "
+            if filled or label_all:
+                ax.annotate(f"({p['m']},{p['n']})", (p["harmonic_ratio"], p["cents"]),
+                            textcoords="offset points", xytext=(4, 4), fontsize=7 if filled else 6,
+                            color="black" if filled else "0.35")
+        top = int(hmax) + 1
+        ax.set_xlim(0.5, top + 0.5)
+        ax.set_xticks(range(1, top + 1, 1 if top <= 10 else 2))
+        ax.set_xlabel("f / f0")
+        ax.set_title(f"{modeset.physics}: f0 = {fit.fundamental:.1f} Hz\n"
                      f"rms {fit.rms_cents:.1f} cents over {len(fit.fitted)} modes", fontsize=9)
     axes[0].set_ylabel("cents from nearest harmonic")
     drum = getattr(modesets[0].drum, "name", "") or "drum"
-    fig.suptitle(f"{drum}: modes against the best harmonic series\n"
-                 "filled: modes in the fit; grey band: within 10 cents", fontsize=10)
+    fig.suptitle(f"{drum}\nmodes against the best harmonic series (harmonics at whole numbers)\n"
+                 "filled: modes in the fit; hollow: the others; grey band: within 10 cents", fontsize=10)
     return fig
 
 
