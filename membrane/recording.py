@@ -607,7 +607,11 @@ def _polish(z: np.ndarray, poles: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 
 def decay_spectrum(recording: Recording, analysis: Analysis) -> tuple[np.ndarray, np.ndarray]:
-    """Hann-window spectrum of the analysed decay, for pictures.
+    """Spectrum of the analysed decay, for pictures.
+
+    The window is the falling half of a Hann window (full weight at the strike, zero at the
+    end of the analysed decay), so that a partial that dies fast shows as strongly as it
+    sounded, rather than being faded out as a symmetric window would.
 
     Returns
     -------
@@ -619,7 +623,8 @@ def decay_spectrum(recording: Recording, analysis: Analysis) -> tuple[np.ndarray
     i0 = int(round(analysis.start_time * recording.rate))
     i1 = int(round(analysis.end_time * recording.rate))
     y = recording.samples[i0:i1]
+    window = np.cos(0.5 * np.pi * np.arange(y.size) / y.size) ** 2
     nfft = scipy.fft.next_fast_len(4 * y.size, real=True)
-    power = np.abs(scipy.fft.rfft(y * np.hanning(y.size), nfft)) ** 2
+    power = np.abs(scipy.fft.rfft(y * window, nfft)) ** 2
     level = 10 * np.log10(power / power.max() + 1e-30)
     return np.arange(power.size) * recording.rate / nfft, level
