@@ -197,7 +197,7 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
             if not 1 / MAX_TENSION_FACTOR <= t / t0 <= MAX_TENSION_FACTOR:
                 continue
             g = f_base * math.sqrt(t / t0)
-            cost, pairs = _assign(fp, g, double, max_cents, split_cents, cover=g[edge].min())
+            cost, pairs = _assign(fp, g, double, max_cents, split_cents, cover=np.nanmin(g[edge]))
             if best is None or cost < best[0] - 1e-9:
                 best = (cost, t, pairs)
     if best is None or len(best[2]) < 2:
@@ -214,12 +214,12 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
         say(f"round {round_ + 1}: pairing again at {tension:.1f} N/m")
         modes = solve(drum.with_tension(tension), physics, m_max=m_max, n_max=n_max)
         g = _by_label(modes, labels)
-        new_pairs = _assign(fp, g, double, max_cents, split_cents, cover=g[edge].min())[1]
+        new_pairs = _assign(fp, g, double, max_cents, split_cents, cover=np.nanmin(g[edge]))[1]
         if new_pairs == pairs:
             break
         pairs = new_pairs
     g = _by_label(modes, labels)
-    return _result(drum, tension, t0, parts, pairs, labels, g, modes, cover=g[edge].min())
+    return _result(drum, tension, t0, parts, pairs, labels, g, modes, cover=np.nanmin(g[edge]))
 
 
 def _orders(ratio: float, limit: float) -> tuple[int, int]:
@@ -290,13 +290,21 @@ def _fit_tension(drum, physics, fp, pairs, labels, tension, *, known=None) -> fl
     m_max = max(lb[0] for lb in wanted)
     n_max = max(lb[1] for lb in wanted)
 
+    def mean_log(g):
+        # a mode of a two-headed drum may change branch label as the tension moves (the
+        # branches veer); such a pair drops out of the mean rather than spoiling it
+        r = np.log(fp[idx_f] / g)
+        if not np.isfinite(r).any():
+            raise SolverError("the paired modes vanished from the model's table while fitting")
+        return float(np.nanmean(r))
+
     def h(x):
         modes = solve(drum.with_tension(math.exp(x)), physics, m_max=m_max, n_max=n_max)
-        return float(np.mean(np.log(fp[idx_f] / _by_label(modes, wanted))))
+        return mean_log(_by_label(modes, wanted))
 
     x = math.log(tension)
     # the model's frequencies at this tension, when the caller has them already
-    hx = h(x) if known is None else float(np.mean(np.log(fp[idx_f] / known[[k for _, k in pairs]])))
+    hx = h(x) if known is None else mean_log(known[[k for _, k in pairs]])
     slope = 0.5
     for _ in range(30):
         step = hx / slope

@@ -112,6 +112,9 @@ def listen(
             if mt.branch is not None:
                 row["branch"] = mt.branch
                 row["mode"] += f" {mt.branch}"
+            if mt.head is not None:
+                row["head"] = mt.head
+                row["mode"] += " resonant" if mt.head == "resonant" else ""
         rows.append(row)
 
     payload = {"recording": str(recording), "sample_rate_hz": audio.rate, "channels": audio.channels,
