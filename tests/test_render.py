@@ -205,3 +205,33 @@ def test_existing_file_is_kept_without_force(tmp_path):
                "--force").exit_code == 0
     assert out.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     assert [p.name for p in tmp_path.iterdir()] == ["nodal.png"]  # no temporary left behind
+
+
+def test_full_physics_draws_the_air_loaded_shape():
+    # Air loading mixes the in-vacuum shapes: the (0,2) circle moves off the ideal
+    # 0.4357 (SOURCES.md), and the picture must follow the solver, not the Bessel function.
+    full = solve(load_drum("kettledrum"), "full", m_max=2, n_max=2)
+    mode = full.find(0, 2)
+    x, y, w = mesh_of(stills.nodal_diagram(full, mode).axes[0])
+    r = np.hypot(x[0], y[0])
+    assert w[0] == pytest.approx(mode.radial_shape(r * mode.basis.radius), abs=1e-9)
+    circle = crossings(r[r < 0.99], w[0][r < 0.99])
+    assert len(circle) == 1 and abs(circle[0] / 0.4357 - 1) > 0.02, circle
+
+
+def test_a_shell_shows_both_heads_moving_as_the_branch_says():
+    from membrane.render.animate import HeadScene, View
+
+    snare = solve(load_drum("snare"), "full", m_max=0, n_max=1)
+    for mode in snare:
+        scene = HeadScene(snare, mode, View(frames=2, width=64, height=64))
+        try:
+            (top, w_top, z_top), (bottom, w_bottom, z_bottom) = scene.heads
+            assert z_top == 0 and z_bottom < 0
+            # centre displacement, drawn upward-positive; outward is down for the resonant head
+            up_top, up_bottom = w_top[0], w_bottom[0]
+            # DESIGN.md section 6: "in-phase" = the heads' outward displacements share a sign
+            same_way_up = np.sign(up_top) == np.sign(up_bottom)
+            assert same_way_up == (mode.branch == "opposed"), mode.label
+        finally:
+            scene.close()
