@@ -46,8 +46,13 @@ def strike_advice(modeset) -> list[str] | None:
         from ..strike import DEFAULT_MALLET, best_strike_radius
     except ImportError:
         return None
+    from ..errors import MembraneError
+
     fit = modeset.harmonic_fit()
-    advice = best_strike_radius(modeset, modes=fit.fitted)
+    try:
+        advice = best_strike_radius(modeset, modes=fit.fitted)
+    except MembraneError as exc:  # e.g. too few modes solved to weigh some against the rest
+        return [f"(no strike-point advice for these modes: {exc})"]
     a = modeset.drum.head.radius
     names = ", ".join(f"({m},{n})" for m, n in fit.fitted)
     loud = sorted(advice.partials, key=lambda p: -p.level_db)[:5]
