@@ -6,12 +6,12 @@ from functools import lru_cache
 import numpy as np
 import pytest
 
+from membrane import solve
 from membrane.drum import Air, Body, Drum, Head
 from membrane.errors import SolverError
 from membrane.physics.coupled import DEFAULT, LN1000, full_modes
 from membrane.physics.radiation import Quadrature
 from membrane.physics.vacuum import stiff_basis
-from membrane.solve import solve
 
 # A 26-inch kettledrum head of 0.19 mm polyester: 0.262 kg/m^2 (0.19 mm x 1390 kg/m^3,
 # SOURCES.md, from memory), E = 4.5 GPa (film producer's typical value, SOURCES.md), tuned so

@@ -420,6 +420,9 @@ class RootSet:
             raise SolverError("internal: orders of different sizes in one root set")
         self.size = sizes.pop()
         self.has_duct = orders[0].depth is not None
+        rho_c2 = self.rho * self.c**2
+        self.air_spring = max([rho_c2 * np.pi * h.radius**2 / (h.head.tension * o.depth)
+                               for o in orders if o.depth is not None for h in o.heads] + [0.0])
         self.M = np.stack([self.data[i]["M"] for i in self.which])
 
     def _order_data(self, order, kmax, settings):
@@ -642,15 +645,37 @@ def _solve_step(rs: RootSet, idx, omega, vecs, *, outer, body, settings):
         active = active[~conv]
         if not len(active):
             break
-    ok = done & np.isfinite(w) & (_overlap(x, vecs, rs.M[idx]) > 0.8)
-    # two roots of one order on the same resonance: at least one jumped
-    for i in np.unique(rs.which[idx]):
-        sel = np.nonzero(rs.which[idx] == i)[0]
-        ww = w[sel]
-        same = np.abs(ww[:, None] - ww[None, :]) <= 1e-6 * np.abs(ww)[:, None]
+    return w, x, done & np.isfinite(w) & (w.real > 0)
+
+
+def _accept(rs, state, roots, w, v, ok):
+    """Which continued roots are still themselves.
+
+    A root passes if it converged, its vector still resembles its previous one (overlap
+    > 0.5) and resembles it more than any other tracked root's of its order (so a pair that
+    hybridises must rotate by less than 45 degrees per step), and no two roots of one order
+    sit on the same resonance. Otherwise the step is halved.
+    """
+    omega, vecs = state
+    ok = ok & (_overlap(v, vecs[roots], rs.M[roots]) > 0.5)
+    for i in np.unique(rs.which[roots]):
+        mine = np.nonzero(rs.which[roots] == i)[0]  # positions in ``roots``
+        peers = np.nonzero(rs.which == i)[0]  # all roots of the order
+        M = rs.M[peers[0]]
+        old = vecs[peers]
+        new_v = old.copy()
+        new_w = omega[peers].copy()
+        where = np.searchsorted(peers, roots[mine])
+        new_v[where], new_w[where] = v[mine], w[mine]
+        mo, mn = old @ M, new_v @ M
+        O = np.abs(np.conj(new_v) @ mo.T)
+        O /= np.sqrt(np.abs(np.einsum("rn,rn->r", np.conj(new_v), mn)))[:, None]
+        O /= np.sqrt(np.abs(np.einsum("rn,rn->r", np.conj(old), mo)))[None, :]
+        own = np.argmax(O[where], axis=1) == where
+        same = np.abs(new_w[:, None] - new_w[None, :]) <= 1e-6 * np.abs(new_w)[:, None]
         np.fill_diagonal(same, False)
-        ok[sel[same.any(axis=1)]] = False
-    return w, x, ok
+        ok[mine] &= own & ~same[where].any(axis=1)
+    return ok
 
 
 def _advance(rs, state, roots, start, target, *, settings, depth=0, final=True):
@@ -661,11 +686,15 @@ def _advance(rs, state, roots, start, target, *, settings, depth=0, final=True):
     step_settings = settings if final else replace(settings, tol=max(settings.tol, 1e-4))
     w, v, ok = _solve_step(rs, roots, omega[roots], vecs[roots], outer=target[0],
                            body=target[1], settings=step_settings)
-    good = roots[ok]
-    omega[good], vecs[good] = w[ok], v[ok]
-    bad = roots[~ok]
+    ok = _accept(rs, state, roots, w, v, ok)
+    # an order moves as a whole: if one of its roots fails, all of it retries with a
+    # shorter step (a root that jumped onto a neighbour's path may have passed the checks)
+    failed = np.isin(rs.which[roots], rs.which[roots][~ok])
+    good = roots[~failed]
+    omega[good], vecs[good] = w[~failed], v[~failed]
+    bad = roots[failed]
     if len(bad):
-        if depth >= 6:
+        if depth >= 10:
             ms = sorted({rs.orders[i].m for i in rs.which[bad]})
             raise SolverError(
                 f"coupled solve did not converge (orders m = {ms}, air scale {target}, roots "
@@ -702,7 +731,13 @@ def track_roots(rs: RootSet, omega0, vectors0, *, settings: Settings = DEFAULT):
     vecs = _normalise(np.array(vectors0, dtype=complex), rs.M)
     path = [(0.0, 0.0), (1.0, 0.0)]
     if rs.has_duct:
-        path += [(1.0, 0.5), (1.0, 1.0)]
+        # the body's air is switched on in steps; a very stiff air spring (Raichel's B =
+        # rho c^2 pi a^4 / (T V) far above 10) moves the (0,n) roots far, so it gets
+        # geometric steps from a small fraction
+        b = rs.air_spring
+        fractions = [0.5, 1.0] if b <= 16 else list(4.0 ** np.arange(np.ceil(np.log(b / 4) / np.log(4)) + 1)
+                                                     * 4.0 / b)[:-1] + [1.0]
+        path += [(1.0, float(f)) for f in fractions if f <= 1.0]
     roots = np.arange(len(omega))
     for start, target in zip(path[:-1], path[1:]):
         _advance(rs, (omega, vecs), roots, start, target, settings=settings,
