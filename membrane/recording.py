@@ -541,10 +541,9 @@ def _esprit(z: np.ndarray, *, noise_var: float) -> np.ndarray:
     """Poles of the damped exponentials in ``z`` (ESPRIT, order from the singular values)."""
     cols = min(_HANKEL_COLS, z.size // 3)
     rows = z.size - cols + 1
-    hankel = np.lib.stride_tricks.sliding_window_view(z, cols)
     # right singular vectors and values from the small Gram matrix: cheaper than an SVD
     # of the tall Hankel matrix, and accurate enough for the signal subspace
-    ev, vec = np.linalg.eigh(hankel.conj().T @ hankel)
+    ev, vec = np.linalg.eigh(_hankel_gram(z, cols))
     s = np.sqrt(np.clip(ev[::-1], 0.0, None))
     vh = vec[:, ::-1].conj().T
     # the largest singular value of a rows x cols block of white noise
@@ -556,6 +555,24 @@ def _esprit(z: np.ndarray, *, noise_var: float) -> np.ndarray:
     w = vh[:order].T  # cols x order, spans the vectors (1, lam, lam^2, ...) (conjugated)
     psi = np.linalg.lstsq(w[:-1], w[1:], rcond=None)[0]
     return np.linalg.eigvals(psi)
+
+
+def _hankel_gram(z: np.ndarray, cols: int) -> np.ndarray:
+    """H^H H for the Hankel matrix H[i, k] = z[i + k] (``cols`` columns, the rest rows).
+
+    Entry (j, j + d) is a sum of conj(z[i]) z[i + d] over a sliding stretch of i, taken
+    from running sums of the lag-d products: O(cols * len(z)) with no matrix product, which
+    a threaded BLAS on a busy machine makes slow for matrices this small.
+    """
+    n = z.size
+    rows = n - cols + 1
+    gram = np.empty((cols, cols), dtype=complex)
+    for d in range(cols):
+        run = np.concatenate(([0.0], np.cumsum(np.conj(z[: n - d]) * z[d:])))
+        j = np.arange(cols - d)
+        gram[j, j + d] = run[j + rows] - run[j]
+        gram[j + d, j] = np.conj(gram[j, j + d])
+    return gram
 
 
 def _amplitudes(z: np.ndarray, poles: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
