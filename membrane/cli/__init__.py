@@ -50,13 +50,23 @@ app = typer.Typer(
     context_settings={"help_option_names": ["-h", "--help"]},
 )
 
-# Each command module is imported here; the modules import nothing heavy at load.
+# Each command module is imported here; the modules import nothing heavy at load
+# (the library is imported inside each command), so --help stays fast.
 from .examples import examples  # noqa: E402
+from .listen import listen  # noqa: E402
 from .modes import modes  # noqa: E402
+from .render import handout, render  # noqa: E402
+from .strike import strike  # noqa: E402
+from .tune import tune  # noqa: E402
 
 app.command()(modes)
+app.command()(tune)
+app.command()(listen)
+# the unquoted form `--best-for 1,1 2,1 3,1` needs the extra arguments
+app.command(context_settings={"allow_extra_args": True})(strike)
+app.command()(render)
+app.command()(handout)
 app.command()(examples)
-# -- more commands register below this line --
 
 
 def main() -> None:
