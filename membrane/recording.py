@@ -461,8 +461,7 @@ def _peaks(level: np.ndarray, *, height: np.ndarray, spacing: int) -> list[int]:
     for k in cand[np.argsort(-level[cand])]:
         left = level[max(0, k - reach): k]
         right = level[k + 1: k + 1 + reach]
-        if left.size and right.size and min(left.min(), right.min()) <= level[k] - 3.0 \
-                and max(left.min(), right.min()) <= level[k] - 3.0 \
+        if left.size and right.size and max(left.min(), right.min()) <= level[k] - 3.0 \
                 and all(abs(k - j) >= spacing for j in kept):
             kept.append(int(k))
     return kept
