@@ -496,7 +496,9 @@ def _band_fit(spectrum: np.ndarray, *, fc: float, df: float, nfft: int, duration
     dist = np.abs(k - kc) * df
     x = np.clip((dist - _BAND_HALF_HZ) / _BAND_TAPER_HZ, 0.0, 1.0)
     mask = 0.5 * (1.0 + np.cos(np.pi * x))
-    m = scipy.fft.next_fast_len(int(1.25 * (2 * half + 1)))
+    # a little room beyond the mask; at least 256 points, so a short decay still gets
+    # some 100 samples in the band (the extra points interpolate, they add no information)
+    m = scipy.fft.next_fast_len(max(int(1.25 * (2 * half + 1)), 256))
     buf = np.zeros(m, dtype=complex)
     buf[(k - kc) % m] = spectrum[k] * mask
     z = scipy.fft.ifft(buf) * (m / nfft)
