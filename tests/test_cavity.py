@@ -107,3 +107,24 @@ def test_kettle_raises_the_axisymmetric_modes_only():
             assert ratio > 1.01
         else:
             assert ratio == pytest.approx(1.0, abs=1e-8)
+
+
+@pytest.mark.parametrize("B", [100.0, 1e4])
+def test_lumped_kettle_far_beyond_the_table(B):
+    # Raichel's Eq. 6.28 solved by scipy's brentq (COMPUTED): with a very stiff air spring the
+    # roots move to just below the zeros of J2 (A&S Table 9.5); the solver's continuation
+    # must follow them all the way
+    from scipy import optimize
+
+    a, T, sigma = 0.325, 3000.0, 0.262
+    rho = 1e-9
+    air = Air(density=rho, sound_speed=np.sqrt(GAMMA_P0 / rho))
+    V = GAMMA_P0 * np.pi * a**4 / (T * B)
+    drum = Drum(head=Head(radius=a, tension=T, areal_density=sigma),
+                body=Body(kind="kettle", volume=V), air=air)
+    ka = [md.omega.real * a * np.sqrt(sigma / T) for md in full_modes(drum, m_max=0, n_max=3)]
+    f = lambda x: special.j0(x) + B * special.jv(2, x) / x**2  # noqa: E731
+    j0, j2 = special.jn_zeros(0, 1), special.jn_zeros(2, 3)
+    lo = np.concatenate([j0, j2[:2]]) + 1e-9
+    ref = [optimize.brentq(f, lo[i], j2[i] - 1e-12, xtol=1e-14) for i in range(3)]
+    assert ka == pytest.approx(ref, rel=1e-6)

@@ -191,3 +191,22 @@ def test_non_converged_roots_raise():
     with pytest.raises(SolverError):
         full_modes(Drum(head=HEAD, body=Body("kettle", volume=0.17)), m_max=1, n_max=2,
                    settings=replace(DEFAULT, max_iter=1))
+
+
+def test_strongly_coupled_unequal_heads_are_tracked():
+    # a shallow shell (5 cm) with two nearly tuned, unequal heads: the pairs hybridise at a
+    # tiny fraction of the air density; the continuation must still give one root per
+    # in-vacuum mode and a clean pair of branches per (m, n)
+    struck = Head(radius=0.33, tension=4000.0, areal_density=0.5)
+    resonant = Head(radius=0.33, tension=2400.0, areal_density=0.25)
+    modes = shell(struck, resonant, 0.05, m_max=2, n_max=3)
+    assert len(modes) == 3 * 3 * 2
+    for m in range(3):
+        w = np.sort_complex([md.omega for md in modes if md.m == m])
+        assert np.all(np.abs(np.diff(w)) > 1e-6 * np.abs(w[1:]))
+        for n in (1, 2, 3):
+            assert sorted(md.branch for md in modes if (md.m, md.n) == (m, n)) == \
+                ["in-phase", "opposed"]
+    # (0,1): the in-phase branch squeezes the enclosed air, so it is the stiffer one
+    p = {md.branch: md.frequency for md in modes if (md.m, md.n) == (0, 1)}
+    assert p["in-phase"] > 1.5 * p["opposed"]

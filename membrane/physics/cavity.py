@@ -65,9 +65,9 @@ def duct_terms(k, gamma, depth: float):
     k : array_like
         Acoustic wavenumbers (complex allowed), shape (R,).
     gamma : array_like
-        Duct wavenumbers, shape (Q,).
-    depth : float
-        Duct length L in m.
+        Duct wavenumbers, shape (Q,) or one row per k, (R, Q).
+    depth : float or array_like
+        Duct length L in m (a float, or one per k, shape (R,)).
 
     Returns
     -------
@@ -75,9 +75,9 @@ def duct_terms(k, gamma, depth: float):
         Each (R, Q), complex.
     """
     k = np.atleast_1d(np.asarray(k, dtype=complex))[:, None]
-    gamma = np.asarray(gamma, dtype=float)[None, :]
+    gamma = np.atleast_2d(np.asarray(gamma, dtype=float))
     mu = np.sqrt(gamma * gamma - k * k)  # principal: Re mu >= 0
-    x = mu * depth
+    x = mu * np.reshape(depth, (-1, 1))
     e1 = np.exp(-x)
     den = -np.expm1(-2.0 * x)  # 1 - e^{-2 mu L}, accurate for small mu L
     coth = (1.0 + e1 * e1) / den

@@ -32,7 +32,7 @@ import numpy as np
 from scipy import special
 
 from ..errors import InputError, SolverError
-from .cavity import duct_norms, duct_wavenumbers
+from .cavity import duct_norms, duct_terms, duct_wavenumbers
 from .radiation import Quadrature, RadiationTable
 from .vacuum import RadialBasis, _ratio_i, ideal_basis, stiff_basis
 
@@ -449,12 +449,7 @@ class RootSet:
             yield i, np.nonzero(w == i)[0]
 
     def _duct_terms(self, d, depth, omega):
-        k = omega / self.c
-        mu = np.sqrt(d["gamma"][None, :] ** 2 - (k * k)[:, None])
-        x = mu * depth
-        e1 = np.exp(-x)
-        den = -np.expm1(-2.0 * x)
-        fcot, fcsc = -(1.0 + e1 * e1) / den / mu, -2.0 * e1 / den / mu
+        fcot, fcsc = duct_terms(omega / self.c, d["gamma"], depth)
         scale = (self.rho * d["weight"]) * (omega**2)[:, None] / d["norms"][None, :]
         return scale * fcot, scale * fcsc
 
@@ -540,12 +535,9 @@ class RootSet:
                                                     - 1j * ka * np.sum(T * cy[h], axis=1))
             val = kx - omega**2 * mass
             if duct:
-                mu = np.sqrt(gamma**2 - (k * k)[:, None])
-                z = mu * depth[:, None]
-                e1 = np.exp(-z)
-                den = -np.expm1(-2.0 * z)
-                sc = (rho * dweight)[:, None] * (omega**2)[:, None] / norms / mu / den
-                fcot, fcsc = -sc * (1.0 + e1 * e1), -sc * 2.0 * e1
+                fcot, fcsc = duct_terms(k, gamma, depth)
+                sc = (rho * dweight)[:, None] * (omega**2)[:, None] / norms
+                fcot, fcsc = sc * fcot, sc * fcsc
                 if nheads == 1:
                     val = val + body * np.sum((fcot + cross[:, None] * fcsc) * proj[0, 0], axis=1)
                 else:
@@ -710,7 +702,7 @@ def track_roots(rs: RootSet, omega0, vectors0, *, settings: Settings = DEFAULT):
     Parameters
     ----------
     rs : RootSet
-        Stacked problem (after :meth:`RootSet.stack`).
+        All the drum's orders and roots.
     omega0 : array_like
         In-vacuum angular frequencies (rad/s), one per root.
     vectors0 : array_like

@@ -267,16 +267,3 @@ class RadiationTable:
         x = np.moveaxis(chebyshev.chebval(s, self._x, tensor=True), -1, 0)
         y = np.moveaxis(chebyshev.chebval(s, self._y, tensor=True), -1, 0)
         return self.weight * (x - 1j * k[:, None, None] * y)
-
-    def derivative(self, k) -> np.ndarray:
-        """dA/dk / rho, same shape as the call."""
-        k = np.atleast_1d(np.asarray(k, dtype=complex))
-        t = k * k
-        s = 2.0 * t / self.t_max - 1.0
-        dx = chebyshev.chebder(self._x) * (2.0 / self.t_max)
-        dy = chebyshev.chebder(self._y) * (2.0 / self.t_max)
-        x = np.moveaxis(chebyshev.chebval(s, dx, tensor=True), -1, 0)
-        y = np.moveaxis(chebyshev.chebval(s, self._y, tensor=True), -1, 0)
-        yp = np.moveaxis(chebyshev.chebval(s, dy, tensor=True), -1, 0)
-        kk = k[:, None, None]
-        return self.weight * (2 * kk * x - 1j * (y + 2 * kk * kk * yp))
