@@ -66,9 +66,9 @@ class Mode:
 
     @property
     def label(self) -> str:
-        """``"(m,n)"``, with the branch or head for a shell."""
-        extra = self.branch or (self.head if self.head == "resonant" else None)
-        return f"({self.m},{self.n})" + (f" {extra}" if extra else "")
+        """``"(m,n)"``, with the branch and, for the resonant head's family, which head."""
+        words = [w for w in (self.branch, "resonant head" if self.head == "resonant" else None) if w]
+        return f"({self.m},{self.n})" + (" " + ", ".join(words) if words else "")
 
     def radial_shape(self, r, *, resonant: bool = False) -> np.ndarray:
         """Real radial shape on radii r (m), normalised to a peak of 1 on the struck head.
@@ -195,12 +195,18 @@ class ModeSet:
         return len(self.modes)
 
     def find(self, m: int, n: int, branch: str | None = None) -> Mode:
-        """The mode (m, n) (of the given branch, for a shell; default the lower one)."""
-        for mode in self.modes:
-            if mode.m == m and mode.n == n and mode.head != "resonant" and \
-                    (branch is None or mode.branch == branch):
-                return mode
+        """The mode (m, n), of the given branch for a shell (default: the lower one).
+
+        Where both heads of a shell have an (m, n) family, the struck head's is preferred.
+        """
+        found = [mo for mo in self.modes if mo.m == m and mo.n == n and
+                 (branch is None or mo.branch == branch)]
+        if found:
+            struck = [mo for mo in found if mo.head != "resonant"]
+            return (struck or found)[0]
         have = f"m <= {max(x.m for x in self.modes)}, n <= {max(x.n for x in self.modes)}"
+        if branch is not None and any(mo.m == m and mo.n == n for mo in self.modes):
+            have = "no branch " + repr(branch) + " for that mode"
         raise InputError("mode", f"{m},{n}" + (f" {branch}" if branch else ""),
                          f"this drum's solved modes have {have}")
 

@@ -71,17 +71,9 @@ from .modes import Mode, ModeSet
 
 LN1000 = 3.0 * math.log(10.0)  # an amplitude falls 60 dB when (decay rate) * t = 3 ln 10
 
-# The trade's usual strike point, about a quarter of the way in from the rim.
-DEFAULT_AT = 0.75  # common practice, no source
-# Mallet contact times in s.
-MALLETS = {"soft": 3.0e-3, "medium": 1.5e-3, "hard": 0.75e-3}  # common practice, no source
-DEFAULT_MALLET = "medium"
-# Where a player's ear or a microphone typically is: off the axis, in the far field.
-DEFAULT_LISTENER_ANGLE = math.radians(45.0)  # common practice, no source
-DEFAULT_LISTENER_DISTANCE = 1.5  # m, common practice, no source
-SILENT_DB = -200.0  # levels are floored here: "silent to numerical precision"
-SEARCH_RANGE = (0.05, 0.95)  # strike radii the search considers (a mallet has a size)
-PEAK_DBFS = -1.0  # a written preview peaks here
+# Presets (strike point, mallets, listener) are rules of thumb kept in presets.py.
+from .presets import (DEFAULT_AT, DEFAULT_LISTENER_ANGLE, DEFAULT_LISTENER_DISTANCE,  # noqa: E402,F401
+                      DEFAULT_MALLET, MALLETS, PEAK_DBFS, SEARCH_RANGE, SILENT_DB, contact_time)
 
 
 @dataclass(frozen=True)
@@ -188,13 +180,6 @@ class StrikeAdvice:
     contrast_db: float
     partials: tuple
     chosen: tuple
-
-
-def contact_time(mallet: str) -> float:
-    """Contact time in s of a mallet preset (soft, medium, hard)."""
-    if mallet not in MALLETS:
-        raise InputError("mallet", mallet, f"must be one of: {', '.join(MALLETS)}")
-    return MALLETS[mallet]
 
 
 def pulse_spectrum(omega, *, contact_time: float):

@@ -143,10 +143,12 @@ def emit(fmt: Format, *, payload: dict, rows: list[dict], columns: list[tuple[st
 
     table = Table(title=title or None, title_justify="left")
     for i, header in enumerate(headers):
-        table.add_column(header, justify="left" if i == 0 else "right")
+        table.add_column(header, justify="left" if i == 0 else "right", no_wrap=i == 0)
     for c in cells:
         table.add_row(*c)
     console = Console(soft_wrap=False)
+    if not console.is_terminal:  # piped or captured: no terminal width to respect
+        console = Console(soft_wrap=False, width=160)
     console.print(table)
     for n in notes:
         console.print(f"[dim]- {n}[/dim]", highlight=False)

@@ -16,9 +16,9 @@ COLUMNS = [
     ("decay_s", "T60 (s)", num(2)),
     ("ratio", "ratio", num(4)),
     ("harmonic", "harmonic", str),
-    ("cents_from_harmonic", "cents off harmonic", signed(1)),
+    ("cents_from_harmonic", "cents to harmonic", signed(1)),
     ("note", "note", str),
-    ("cents_from_note", "cents off note", signed(1)),
+    ("cents_from_note", "cents to note", signed(1)),
 ]
 
 
@@ -55,9 +55,8 @@ def modes(
     result.find(*ref)  # a clear error if the reference mode was not solved
     rows = result.table(reference=ref, fit_modes=fit_modes)
     harmonic = result.harmonic_fit(fit_modes)
-    for row in rows:
-        row["mode"] = f"({row['m']},{row['n']})" + (f" {row['branch']}" if "branch" in row else "") + \
-            (" resonant" if row.get("head") == "resonant" else "")
+    for row, mode in zip(rows, result.modes):
+        row["mode"] = mode.label
     payload = {
         "drum": drum.name,
         "physics": physics.value,

@@ -12,10 +12,10 @@ from typing import Annotated, Optional
 
 import typer
 
-from ..modes import PHYSICS
-from ..solve import M_MAX_LIMIT, N_MAX_LIMIT, solve
 from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Physics, Radius, Tension,
                      Thickness, Volume, drum_from, fail, parse_mode, write_atomic)
+
+PHYSICS = tuple(p.value for p in Physics)  # the models, in order of what they add
 
 ANIMATIONS = ("gif", "mp4")
 STILLS = ("png", "svg", "pdf")
@@ -73,6 +73,8 @@ def _progress(label: str):
 
 
 def _solve(drum, physics: str, m_max: int, n_max: int, need=(0, 1)):
+    from ..solve import M_MAX_LIMIT, N_MAX_LIMIT, solve
+
     m, n = need
     if m > M_MAX_LIMIT or n > N_MAX_LIMIT:
         fail("--mode", f"{m},{n}", f"this drum's modes are solved up to m = {M_MAX_LIMIT}, n = {N_MAX_LIMIT}")

@@ -10,8 +10,8 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from .. import strike as model
-from ..solve import solve
+from .. import presets
+
 from ..units import to_si
 from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
                      Radius, Tension, Thickness, Volume, drum_from, emit, fail, num, parse_mode,
@@ -21,7 +21,7 @@ COLUMNS = [
     ("mode", "mode", str),
     ("frequency_hz", "f (Hz)", num(2)),
     ("decay_s", "T60 (s)", num(2)),
-    ("level_db", "level (dB)", lambda v: "silent" if v <= model.SILENT_DB else f"{v:.1f}"),
+    ("level_db", "level (dB)", lambda v: "silent" if v <= presets.SILENT_DB else f"{v:.1f}"),
     ("shape_at_strike", "shape at strike", num(3)),
 ]
 MODE_TOKEN = re.compile(r"^\(?\d+,\d+\)?$")
@@ -66,6 +66,8 @@ def _plot(path, result, *, at, t_c, listener, theta0, chosen, advice, title) -> 
     import matplotlib.pyplot as plt
     import numpy as np
 
+    from .. import strike as model
+
     radii = np.linspace(0.0, 1.0, 201)
     p = np.abs(model.pressure_across_radius(result, at=radii, contact_time=t_c, listener=listener,
                                             angle=theta0))
@@ -94,8 +96,8 @@ def _plot(path, result, *, at, t_c, listener, theta0, chosen, advice, title) -> 
         axes[1, 0].plot(radii, c, color="k")
         axes[1, 0].axvline(advice.at, color="k", lw=0.8)
         axes[1, 0].set_ylabel("chosen vs the rest (dB)")
-        axes[1, 0].axvspan(0, model.SEARCH_RANGE[0], color="0.9")
-        axes[1, 0].axvspan(model.SEARCH_RANGE[1], 1, color="0.9")
+        axes[1, 0].axvspan(0, presets.SEARCH_RANGE[0], color="0.9")
+        axes[1, 0].axvspan(presets.SEARCH_RANGE[1], 1, color="0.9")
     axes[-1, 0].set_xlabel("strike radius r/a (0 centre, 1 rim)")
     fig.tight_layout()
     fig.savefig(path, dpi=120)
@@ -108,11 +110,11 @@ def strike(
     at: Annotated[float, typer.Option(
         help="Strike radius as a fraction of the radius from the centre (0 centre, 1 rim); "
              "default 0.75, about a quarter in from the rim, the trade's usual point.")
-    ] = model.DEFAULT_AT,
+    ] = presets.DEFAULT_AT,
     angle: Annotated[float, typer.Option(help="Strike angle on the head, degrees.")] = 0.0,
     mallet: Annotated[str, typer.Option(
         help="Mallet: soft (3 ms contact), medium (1.5 ms), hard (0.75 ms); rule of thumb.")
-    ] = model.DEFAULT_MALLET,
+    ] = presets.DEFAULT_MALLET,
     contact_time: Annotated[Optional[str], typer.Option(
         help="Mallet contact time, e.g. '2 ms' (overrides --mallet).")] = None,
     listener_angle: Annotated[float, typer.Option(
@@ -157,10 +159,10 @@ def strike(
         t_c = to_si(contact_time, "time", key="--contact-time")
         if not 0.0 < t_c <= 0.1:
             fail("--contact-time", contact_time, "must be a positive time up to 100 ms, e.g. '2 ms'")
-    elif mallet.strip().lower() in model.MALLETS:
-        t_c = model.contact_time(mallet.strip().lower())
+    elif mallet.strip().lower() in presets.MALLETS:
+        t_c = presets.contact_time(mallet.strip().lower())
     else:
-        fail("--mallet", mallet, f"must be one of: {', '.join(model.MALLETS)}, or give --contact-time")
+        fail("--mallet", mallet, f"must be one of: {', '.join(presets.MALLETS)}, or give --contact-time")
     if not 0.0 <= listener_angle <= 90.0:
         fail("--listener-angle", listener_angle, "must be from 0 (on the axis) to 90 degrees")
     distance = to_si(listener_distance, "length", key="--listener-distance")
@@ -186,6 +188,9 @@ def strike(
     drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
                      areal_density=areal_density, film=film, thickness=thickness, body=body,
                      volume=volume, depth=depth)
+    from .. import strike as model
+    from ..solve import solve
+
     result = solve(drum, physics.value, m_max=m_max, n_max=n_max)
     if out is not None and t60 is None and any(mo.decay is None for mo in result
                                                if mo.head != "resonant"):
@@ -235,7 +240,7 @@ def strike(
     if advice is not None:
         payload["best_for"] = {"modes": [{"m": m, "n": n} for m, n in advice.chosen],
                                "at": advice.at, "contrast_db": advice.contrast_db,
-                               "search_range": list(model.SEARCH_RANGE)}
+                               "search_range": list(presets.SEARCH_RANGE)}
     if wav is not None:
         payload["wav"] = wav
     if plot is not None:

@@ -8,7 +8,6 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from .. import tuning
 from ..errors import InputError
 from ..units import note_name, parse_pitch
 from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
@@ -107,6 +106,8 @@ def tune(
 
     The suggestion is checked against the film's yield stress and the slack limit.
     """
+    from .. import tuning
+
     drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
                      areal_density=areal_density, film=film, thickness=thickness, body=body,
                      volume=volume, depth=depth)
@@ -166,6 +167,8 @@ def _print_csv(payload: dict) -> None:
 
 
 def _result_payload(result: tuning.Tuning) -> dict:
+    from .. import tuning
+
     first = result.targets[0]
     head = result.drum.head
     s = result.stress
@@ -202,6 +205,8 @@ def _result_payload(result: tuning.Tuning) -> dict:
 
 
 def _statement(result: tuning.Tuning) -> str:
+    from .. import tuning
+
     if result.together:
         return (f"all {len(result.targets)} targets met within {tuning.TOGETHER_CENTS:g} cent"
                 if len(result.targets) > 1 else "target met")
@@ -214,6 +219,8 @@ def _statement(result: tuning.Tuning) -> str:
 
 
 def _print_human(fmt: Format, drum, payload: dict, result) -> None:
+    from .. import tuning
+
     def gap():
         print()
 
