@@ -265,3 +265,12 @@ def test_gain_does_not_change_the_partials(decay):
     check_partials(b.partials, [(p.frequency, p.level_db, p.t60) for p in a.partials],
                    df=1e-6, t60_rel=1e-6, db=1e-6)
     assert b.partials[0].amplitude == pytest.approx(0.05 * a.partials[0].amplitude, rel=1e-6)
+
+
+def test_a_decay_of_a_fifth_of_a_second():
+    # a short tap (FFT bin 5 Hz): well-separated partials are still found and timed
+    three = [(238.9, 0.0, 1.5), (441.2, -6.0, 1.0), (801.3, -10.0, 0.7)]
+    x = synth(three, duration=0.2, lead=0.05, seed=15)
+    result = analyse(read_array(x), floor_db=FLOOR)
+    assert len(result.partials) == 3
+    check_partials(result.partials, three, df=0.05, t60_rel=0.15, db=0.5)
