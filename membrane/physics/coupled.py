@@ -17,10 +17,19 @@ i\omega_i` with time dependence :math:`e^{i\omega t}`: f = ω_r / 2π and T60 = 
 (radiation damping only: the film's internal losses and the air's viscosity are not modelled).
 
 The root of each in-vacuum mode is followed by continuation: the outside air is switched on,
-then the body's air density from 0 to its value, re-solving at each step by a secant iteration
-on the tracked eigenvalue λ(ω) of :math:`(K + S)x = λ(M + A)x` (the one whose vector overlaps
-most with the previous step's). This keeps a root from being captured by a body air resonance.
-A root that does not converge raises :class:`membrane.errors.SolverError`.
+then the body's air density from 0 to its value (in geometric steps for a very stiff air
+spring). At each step every root is re-solved by a Rayleigh-functional iteration: the scalar
+root of :math:`x^T Z(\omega) x = 0` (Z is complex symmetric, so this is stationary in x;
+secant), then an inverse-iteration update :math:`x \leftarrow Z(\omega)^{-1} M x`; a few
+iterations reach 1e-10. A step is accepted only if every root of the order converged, still
+resembles its previous vector more than any other root's, and no two roots coincide; otherwise
+the order retries with half the step. This keeps a root from being captured by a body air
+resonance or by a neighbour it hybridises with. A root that cannot be followed raises
+:class:`membrane.errors.SolverError`: no root is returned unconverged.
+
+All roots of all orders are iterated together (batched linear solves; the radiation matrices
+come from Chebyshev tables in :math:`(ka)^2` that depend on dimensionless geometry only and
+are cached per process), which is what makes the full table fast.
 """
 
 from __future__ import annotations
@@ -802,10 +811,24 @@ def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT):
     """Complex roots of a drum: (orders, which, omega, vectors, tags); see :func:`full_modes`."""
     orders, which, omega0, x0, tags = _orders(drum, m_max=m_max, n_max=n_max, settings=settings)
     air = (drum.air.density, drum.air.sound_speed)
+    which = np.asarray(which)
     k_max = [1.3 * max(h.omega[n_max - 1] for h in o.heads) / air[1] for o in orders]
-    rs = RootSet(orders, which, air=air, settings=settings, k_max=k_max)
-    omega, vecs = track_roots(rs, omega0, x0, settings=settings)
-    return orders, np.asarray(which), omega, vecs, tags
+    for _ in range(3):
+        rs = RootSet(orders, which, air=air, settings=settings, k_max=k_max)
+        omega, vecs = track_roots(rs, omega0, x0, settings=settings)
+        # the radiation tables are series on a range of k: a root beyond it (a very stiff
+        # body can push (0,n) far up) is re-solved with tables that cover it
+        k_root = np.abs(omega) / air[1]
+        short = False
+        for i, d in enumerate(rs.data):
+            ka2 = max(f[2] for f in d["faces"])  # (k a)^2 range of the order's tables
+            need = max(k_root[which == i]) * orders[i].heads[0].radius
+            if need**2 > ka2:
+                k_max[i] = 1.3 * max(k_root[which == i])
+                short = True
+        if not short:
+            return orders, which, omega, vecs, tags
+    raise SolverError("coupled solve: roots keep leaving the radiation tables' range")
 
 
 def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT) -> list:
