@@ -13,11 +13,9 @@ import struct
 import numpy as np
 import pytest
 import scipy.io.wavfile
-import typer
 from typer.testing import CliRunner
 
-from membrane.cli import _OneLineErrors
-from membrane.cli.listen import listen
+from membrane.cli import app
 from membrane.errors import RecordingError
 from membrane.recording import analyse, find_partials, read_wav
 
@@ -215,11 +213,7 @@ def test_below_nyquist_an_8_khz_recording_is_fine():
 # ----------------------------------------------------------------------------- the command
 
 def cli():
-    # the command inside an app with the package's own one-line error handling
-    app = typer.Typer(cls=_OneLineErrors, add_completion=False)
-    app.command()(listen)
-    app.command("other")(lambda: None)  # a second command keeps 'listen' as a subcommand
-    return app
+    return app  # the installed command's own app, with its one-line error handling
 
 
 def test_listen_bad_recordings_exit_2_with_one_line(tmp_path):
@@ -274,3 +268,23 @@ def test_a_decay_of_a_fifth_of_a_second():
     result = analyse(read_array(x), floor_db=FLOOR)
     assert len(result.partials) == 3
     check_partials(result.partials, three, df=0.05, t60_rel=0.15, db=0.5)
+
+
+def test_the_installed_command(tmp_path):
+    import json
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    path = tmp_path / "tap.wav"
+    scipy.io.wavfile.write(path, RATE, np.round(synth(PARTIALS, seed=16) * 32767).astype(np.int16))
+    script = Path(sys.executable).with_name("membrane")
+    done = subprocess.run([str(script), "listen", str(path), "--format", "json", "--floor", "-30"],
+                          capture_output=True, text=True, timeout=120)
+    assert done.returncode == 0, done.stderr
+    freqs = [p["frequency_hz"] for p in json.loads(done.stdout)["partials"]]
+    assert len(freqs) == len(PARTIALS) and abs(freqs[1] - 150.8) < 0.05
+    bad = subprocess.run([str(script), "listen", str(tmp_path / "missing.wav")],
+                         capture_output=True, text=True, timeout=120)
+    assert bad.returncode == 2 and len(bad.stderr.strip().splitlines()) == 1
+    assert "missing.wav" in bad.stderr and "Traceback" not in bad.stderr
