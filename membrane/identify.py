@@ -33,6 +33,7 @@ from .modes import ModeSet
 from .recording import Partial
 from .solve import solve
 
+# Choices of this method (tuned on synthetic taps, no external source):
 MAX_CENTS = 60.0  # a partial further than this from its mode is no match (0.6 semitone)
 SPLIT_CENTS = 25.0  # partials closer than this are one split mode (0.8 Hz at 150 Hz is 9 cents)
 MISSING_MODE_COST = 0.3  # a model mode without a partial, in units of MAX_CENTS

@@ -45,6 +45,7 @@ DEFAULT_FLOOR_DB = -50.0
 DEFAULT_MAX_PARTIALS = 32
 MIN_FREQUENCY_HZ = 20.0  # below this: rumble and DC, not a partial of a drumhead
 
+# Settings of the method, chosen on synthetic decays (tests/test_recording.py), no source:
 _BAND_HALF_HZ = 20.0  # flat part of each band's mask, either side of the seed
 _BAND_TAPER_HZ = 50.0  # width of the cosine taper beyond it
 _EDGE_SKIP_S = 1.5 / _BAND_TAPER_HZ  # the band filter's start-up transient, skipped
