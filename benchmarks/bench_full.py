@@ -53,7 +53,7 @@ def best_of(fn, repeat, cold):
 def main():
     from membrane import load_drum
     from membrane.physics.coupled import full_modes
-    from membrane.solve import solve
+    from membrane.solver import solve
 
     drum = load_drum("kettledrum")
     m_max, n_max = 8, 6

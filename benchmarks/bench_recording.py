@@ -37,7 +37,7 @@ def best_of(fn, repeat=5):
 def signal(rate=48000, seconds=5.0, seed=0):
     """The stiff model of the built-in kettledrum at 4400 N/m: its first 15 modes, (1,1) split."""
     from membrane.drum import load_drum
-    from membrane.solve import solve
+    from membrane.solver import solve
 
     modes = solve(load_drum("kettledrum").with_tension(4400.0), "stiff", m_max=8, n_max=3).modes[:15]
     freqs = [md.frequency for md in modes]

@@ -20,7 +20,7 @@ _WHERE = {
     "load_drum": "drum", "parse_drum": "drum",
     "InputError": "errors", "MembraneError": "errors", "RecordingError": "errors", "SolverError": "errors",
     "HarmonicFit": "modes", "Mode": "modes", "ModeSet": "modes", "harmonic_fit": "modes",
-    "solve": "solve",
+    "solve": "solver",
 }
 __all__ = sorted(_WHERE)
 __version__ = "0.1.0"

@@ -31,7 +31,7 @@ from .drum import Drum
 from .errors import InputError, SolverError
 from .modes import ModeSet
 from .recording import Partial
-from .solve import solve
+from .solver import solve
 
 # Choices of this method (tuned on synthetic taps, no external source):
 MAX_CENTS = 60.0  # a partial further than this from its mode is no match (0.6 semitone)

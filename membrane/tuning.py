@@ -35,7 +35,7 @@ from .bessel import jn_zeros
 from .drum import Drum, Head
 from .errors import InputError, SolverError
 from .modes import ModeSet
-from .solve import M_MAX_LIMIT, N_MAX_LIMIT, solve
+from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
 # A suggestion above this fraction of the film's yield stress gets a caution: a
 # safety factor of 2 on yield, as for static loads on ductile materials.

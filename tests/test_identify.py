@@ -101,7 +101,7 @@ def test_full_physics_where_sqrt_t_fails(kettle):
     # with air loading and the kettle, f is not proportional to sqrt(T) (DESIGN.md 3.7), so
     # this exercises the fit that re-solves the model; the partials are the full model's own
     # modes at 4400 N/m (a self-consistency check: the fit must return the tension used)
-    from membrane.solve import solve
+    from membrane.solver import solve
 
     true = solve(kettle.with_tension(TRUE_TENSION), "full", m_max=4, n_max=2)
     nominal = solve(kettle, "full", m_max=0, n_max=1)
@@ -128,7 +128,7 @@ def test_too_few_partials_is_an_input_error(kettle):
 @pytest.fixture(scope="module")
 def tap(kettle, tmp_path_factory):
     """The stiff model at 4400 N/m struck at r/a = 0.75, 3 s at 48 kHz, 30 dB SNR, 16-bit."""
-    from membrane.solve import solve
+    from membrane.solver import solve
     from membrane.strike import Strike, strike_partials, synthesize
 
     modes = solve(kettle.with_tension(TRUE_TENSION), "stiff", m_max=12, n_max=4)

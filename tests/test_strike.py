@@ -17,7 +17,7 @@ from typer.testing import CliRunner
 from membrane.cli import app
 from membrane.drum import load_drum
 from membrane.modes import ModeSet
-from membrane.solve import solve
+from membrane.solver import solve
 from membrane.strike import (MALLETS, Listener, Strike, best_strike_radius, pulse_spectrum,
                              save_wav, strike_partials, synthesize)
 

@@ -44,7 +44,7 @@ def modes(
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
 ) -> None:
     """Solve a drum's modes: frequencies, decay, ratios, harmonic fit and nearest notes."""
-    from ..solve import solve
+    from ..solver import solve
 
     drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
                      areal_density=areal_density, film=film, thickness=thickness, body=body,

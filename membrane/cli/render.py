@@ -73,7 +73,7 @@ def _progress(label: str):
 
 
 def _solve(drum, physics: str, m_max: int, n_max: int, need=(0, 1)):
-    from ..solve import M_MAX_LIMIT, N_MAX_LIMIT, solve
+    from ..solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
     m, n = need
     if m > M_MAX_LIMIT or n > N_MAX_LIMIT:

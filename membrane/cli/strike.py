@@ -189,7 +189,7 @@ def strike(
                      areal_density=areal_density, film=film, thickness=thickness, body=body,
                      volume=volume, depth=depth)
     from .. import strike as model
-    from ..solve import solve
+    from ..solver import solve
 
     result = solve(drum, physics.value, m_max=m_max, n_max=n_max)
     if out is not None and t60 is None and any(mo.decay is None for mo in result
