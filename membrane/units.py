@@ -38,7 +38,12 @@ def registry():
     """The package's single pint UnitRegistry (created on first use)."""
     import pint
 
-    return pint.UnitRegistry()
+    # pint parses its definitions file on every start (about 0.4 s); its own disk cache
+    # of the parsed definitions makes later starts quick. No cache folder: parse afresh.
+    try:
+        return pint.UnitRegistry(cache_folder=":auto:")
+    except Exception:
+        return pint.UnitRegistry()
 
 
 def to_si(value, kind: str, *, key: str) -> float:

@@ -24,7 +24,7 @@ from dataclasses import dataclass
 from functools import lru_cache
 
 import numpy as np
-from scipy import optimize, special
+from scipy import special
 
 from ..bessel import jn_zeros, jnp_zeros, lommel
 
@@ -90,6 +90,8 @@ def stiff_roots(edge: str, m: int, count: int, s: float, nu: float) -> np.ndarra
     """
     if edge not in EDGES:
         raise ValueError(f"edge must be one of {EDGES}, not {edge!r}")
+    from scipy import optimize  # only the stiff head needs a root finder; it loads slowly
+
     lo, hi = _brackets(edge, m, count)
     roots = np.empty(count)
     for i in range(count):
