@@ -159,6 +159,11 @@ def num(digits: int) -> Callable:
     return lambda v: f"{v:.{digits}f}"
 
 
+def sig(digits: int) -> Callable:
+    """Formatter: a float to a number of significant digits (for spans like T60)."""
+    return lambda v: f"{v:.{digits}g}" if abs(v) < 10 ** digits else f"{v:.{digits - 1}e}"
+
+
 def signed(digits: int) -> Callable:
     """Formatter: a float with a sign and a fixed number of decimals."""
     return lambda v: f"{v:+.{digits}f}"
@@ -204,4 +209,4 @@ def print_error(message: str) -> None:
 
 
 __all__ = ["Format", "Physics", "BodyKind", "fail", "parse_mode", "drum_from", "emit", "num",
-           "signed", "write_atomic", "print_error", "MembraneError"]
+           "sig", "signed", "write_atomic", "print_error", "MembraneError"]

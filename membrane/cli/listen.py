@@ -9,12 +9,12 @@ from typing import Annotated, List, Optional
 import typer
 
 from ..errors import RecordingError
-from .common import Format, Physics, emit, fail, num, signed, write_atomic
+from .common import Format, Physics, emit, fail, num, sig, signed, write_atomic
 
 COLUMNS = [
     ("frequency_hz", "f (Hz)", num(3)),
     ("level_db", "level (dB)", num(1)),
-    ("decay_s", "T60 (s)", num(2)),
+    ("decay_s", "T60 (s)", sig(3)),
     ("note", "note", str),
     ("cents_from_note", "cents off note", signed(0)),
 ]
