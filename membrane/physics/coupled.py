@@ -41,6 +41,7 @@ import numpy as np
 from scipy import special
 
 from ..errors import InputError, SolverError
+from . import table_cache
 from .cavity import duct_norms, duct_terms, duct_wavenumbers
 from .radiation import Quadrature, RadiationTable
 from .vacuum import RadialBasis, _ratio_i, ideal_basis, stiff_basis
@@ -330,9 +331,31 @@ def unit_table(shape: _Shape, ka_max: float, quadrature: Quadrature) -> Radiatio
     """Radiation table of :func:`unit_space` up to k a = ka_max.
 
     Depends on dimensionless geometry only, so it is computed once per process and shared
-    by every drum whose head has the same shape of basis (cached).
+    by every drum whose head has the same shape of basis (cached), and its Chebyshev
+    coefficients are kept on disk between processes (table_cache.py; exact keys, so a table
+    read back is the one a fresh build gives, bit for bit).
     """
-    return RadiationTable(unit_space(shape), k_max=ka_max, quadrature=quadrature)
+    space = unit_space(shape)
+    name = table_cache.key("radiation-table", shape, float(ka_max), quadrature)
+    stored = table_cache.load(name, {"x": (None, space.size, space.size),
+                                     "y": (None, space.size, space.size), "k_max": ()})
+    if (stored is not None and float(stored["k_max"]) == ka_max
+            and stored["x"].shape == stored["y"].shape and len(stored["x"]) > 0):
+        return _restored_table(space, ka_max, stored["x"], stored["y"])
+    table = RadiationTable(space, k_max=ka_max, quadrature=quadrature)
+    table_cache.store(name, x=table._x, y=table._y, k_max=np.array(table.k_max))
+    return table
+
+
+def _restored_table(space, ka_max: float, x: np.ndarray, y: np.ndarray) -> RadiationTable:
+    """A RadiationTable from stored coefficients, with the attributes its constructor sets."""
+    table = RadiationTable.__new__(RadiationTable)
+    table.k_max = float(ka_max)
+    table.t_max = table.k_max**2
+    table.weight = 2 * np.pi if space.m == 0 else np.pi
+    table.degree = len(x)
+    table._x, table._y = x, y
+    return table
 
 
 @lru_cache(maxsize=512)
