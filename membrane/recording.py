@@ -49,6 +49,10 @@ MIN_FREQUENCY_HZ = 20.0  # below this: rumble and DC, not a partial of a drumhea
 _BAND_HALF_HZ = 20.0  # flat part of each band's mask, either side of the seed
 _BAND_TAPER_HZ = 50.0  # width of the cosine taper beyond it
 _EDGE_SKIP_S = 1.5 / _BAND_TAPER_HZ  # the band filter's start-up transient, skipped
+# A fitted component dying as fast as the band filter's own start-up transient (time
+# constant about 1 / (pi * taper)) cannot be told from it, so it is not reported: the
+# method resolves partials with T60 above 3 ln 10 * pi * taper ~ 44 ms.
+_FASTEST_RATE = math.pi * _BAND_TAPER_HZ  # 1/s
 _MAX_ORDER = 10  # damped exponentials per band at most
 _HANKEL_COLS = 48  # columns of the band's Hankel matrix (rows: the rest of the samples)
 _NOISE_FACTOR = 2.0  # singular values this far above the noise ones count as signal
@@ -396,7 +400,7 @@ def find_partials(decay: np.ndarray, *, rate: float, floor_db: float = DEFAULT_F
         sigma2 = float(np.interp(fc, grid, noise_var))
         for f, c, r in _band_fit(spectrum, fc=fc, df=df, nfft=nfft, duration=n / rate,
                                  noise_var=sigma2):
-            if lo <= f < hi and f >= min_frequency and f < rate / 2:
+            if lo <= f < hi and f >= min_frequency and f < rate / 2 and r < _FASTEST_RATE:
                 found.append((f, 2.0 * abs(c) * math.exp(r * time_origin), r))
     if not found:
         return ()

@@ -205,3 +205,26 @@ def test_listen_bad_options_exit_2(tap, extra, words):
     assert result.exit_code == 2, result.output
     line = result.stderr.strip()
     assert "\n" not in line and words in line, line
+
+
+def test_a_soft_mallet_preview_with_full_physics_gives_the_tension(kettle, tmp_path):
+    # Regression: a full-physics preview struck with the soft mallet (3 ms contact, a rule of
+    # thumb) once gave a spurious fast component the band filter's start-up transient makes,
+    # which took the level reference and pushed the real partials under the floor.
+    from membrane.solver import solve
+    from membrane.strike import Strike, strike_partials, synthesize
+
+    modes = solve(kettle, "full")
+    heard = strike_partials(modes, strike=Strike(at=0.75, contact_time=3e-3))
+    x = synthesize(heard, rate=44100, seconds=4.0, contact_time=3e-3)
+    path = tmp_path / "soft.wav"
+    scipy.io.wavfile.write(path, 44100, np.round(x * 32767).astype(np.int16))
+    analysis = analyse(read_wav(path))
+    truth = {(md.m, md.n): md.frequency for md in modes.modes}
+    # every partial found is one the model put there (within 0.5 Hz) or far weaker than the loudest
+    strongest = max(analysis.partials, key=lambda p: p.level_db)
+    assert nearest(truth, strongest.frequency) is not None
+    result = identify(kettle, analysis.partials, physics="full")
+    assert result.tension == pytest.approx(kettle.head.tension, rel=0.01)
+    right = [mt for mt in result.matches if nearest(truth, mt.partial.frequency) == (mt.m, mt.n)]
+    assert len(right) >= 8
