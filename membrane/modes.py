@@ -222,9 +222,10 @@ class ModeSet:
         family a kettledrum's air loading brings near a harmonic series; where fewer
         than two of them were solved, all modes are used.
         """
-        if fit_modes is None:
-            fit_modes = [(m, 1) for m in range(1, 6)]
-        chosen = [self.find(m, n) for m, n in fit_modes if self._has(m, n)]
+        if fit_modes is None:  # the default family, as far as it was solved
+            chosen = [self.find(m, 1) for m in range(1, 6) if self._has(m, 1)]
+        else:  # modes asked for by name must exist
+            chosen = [self.find(m, n) for m, n in fit_modes]
         if len(chosen) < 2:
             chosen = [mode for mode in self.modes if mode.head != "resonant"]
         f0, h, rms = harmonic_fit([mode.frequency for mode in chosen])
@@ -268,6 +269,22 @@ class ModeSet:
                 row["head"] = mode.head
             rows.append(row)
         return rows
+
+
+T60_SHOWN_MAX = 100.0  # s; longer radiation-only decay times are shown as "> 100 s"
+
+
+def t60_text(decay: float | None, digits: int = 3) -> str:
+    """A T60 for people: 3 significant figures, and "> 100" beyond 100 s.
+
+    Radiation alone barely damps the modes with many nodal diameters, so their
+    radiation-only T60 runs to hours; what really stops them (film, rim and air losses)
+    is not modelled, so such a number says only "radiation is not what stops it".
+    The exact value stays in JSON and CSV output.
+    """
+    if decay is None:
+        return ""
+    return f"> {T60_SHOWN_MAX:g}" if decay > T60_SHOWN_MAX else f"{decay:.{digits}g}"
 
 
 def sort_modes(modes) -> tuple:

@@ -11,6 +11,10 @@ from .physics.vacuum import RadialBasis, ideal_basis, stiff_basis
 
 M_MAX_LIMIT = 50  # beyond this the table is unreadable and the high modes meaningless
 N_MAX_LIMIT = 50
+# The coupled solve of 20 x 10 modes already takes half a minute; beyond that it is not
+# a table anyone waits for (and modes that high hardly matter to the sound).
+FULL_M_MAX = 20
+FULL_N_MAX = 10
 
 NOTE_VACUUM = "in vacuum: no air loading, no body; decay times are not modelled"
 NOTE_STIFF_NONE = "the head has no Young's modulus or thickness, so no bending stiffness: stiff = ideal"
@@ -89,6 +93,10 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3) 
         notes.append(NOTE_VACUUM)
         modes = vacuum_modes(drum, m_max=m_max, n_max=n_max, stiff=stiff)
     else:
+        if m_max > FULL_M_MAX or n_max > FULL_N_MAX:
+            raise InputError("m_max, n_max", f"{m_max}, {n_max}",
+                             f"with full physics at most m_max = {FULL_M_MAX} and n_max = {FULL_N_MAX} "
+                             "(the coupled solve grows fast; use --physics stiff for bigger tables)")
         from .physics.coupled import full_modes, model_notes
 
         modes = full_modes(drum, m_max=m_max, n_max=n_max)

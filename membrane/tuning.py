@@ -345,6 +345,11 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
         raise SolverError(f"the tension search ended {found[0].residual_cents:+.2f} cents from the target "
                           f"for mode ({m},{n}); the mode may change character near this tension")
     warnings = safety_warnings(suggested.head, tension)
+    if free is not None and not 0.5 <= value / current_value <= 2.0:
+        # a fit may buy a cent or two with a drum nobody would build: say so
+        what = "areal density" if free == "areal-density" else "kettle volume"
+        warnings.append(f"the fit changes the {what} by a factor of {value / current_value:.2f} "
+                        f"({current_value:.4g} -> {value:.4g} SI): check it is a drum you can build")
     return Tuning(current_tension=t_now, tension=tension, naive_tension=naive, targets=tuple(found),
                   drum=suggested, modes=final, free=free, current_value=current_value, value=value,
                   together=together, warnings=tuple(warnings), solves=model.solves + bool(table))

@@ -68,6 +68,7 @@ def test_stiff_is_above_ideal_for_the_builtin_drum():
     (["--n-max", "0"], "n_max"),
     (["--reference", "9,9"], "mode"),
     (["--reference", "one"], "--reference"),
+    (["--fit", "9,9"], "mode"),
     (["--physics", "quantum"], "quantum"),
     (["--format", "xml"], "xml"),
     (["--bogus"], "bogus"),
@@ -116,3 +117,16 @@ def test_real_subprocess_of_the_installed_script():
     good = subprocess.run([*exe, "modes", "kettledrum", "--physics", "ideal", "--format", "json"],
                           capture_output=True, text=True, timeout=60)
     assert good.returncode == 0 and json.loads(good.stdout)["modes"]
+
+
+def test_full_physics_refuses_tables_too_big_to_wait_for():
+    result = run("modes", "kettledrum", "--m-max", "50", "--n-max", "50")
+    assert result.exit_code == 2 and "full physics at most" in result.stderr
+
+
+def test_radiation_only_decay_beyond_100_s_is_shown_as_such():
+    # the (5,1) and (6,1) modes of the built-in kettledrum radiate very little (T60 > 100 s)
+    table = run("modes", "kettledrum", "--m-max", "6", "--n-max", "1").stdout
+    assert "> 100" in table
+    data = json.loads(run("modes", "kettledrum", "--m-max", "6", "--n-max", "1", "--format", "json").stdout)
+    assert max(row["decay_s"] for row in data["modes"]) > 100  # JSON keeps the number

@@ -159,9 +159,11 @@ def num(digits: int) -> Callable:
     return lambda v: f"{v:.{digits}f}"
 
 
-def sig(digits: int) -> Callable:
-    """Formatter: a float to a number of significant digits (for spans like T60)."""
-    return lambda v: f"{v:.{digits}g}" if abs(v) < 10 ** digits else f"{v:.{digits - 1}e}"
+def t60(value) -> str:
+    """Formatter for T60 columns (see :func:`membrane.modes.t60_text`)."""
+    from ..modes import t60_text
+
+    return t60_text(value)
 
 
 def signed(digits: int) -> Callable:
@@ -209,4 +211,4 @@ def print_error(message: str) -> None:
 
 
 __all__ = ["Format", "Physics", "BodyKind", "fail", "parse_mode", "drum_from", "emit", "num",
-           "sig", "signed", "write_atomic", "print_error", "MembraneError"]
+           "signed", "t60", "write_atomic", "print_error", "MembraneError"]

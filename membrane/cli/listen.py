@@ -9,12 +9,12 @@ from typing import Annotated, List, Optional
 import typer
 
 from ..errors import RecordingError
-from .common import Format, Physics, emit, fail, num, sig, signed, write_atomic
+from .common import Format, Physics, emit, fail, num, signed, t60, write_atomic
 
 COLUMNS = [
     ("frequency_hz", "f (Hz)", num(3)),
     ("level_db", "level (dB)", num(1)),
-    ("decay_s", "T60 (s)", sig(3)),
+    ("decay_s", "T60 (s)", t60),
     ("note", "note", str),
     ("cents_from_note", "cents off note", signed(0)),
 ]

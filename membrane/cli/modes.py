@@ -8,12 +8,12 @@ import typer
 
 from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
                      Radius, Tension, Thickness, Volume, drum_from, emit, num, parse_mode,
-                     signed, sig)
+                     signed, t60)
 
 COLUMNS = [
     ("mode", "mode", str),
     ("frequency_hz", "f (Hz)", num(2)),
-    ("decay_s", "T60 (s)", sig(3)),
+    ("decay_s", "T60 (s)", t60),
     ("ratio", "ratio", num(4)),
     ("harmonic", "harmonic", str),
     ("cents_from_harmonic", "cents to harmonic", signed(1)),

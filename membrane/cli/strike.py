@@ -15,12 +15,12 @@ from .. import presets
 from ..units import to_si
 from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
                      Radius, Tension, Thickness, Volume, drum_from, emit, fail, num, parse_mode,
-                     write_atomic, sig)
+                     write_atomic, t60)
 
 COLUMNS = [
     ("mode", "mode", str),
     ("frequency_hz", "f (Hz)", num(2)),
-    ("decay_s", "T60 (s)", sig(3)),
+    ("decay_s", "T60 (s)", t60),
     ("level_db", "level (dB)", lambda v: "silent" if v <= presets.SILENT_DB else f"{v:.1f}"),
     ("shape_at_strike", "shape at strike", num(3)),
 ]

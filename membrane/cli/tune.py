@@ -11,7 +11,7 @@ import typer
 from ..errors import InputError
 from ..units import note_name, parse_pitch
 from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
-                     Radius, Tension, Thickness, Volume, drum_from, emit, fail, num, parse_mode, sig)
+                     Radius, Tension, Thickness, Volume, drum_from, emit, fail, num, parse_mode, t60)
 
 TARGET_HELP = ("Target pitch: Hz ('87.3', '87.3 Hz'), a note ('F2', 'F#2', 'Bb2') or either with cents "
                "('F2+15c', 'D3 -8 cents'). With --mode give one bare PITCH; for several modes give "
@@ -256,7 +256,7 @@ def _print_human(fmt: Format, drum, payload: dict, result) -> None:
                           + (" resonant" if row.get("head") == "resonant" else ""))
                      for row in payload["modes"]]
         emit(fmt, payload=payload, rows=mode_rows, title=f"modes at the suggestion, ratios to ({ref['m']},{ref['n']})",
-             columns=[("mode", "mode", str), ("frequency_hz", "f (Hz)", num(2)), ("decay_s", "T60 (s)", sig(3)),
+             columns=[("mode", "mode", str), ("frequency_hz", "f (Hz)", num(2)), ("decay_s", "T60 (s)", t60),
                       ("ratio", "ratio", num(4)), ("note", "note", str), ("cents_from_note", "cents off", _signed(1))],
              notes=payload["notes"])
         gap()

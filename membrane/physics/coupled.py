@@ -928,7 +928,8 @@ def model_notes(drum) -> list[str]:
     notes = ["air loading from baffled radiation on each open face (an infinite rigid baffle "
              "at the rim: approximate for a drum without one)",
              "decay times (T60) are from sound radiation only; losses in the film, the rim "
-             "and the air are not modelled, so real partials die sooner"]
+             "and the air are not modelled, so real partials die sooner (tables show those "
+             "beyond 100 s as > 100)"]
     kind = drum.body.kind
     if kind == "kettle":
         notes.append("kettle modelled as a rigid cylinder of the bowl's volume under the head: "

@@ -84,7 +84,9 @@ def mode_caption(modeset, mode, *, reference: tuple[int, int] = (0, 1), short: b
     if ratio is not None:
         parts.append(f"x{ratio:.3f}" if short else f"ratio {ratio:.3f} to ({reference[0]},{reference[1]})")
     if mode.decay is not None and not short:
-        parts.append(f"T60 {mode.decay:.2f} s")
+        from ..modes import t60_text
+
+        parts.append(f"T60 {t60_text(mode.decay)} s")
     return "  ".join(parts)
 
 

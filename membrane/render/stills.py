@@ -28,6 +28,9 @@ def _figure(size):
     return Figure(figsize=size, layout="constrained")
 
 
+NOISE_FLOOR = 1e-3  # fraction of the peak displacement below which the sign is not drawn
+
+
 def draw_field(ax, mode, *, signs: bool = False, hatch: bool = False, radial: int | None = None,
                angular: int | None = None):
     """Draw one mode's displacement on an axes: colour, nodal lines, rim.
@@ -56,10 +59,12 @@ def draw_field(ax, mode, *, signs: bool = False, hatch: bool = False, radial: in
     mesh = ax.pcolormesh(x, y, field.w, shading="gouraud", cmap=CMAP, vmin=-1.0, vmax=1.0,
                          rasterized=True)
     inner = field.r < 0.995  # the rim is a node anyway: drawn as the rim, not as a contour
-    ax.contour(x[:, inner], y[:, inner], field.w[:, inner], levels=[0.0], colors=NODAL_COLOUR,
-               linewidths=1.4)
+    # Where the head barely moves (below 0.1 % of the peak, e.g. near the centre of a mode
+    # with many nodal diameters) the sign is numerical noise: no nodal line is drawn there.
+    w = np.ma.masked_where(np.abs(field.w) < NOISE_FLOOR, field.w)[:, inner]
+    ax.contour(x[:, inner], y[:, inner], w, levels=[0.0], colors=NODAL_COLOUR, linewidths=1.4)
     if hatch:
-        ax.contourf(x[:, inner], y[:, inner], field.w[:, inner], levels=[-2.0, 0.0], colors="none",
+        ax.contourf(x[:, inner], y[:, inner], w, levels=[-2.0, 0.0], colors="none",
                     hatches=["///"])
     from matplotlib.patches import Circle
 
@@ -93,6 +98,7 @@ def antinodes(r, shape, m: int):
     """
     inner = r < 0.995
     r, shape = r[inner], shape[inner]
+    shape = np.where(np.abs(shape) < NOISE_FLOOR, 0.0, shape)  # noise is no region
     cuts = np.flatnonzero(np.sign(shape[1:]) * np.sign(shape[:-1]) < 0) + 1
     out = []
     for seg in np.split(np.arange(r.size), cuts):
