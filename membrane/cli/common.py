@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import csv
+import functools
+import inspect
 import io
 import json
 import math
@@ -74,6 +76,39 @@ Thickness = Annotated[Optional[str], typer.Option(help="Film thickness per ply, 
 Body = Annotated[Optional[BodyKind], typer.Option(help="What is under the head.")]
 Volume = Annotated[Optional[str], typer.Option(help="Kettle volume, e.g. '0.17 m^3', '170 L'.")]
 Depth = Annotated[Optional[str], typer.Option(help="Shell depth, e.g. '14 in'.")]
+
+
+# The flags every drum-taking command offers, in the order --help lists them.
+DRUM_FLAGS = {"diameter": Diameter, "radius": Radius, "tension": Tension,
+              "areal_density": ArealDensity, "film": Film, "thickness": Thickness,
+              "body": Body, "volume": Volume, "depth": Depth}
+
+
+def with_drum_flags(command: Callable) -> Callable:
+    """Give a command the drum flags (--diameter ... --depth) without declaring them again.
+
+    The command declares a keyword parameter ``drum_flags: dict``; the flags take its
+    place in the command-line signature, and their values reach the command in that
+    dict, ready for :func:`drum_from`.
+    """
+    signature = inspect.signature(command, eval_str=True)
+    params = list(signature.parameters.values())
+    at = [p.name for p in params].index("drum_flags")
+    added = [inspect.Parameter(name, inspect.Parameter.KEYWORD_ONLY if
+                               params[at].kind is inspect.Parameter.KEYWORD_ONLY else
+                               inspect.Parameter.POSITIONAL_OR_KEYWORD, default=None, annotation=kind)
+             for name, kind in DRUM_FLAGS.items()]
+    params[at:at + 1] = added
+
+    @functools.wraps(command)
+    def wrapper(*args, **kwargs):
+        flags = {name: kwargs.pop(name, None) for name in DRUM_FLAGS}
+        return command(*args, drum_flags=flags, **kwargs)
+
+    wrapper.__signature__ = signature.replace(parameters=params)
+    wrapper.__annotations__ = {p.name: p.annotation for p in params
+                               if p.annotation is not inspect.Parameter.empty}
+    return wrapper
 
 
 def drum_from(drum_file: str | None, **flags) -> Drum:

@@ -6,9 +6,8 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
-                     Radius, Tension, Thickness, Volume, drum_from, emit, num, parse_mode,
-                     signed, t60)
+from .common import (DrumFile, Format, Physics, drum_from, emit, num, parse_mode, signed, t60,
+                     with_drum_flags)
 
 COLUMNS = [
     ("mode", "mode", str),
@@ -22,17 +21,10 @@ COLUMNS = [
 ]
 
 
+@with_drum_flags
 def modes(
     drum_file: DrumFile = None,
-    diameter: Diameter = None,
-    radius: Radius = None,
-    tension: Tension = None,
-    areal_density: ArealDensity = None,
-    film: Film = None,
-    thickness: Thickness = None,
-    body: Body = None,
-    volume: Volume = None,
-    depth: Depth = None,
+    drum_flags: dict = None,
     physics: Annotated[Physics, typer.Option(
         help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
     ] = Physics.full,
@@ -46,9 +38,7 @@ def modes(
     """Solve a drum's modes: frequencies, decay, ratios, harmonic fit and nearest notes."""
     from ..solver import solve
 
-    drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
-                     areal_density=areal_density, film=film, thickness=thickness, body=body,
-                     volume=volume, depth=depth)
+    drum = drum_from(drum_file, **drum_flags)
     ref = parse_mode(reference, key="--reference")
     fit_modes = [parse_mode(f, key="--fit") for f in fit] if fit else None
     result = solve(drum, physics.value, m_max=m_max, n_max=n_max)

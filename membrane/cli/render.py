@@ -12,8 +12,7 @@ from typing import Annotated, Optional
 
 import typer
 
-from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Physics, Radius, Tension,
-                     Thickness, Volume, drum_from, fail, parse_mode, write_atomic)
+from .common import (DrumFile, Physics, drum_from, fail, parse_mode, with_drum_flags, write_atomic)
 
 PHYSICS = tuple(p.value for p in Physics)  # the models, in order of what they add
 
@@ -91,6 +90,7 @@ def _find(modeset, m: int, n: int, branch: str | None):
     return modeset.find(m, n, branch)  # raises the library's one-line error
 
 
+@with_drum_flags
 def render(
     drum_file: DrumFile = None,
     out: Annotated[Optional[Path], typer.Option("--out", help=(
@@ -114,15 +114,7 @@ def render(
     elevation: Annotated[float, typer.Option(help="Camera height above the head's plane, degrees.")] = 36.0,
     azimuth: Annotated[float, typer.Option(help="Camera angle around the drum's axis, degrees.")] = -60.0,
     fps: Annotated[float, typer.Option(help="Animation frames per second.")] = 24.0,
-    diameter: Diameter = None,
-    radius: Radius = None,
-    tension: Tension = None,
-    areal_density: ArealDensity = None,
-    film: Film = None,
-    thickness: Thickness = None,
-    body: Body = None,
-    volume: Volume = None,
-    depth: Depth = None,
+    drum_flags: dict = None,
     physics: PhysicsOpt = Physics.full,
     m_max: MMax = 6,
     n_max: NMax = 3,
@@ -145,9 +137,7 @@ def render(
     else:
         fmt = _suffix(out, STILLS, "a grid or ratio chart", force)
     ref = parse_mode(reference, key="--reference")
-    drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
-                     areal_density=areal_density, film=film, thickness=thickness, body=body,
-                     volume=volume, depth=depth)
+    drum = drum_from(drum_file, **drum_flags)
 
     if mode is not None:
         m, n = parse_mode(mode)
@@ -191,6 +181,7 @@ def render(
     print(f"wrote {out}", file=sys.stderr)
 
 
+@with_drum_flags
 def handout(
     drum_file: DrumFile = None,
     out: Annotated[Optional[Path], typer.Option("--out", help="Output .pdf file.")] = None,
@@ -199,15 +190,7 @@ def handout(
         "Physics models shown beside --physics in the ratio chart, e.g. ideal,stiff, or none "
         "(default: the simpler models below --physics)."))] = None,
     count: Count = 12,
-    diameter: Diameter = None,
-    radius: Radius = None,
-    tension: Tension = None,
-    areal_density: ArealDensity = None,
-    film: Film = None,
-    thickness: Thickness = None,
-    body: Body = None,
-    volume: Volume = None,
-    depth: Depth = None,
+    drum_flags: dict = None,
     physics: PhysicsOpt = Physics.full,
     m_max: MMax = 6,
     n_max: NMax = 3,
@@ -223,9 +206,7 @@ def handout(
     if paper not in ("a4", "letter"):
         fail("--paper", paper, "must be a4 or letter")
     ref = parse_mode(reference, key="--reference")
-    drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
-                     areal_density=areal_density, film=film, thickness=thickness, body=body,
-                     volume=volume, depth=depth)
+    drum = drum_from(drum_file, **drum_flags)
     if compare is None:
         others = list(PHYSICS[:PHYSICS.index(physics.value)])
     else:

@@ -13,9 +13,8 @@ import typer
 from .. import presets
 
 from ..units import to_si
-from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
-                     Radius, Tension, Thickness, Volume, drum_from, emit, fail, num, parse_mode,
-                     write_atomic, t60)
+from .common import (DrumFile, Format, Physics, drum_from, emit, fail, num, parse_mode, t60,
+                     with_drum_flags, write_atomic)
 
 COLUMNS = [
     ("mode", "mode", str),
@@ -104,6 +103,7 @@ def _plot(path, result, *, at, t_c, listener, theta0, chosen, advice, title) -> 
     plt.close(fig)
 
 
+@with_drum_flags
 def strike(
     ctx: typer.Context,
     drum_file: DrumFile = None,
@@ -135,15 +135,7 @@ def strike(
     plot: Annotated[Optional[str], typer.Option(
         help="Draw each partial's level against the strike radius to this PNG file.")] = None,
     force: Annotated[bool, typer.Option(help="Overwrite existing --out and --plot files.")] = False,
-    diameter: Diameter = None,
-    radius: Radius = None,
-    tension: Tension = None,
-    areal_density: ArealDensity = None,
-    film: Film = None,
-    thickness: Thickness = None,
-    body: Body = None,
-    volume: Volume = None,
-    depth: Depth = None,
+    drum_flags: dict = None,
     physics: Annotated[Physics, typer.Option(
         help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
     ] = Physics.full,
@@ -185,9 +177,7 @@ def strike(
             fail(key, path, "exists already; add --force to overwrite it")
     if plot is not None and Path(plot).suffix.lower() != ".png":
         fail("--plot", plot, "must be a .png file")
-    drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
-                     areal_density=areal_density, film=film, thickness=thickness, body=body,
-                     volume=volume, depth=depth)
+    drum = drum_from(drum_file, **drum_flags)
     from .. import strike as model
     from ..solver import solve
 

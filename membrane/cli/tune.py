@@ -10,8 +10,8 @@ import typer
 
 from ..errors import InputError
 from ..units import note_name, parse_pitch
-from .common import (ArealDensity, Body, Depth, Diameter, DrumFile, Film, Format, Physics,
-                     Radius, Tension, Thickness, Volume, drum_from, emit, fail, num, parse_mode, t60)
+from .common import (DrumFile, Format, Physics, drum_from, emit, fail, num, parse_mode, t60,
+                     with_drum_flags)
 
 TARGET_HELP = ("Target pitch: Hz ('87.3', '87.3 Hz'), a note ('F2', 'F#2', 'Bb2') or either with cents "
                "('F2+15c', 'D3 -8 cents'). With --mode give one bare PITCH; for several modes give "
@@ -69,6 +69,7 @@ def _signed(digits: int):
     return lambda v: f"{round(v, digits) + 0.0:+.{digits}f}"
 
 
+@with_drum_flags
 def tune(
     drum_file: DrumFile = None,
     target: Annotated[Optional[List[str]], typer.Option(help=TARGET_HELP, metavar="[M,N=]PITCH")] = None,
@@ -82,15 +83,7 @@ def tune(
              "taken as proportional to sqrt(local tension).")] = None,
     cents_per_turn: Annotated[Optional[float], typer.Option(
         help="Calibration: pitch change in cents for one full turn of a lug; gives turns in 1/8.")] = None,
-    diameter: Diameter = None,
-    radius: Radius = None,
-    tension: Tension = None,
-    areal_density: ArealDensity = None,
-    film: Film = None,
-    thickness: Thickness = None,
-    body: Body = None,
-    volume: Volume = None,
-    depth: Depth = None,
+    drum_flags: dict = None,
     physics: Annotated[Physics, typer.Option(
         help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
     ] = Physics.full,
@@ -108,9 +101,7 @@ def tune(
     """
     from .. import tuning
 
-    drum = drum_from(drum_file, diameter=diameter, radius=radius, tension=tension,
-                     areal_density=areal_density, film=film, thickness=thickness, body=body,
-                     volume=volume, depth=depth)
+    drum = drum_from(drum_file, **drum_flags)
     targets = parse_targets(target or [], mode)
     if mode is not None and not targets:
         fail("--mode", mode, "needs a --target PITCH")
