@@ -74,16 +74,26 @@ RAICHEL = [(1, [2.5437, 5.5323, 8.6569]), (2, [2.6736, 5.5451]), (5, [3.0197, 5.
            (10, [3.4874, 5.6753, 8.6888])]
 
 
+LUMPED_HEAD = (0.325, 3000.0, 0.262)  # radius m, tension N/m, areal density kg/m^2
+
+
+def lumped_kettle(B):
+    """A kettle whose air is a pure spring of stiffness parameter B (Raichel Eq. 6.28):
+    no outside air, rho -> 0 and c -> inf at fixed rho c^2 = gamma P0."""
+    a, T, sigma = LUMPED_HEAD
+    rho = 1e-9
+    air = Air(density=rho, sound_speed=np.sqrt(GAMMA_P0 / rho))
+    V = GAMMA_P0 * np.pi * a**4 / (T * B)
+    return Drum(head=Head(radius=a, tension=T, areal_density=sigma),
+                body=Body(kind="kettle", volume=V), air=air)
+
+
 @pytest.mark.parametrize("B, roots", RAICHEL)
 def test_lumped_kettle_limit(B, roots):
     # outside air off and the kettle air taken to rho -> 0, c -> inf at fixed rho c^2 = gamma P0,
     # through the full solver: the (0,n) roots satisfy J0(ka) = -B J2(ka)/(ka)^2
-    a, T, sigma = 0.325, 3000.0, 0.262
-    rho = 1e-9
-    air = Air(density=rho, sound_speed=np.sqrt(GAMMA_P0 / rho))
-    V = GAMMA_P0 * np.pi * a**4 / (T * B)
-    drum = Drum(head=Head(radius=a, tension=T, areal_density=sigma),
-                body=Body(kind="kettle", volume=V), air=air)
+    a, T, sigma = LUMPED_HEAD
+    drum = lumped_kettle(B)
     modes = [md for md in full_modes(drum, m_max=0, n_max=len(roots)) if md.m == 0]
     ka = [md.omega.real * a * np.sqrt(sigma / T) for md in modes]
     assert ka == pytest.approx(roots, abs=6e-5)
@@ -116,12 +126,8 @@ def test_lumped_kettle_far_beyond_the_table(B):
     # must follow them all the way
     from scipy import optimize
 
-    a, T, sigma = 0.325, 3000.0, 0.262
-    rho = 1e-9
-    air = Air(density=rho, sound_speed=np.sqrt(GAMMA_P0 / rho))
-    V = GAMMA_P0 * np.pi * a**4 / (T * B)
-    drum = Drum(head=Head(radius=a, tension=T, areal_density=sigma),
-                body=Body(kind="kettle", volume=V), air=air)
+    a, T, sigma = LUMPED_HEAD
+    drum = lumped_kettle(B)
     ka = [md.omega.real * a * np.sqrt(sigma / T) for md in full_modes(drum, m_max=0, n_max=3)]
     f = lambda x: special.j0(x) + B * special.jv(2, x) / x**2  # noqa: E731
     j0, j2 = special.jn_zeros(0, 1), special.jn_zeros(2, 3)
