@@ -1,6 +1,6 @@
 """Regenerate the README's pictures from the built-in (invented) example drums.
 
-Run from anywhere: /work/venv/bin/python assets/make_assets.py [--physics full]
+Run from anywhere: python assets/make_assets.py [--physics full]
 Writes into this folder, replacing the previous pictures:
 
 - kettledrum_mode21.gif   3D animation of the kettledrum's (2,1) mode (small, looping)

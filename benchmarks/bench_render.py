@@ -3,7 +3,7 @@
 Target: under 10 s for the GIF (scene set-up, 48 frames, palette and file). The
 reference, measured in the same run, is one frame of the same scene: the ratio says
 how close the whole GIF is to 48 x one frame (the unavoidable part) and how much
-set-up and writing cost on top. Run: /work/venv/bin/python benchmarks/bench_render.py
+set-up and writing cost on top. Run: python benchmarks/bench_render.py
 """
 
 from __future__ import annotations

@@ -13,8 +13,9 @@ from membrane.cli import app
 from membrane.tuning import CAUTIONS, SAFE_STRESS_FRACTION
 from membrane.units import cents
 
+from conftest import installed_command
+
 runner = CliRunner()
-EXE = "/work/venv/bin/membrane"
 # A&S Table 9.5 (SOURCES.md)
 J11, J21 = 3.8317059702, 5.1356223018
 FAST = ["--physics", "stiff", "--m-max", "2", "--n-max", "1"]
@@ -141,13 +142,13 @@ def test_no_target_and_no_lugs(tmp_path):
 
 
 def test_real_subprocess_of_the_installed_script():
-    good = subprocess.run([EXE, "tune", "kettledrum", "--mode", "1,1", "--target", "Bb2", "--physics", "stiff",
+    good = subprocess.run([*installed_command(), "tune", "kettledrum", "--mode", "1,1", "--target", "Bb2", "--physics", "stiff",
                            "--m-max", "1", "--n-max", "1", "--format", "json"],
                           capture_output=True, text=True, timeout=120)
     assert good.returncode == 0, good.stderr
     data = json.loads(good.stdout)
     assert abs(cents(data["predicted_hz"], 440 * 2 ** ((46 - 69) / 12))) < 0.1  # MIDI 46 = Bb2
-    bad = subprocess.run([EXE, "tune", "kettledrum", "--lug-pitches", "D3,D3"], capture_output=True, text=True,
+    bad = subprocess.run([*installed_command(), "tune", "kettledrum", "--lug-pitches", "D3,D3"], capture_output=True, text=True,
                          timeout=120)
     assert bad.returncode == 2 and bad.stderr.count("\n") == 1 and "Traceback" not in bad.stderr
 

@@ -278,7 +278,9 @@ def test_the_installed_command(tmp_path):
 
     path = tmp_path / "tap.wav"
     scipy.io.wavfile.write(path, RATE, np.round(synth(PARTIALS, seed=16) * 32767).astype(np.int16))
-    script = Path(sys.executable).with_name("membrane")
+    from conftest import installed_command
+
+    script = installed_command()[0]
     done = subprocess.run([str(script), "listen", str(path), "--format", "json", "--floor", "-30"],
                           capture_output=True, text=True, timeout=120)
     assert done.returncode == 0, done.stderr

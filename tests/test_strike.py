@@ -14,6 +14,8 @@ import scipy.signal
 import scipy.special
 from typer.testing import CliRunner
 
+from conftest import installed_command
+
 from membrane.cli import app
 from membrane.drum import load_drum
 from membrane.modes import ModeSet
@@ -375,13 +377,13 @@ def test_cli_bad_input_is_one_line_and_exit_2(args, word, tmp_path, monkeypatch)
 
 def test_real_command_writes_a_wav(tmp_path):
     out = tmp_path / "preview.wav"
-    proc = subprocess.run(["/work/venv/bin/membrane", "strike", *STIFF, "--out", str(out),
+    proc = subprocess.run([*installed_command(), "strike", *STIFF, "--out", str(out),
                            "--assume-t60", "1.5 s", "--rate", "8000", "--seconds", "0.5",
                            "--format", "json"], capture_output=True, text=True, timeout=120)
     assert proc.returncode == 0, proc.stderr
     assert json.loads(proc.stdout)["wav"]["path"] == str(out)
     assert scipy.io.wavfile.read(out)[1].size == 4000
-    proc = subprocess.run(["/work/venv/bin/membrane", "strike", *STIFF, "--out", str(out),
+    proc = subprocess.run([*installed_command(), "strike", *STIFF, "--out", str(out),
                            "--assume-t60", "1.5 s"], capture_output=True, text=True, timeout=120)
     assert proc.returncode == 2 and len(proc.stderr.strip().splitlines()) == 1
 
