@@ -101,7 +101,7 @@ class HeadScene:
         Mode the ratio in the title is taken to.
     """
 
-    def __init__(self, modeset, mode, view: View, *, reference=(0, 1)):
+    def __init__(self, modeset, mode, view: View, *, reference=None):
         import pyvista as pv
 
         _quiet_vtk()
@@ -224,7 +224,7 @@ def check_view(view: View, fmt: str) -> None:
         raise InputError("--out", fmt, f"the 3D picture is written as one of: {', '.join(FORMATS)}")
 
 
-def render_mode(modeset, mode, path, *, view: View = View(), reference=(0, 1), progress=None) -> None:
+def render_mode(modeset, mode, path, *, view: View = View(), reference=None, progress=None) -> None:
     """Write a GIF or MP4 of one period of ``mode``, or a PNG of its peak (format from the suffix).
 
     Parameters
