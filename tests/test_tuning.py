@@ -14,7 +14,8 @@ from membrane.tuning import (CAUTIONS, SAFE_STRESS_FRACTION, TENSION_CEILING, eq
                              safety_warnings, slack_tension, tension_for, turns_text)
 from membrane.units import cents, parse_pitch
 
-# Abramowitz & Stegun Table 9.5 (SOURCES.md): zeros of J_m
+# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero; SOURCES.md); A&S Table 9.5
+# prints them to 5 decimals (10 for m = 0): tests/test_bessel.py checks both
 J01, J11, J21, J02 = 2.4048255577, 3.8317059702, 5.1356223018, 5.5200781103
 # Leissa, NASA SP-160 (1969), Table 2.1 (SOURCES.md): clamped plate, lambda^2 for (1,1) = (1 diameter, 0 circles)
 PLATE_11 = 21.2604
@@ -95,7 +96,7 @@ def test_round_trip_full(drum, mode, shift):
 
 
 def test_ideal_tension_is_the_closed_form():
-    # f_mn = j_mn/(2 pi a) sqrt(T/sigma)  =>  T = sigma (2 pi a f / j_mn)^2, with A&S Table 9.5 zeros
+    # f_mn = j_mn/(2 pi a) sqrt(T/sigma)  =>  T = sigma (2 pi a f / j_mn)^2, with the zeros above
     drum = Drum(head=polyester_head(radius=0.33, tension=4000.0, thickness=1.9e-4))
     for mode, j in (((0, 1), J01), ((1, 1), J11), ((2, 1), J21), ((0, 2), J02)):
         target = parse_pitch("F2+15c")
@@ -180,7 +181,7 @@ def test_consistent_targets_are_met_together():
 
 
 def test_inconsistent_targets_share_the_misfit():
-    # Ideal head: (2,1)/(1,1) = j21/j11 (A&S Table 9.5), 507.0 cents; asking for a fifth (700 cents)
+    # Ideal head: (2,1)/(1,1) = j21/j11 (zeros above), 507.0 cents; asking for a fifth (700 cents)
     # cannot be met; least squares in cents splits the 193-cent gap evenly
     drum = Drum(head=polyester_head(radius=0.33, tension=4000.0, thickness=1.9e-4))
     f2 = parse_pitch("F2")
