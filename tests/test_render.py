@@ -330,7 +330,7 @@ def test_a_shell_shows_both_heads_moving_as_the_branch_says():
     for mode in snare:
         scene = HeadScene(snare, mode, View(frames=2, width=64, height=64))
         try:
-            (top, w_top, z_top), (bottom, w_bottom, z_bottom) = scene.heads
+            (top, w_top, z_top, _), (bottom, w_bottom, z_bottom, _) = scene.heads
             assert z_top == 0 and z_bottom < 0
             # centre displacement, drawn upward-positive; outward is down for the resonant head
             up_top, up_bottom = w_top[0], w_bottom[0]
@@ -339,3 +339,18 @@ def test_a_shell_shows_both_heads_moving_as_the_branch_says():
             assert same_way_up == (mode.branch == "opposed"), mode.label
         finally:
             scene.close()
+
+
+def test_the_readme_pictures_are_made_by_the_readme_commands():
+    import importlib.util
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[1]
+    spec = importlib.util.spec_from_file_location("make_assets", root / "assets" / "make_assets.py")
+    make = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(make)
+    readme = (root / "README.md").read_text(encoding="utf-8")
+    for name, command, extra in make.PICTURES:
+        assert command in readme, command  # the README shows exactly this command
+        assert f"(assets/{name})" in readme, name  # and the picture it makes
+        assert not {"--reference", "--physics", "--compare"} & set(extra.split())  # only size options added
