@@ -171,9 +171,13 @@ def test_uniform_lugs_split_nothing():
 
 
 def test_tight_lug_raises_the_member_pointing_at_it():
-    # Published observation (single-headed drums with non-uniform tension, Proceedings of
-    # Meetings on Acoustics 4, 2008): tightening near a point raises the (1,1) member whose
-    # antinodes lie there, and the pair's nodal lines orient with the uneven tension.
+    # Rayleigh's quotient (from memory): extra tension where a mode's slope is largest -- at
+    # the rim, in the direction of its antinodes -- raises that mode most. Published context,
+    # READ in the abstracts only: "Drum tuning: an experimental analysis of membrane ..."
+    # (Proceedings of Meetings on Acoustics 5, 035001, 2008) images the (1,1) pair of
+    # single-headed drums under non-uniform tension and finds its shapes and frequencies set
+    # by it; a study of a single-headed tom (ISMA 2019, Tsukuba) reports that unequal opposite
+    # rods move the (1,1) nodal line and split the orthogonal pair.
     lugs = np.full(8, T0)
     lugs[3] *= 1.05
     lug_deg = 3 * 45.0
@@ -181,7 +185,7 @@ def test_tight_lug_raises_the_member_pointing_at_it():
     for s in exact_splits(HEAD, rim_tension(lugs), m_max=2, n_max=3):
         if s.m == 0:
             continue
-        assert s.relative > 1e-3
+        assert s.relative > 2e-4
         period = 180.0 / s.m
         diff = (s.high_antinode_deg - lug_deg + period / 2) % period - period / 2
         assert abs(diff) < 1e-6, s
