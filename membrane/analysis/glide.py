@@ -70,11 +70,55 @@ class Track:
         return float(np.mean(np.sign(steps) == np.sign(self.cents))) >= MONOTONE_SHARE
 
 
+@dataclass(frozen=True)
+class Frames:
+    """A short-time spectrum of a decay, shared by the tracks of all its partials.
+
+    Attributes
+    ----------
+    level : numpy.ndarray
+        Power [dB] per frame (rows) and bin (columns), bins from 0 Hz.
+    starts : numpy.ndarray
+        First sample of each frame.
+    df : float
+        Bin width [Hz].
+    win : int
+        Frame length [samples].
+    first : int
+        First sample of the first frame.
+    """
+
+    level: np.ndarray
+    starts: np.ndarray
+    df: float
+    win: int
+    first: int
+
+
+def frames(y: np.ndarray, *, rate: float, t_from: float, f_max: float) -> Frames | None:
+    """Hann frames of :data:`WINDOW_S`, zero-padded fourfold, a quarter frame apart, from
+    ``t_from`` [s]; bins up to ``f_max`` [Hz] kept."""
+    win = int(WINDOW_S * rate)
+    hop = max(1, win // 4)
+    first = int(max(t_from, 0.0) * rate)
+    if y.size - first < 2 * win:
+        return None
+    nfft = scipy.fft.next_fast_len(4 * win, real=True)
+    starts = np.arange(first, y.size - win + 1, hop)
+    hann = np.hanning(win)
+    df = rate / nfft
+    top = min(nfft // 2 + 1, int(f_max / df) + 2)
+    idx = starts[:, None] + np.arange(win)[None, :]
+    power = np.abs(scipy.fft.rfft(y[idx] * hann, nfft, axis=1)[:, :top]) ** 2
+    return Frames(level=10 * np.log10(power + 1e-300), starts=starts, df=df, win=win,
+                  first=first)
+
+
 def track(y: np.ndarray, *, frequency: float, rate: float, t_from: float = 0.0,
-          anchor_s: float | None = None) -> Track | None:
+          anchor_s: float | None = None, shared: Frames | None = None) -> Track | None:
     """The frequency of the partial near ``frequency`` frame by frame (a spectral ridge).
 
-    Hann frames of :data:`WINDOW_S`, zero-padded eightfold, every quarter frame; in each the
+    Hann frames of :data:`WINDOW_S`, zero-padded fourfold, every quarter frame; in each the
     peak nearest the ridge is taken with parabolic interpolation of its log power. The ridge
     is followed from an anchor frame (where the partial is, by default a third into the
     decay) back to ``t_from`` and on until the peak sinks :data:`TRACK_DB` below the
@@ -93,26 +137,23 @@ def track(y: np.ndarray, *, frequency: float, rate: float, t_from: float = 0.0,
         First frame starts here, from the start of the decay [s].
     anchor_s : float or None
         Start of the anchor frame [s].
+    shared : Frames or None
+        The decay's short-time spectrum, when the caller has it (from ``t_from``).
 
     Returns
     -------
     Track or None
         None when fewer than four frames follow the partial.
     """
-    win = int(WINDOW_S * rate)
-    hop = max(1, win // 4)
-    first = int(max(t_from, 0.0) * rate)
-    if y.size - first < 2 * win:
+    fr = shared or frames(y, rate=rate, t_from=t_from, f_max=1.6 * frequency + 10.0)
+    if fr is None:
         return None
-    nfft = scipy.fft.next_fast_len(8 * win, real=True)
-    hann = np.hanning(win)
-    starts = np.arange(first, y.size - win + 1, hop)
-    df = rate / nfft
-    reach = int(np.ceil((frequency * 1.6 + 10.0) / df))
+    starts, df, win, first = fr.starts, fr.df, fr.win, fr.first
+    hop = max(1, win // 4)
+    reach = min(fr.level.shape[1], int(np.ceil((frequency * 1.6 + 10.0) / df)))
     lo_bin = max(1, int((frequency * 0.6 - 10.0) / df))
-    frames = np.stack([y[s:s + win] * hann for s in starts])
-    power = np.abs(scipy.fft.rfft(frames, nfft, axis=1)[:, lo_bin:reach]) ** 2
-    level = 10 * np.log10(power + 1e-300)
+    level = fr.level[:, lo_bin:reach]
+    hann_sum = 0.5 * win
     floor = np.median(level, axis=1)  # a frame's own noise: most of its bins hold none
     anchor = int(np.clip(round(((anchor_s if anchor_s is not None else (y.size / rate) / 3)
                                  * rate - first) / hop), 0, starts.size - 1))
@@ -152,5 +193,5 @@ def track(y: np.ndarray, *, frequency: float, rate: float, t_from: float = 0.0,
     # keep the stretch that reaches back to the first frame kept
     times = (starts[keys] - first + win / 2) / rate + max(t_from, 0.0)
     f = (np.array([freq[k] for k in keys]) + lo_bin) * df
-    a = 10 ** (np.array([amp[k] for k in keys]) / 20) * 2.0 / hann.sum()
+    a = 10 ** (np.array([amp[k] for k in keys]) / 20) * 2.0 / hann_sum
     return Track(times=times, frequencies=f, amplitudes=a)
