@@ -37,7 +37,7 @@ EDGE_SKIP_S = 1.5 / BAND_TAPER_HZ  # the band filter's start-up transient, skipp
 # above 3 ln 10 * pi * taper ~ 44 ms, and calls those under FAST_T60_S fast (their decay
 # rate comes from few samples past the start-up and is uncertain).
 FASTEST_RATE = math.pi * BAND_TAPER_HZ  # 1/s
-FAST_T60_S = 0.15
+FAST_T60_S = 0.1
 MAX_ORDER = 10  # damped exponentials per band at most
 HANKEL_COLS = 48  # columns of the band's Hankel matrix (rows: the rest of the samples)
 NOISE_FACTOR = 2.0  # singular values this far above the noise ones count as signal

@@ -22,7 +22,7 @@ import scipy.fft
 
 WINDOW_S = 0.1  # frequency measured in frames this long [s], a quarter frame apart
 GLIDE_MIN_CENTS = 20.0  # a drift smaller than this is not called a glide (beats wobble less)
-MONOTONE_SHARE = 0.7  # share of window-to-window steps that go the glide's way
+WOBBLE_FACTOR = 4.0  # a glide's fall is this many times the settled scatter (plus 0.5 Hz)
 TRACK_DB = 30.0  # the track follows the partial down this far below its loudest
 STEP_FRACTION = 0.04  # a step of the ridge from one frame to the next, at most
 
@@ -47,14 +47,20 @@ class Track:
 
     @property
     def initial(self) -> float:
-        """Frequency in the first window [Hz]."""
+        """Frequency in the first frame [Hz]."""
         return float(self.frequencies[0])
 
     @property
     def settled(self) -> float:
-        """Median frequency over the last third of the track [Hz]."""
-        tail = self.frequencies[-max(1, self.frequencies.size // 3):]
-        return float(np.median(tail))
+        """Median frequency over the second half of the track [Hz]."""
+        return float(np.median(self.frequencies[self.frequencies.size // 2:]))
+
+    @property
+    def wobble(self) -> float:
+        """Scatter of the settled half about its median [Hz] (1.4826 x the median absolute
+        deviation: the standard deviation, were it normal); beating makes it."""
+        half = self.frequencies[self.frequencies.size // 2:]
+        return float(1.4826 * np.median(np.abs(half - np.median(half))))
 
     @property
     def cents(self) -> float:
@@ -63,11 +69,14 @@ class Track:
 
     @property
     def is_glide(self) -> bool:
-        """A steady drift of at least :data:`GLIDE_MIN_CENTS` in one direction."""
-        if self.frequencies.size < 4 or abs(self.cents) < GLIDE_MIN_CENTS:
+        """A fall of at least :data:`GLIDE_MIN_CENTS`, well beyond the settled wobble.
+
+        Only a fall: the tension a large swing adds goes as the motion dies, so a head's
+        partials settle downwards; a rise is beating or a neighbour taking over the ridge.
+        """
+        if self.frequencies.size < 4 or self.cents > -GLIDE_MIN_CENTS:
             return False
-        steps = np.diff(self.frequencies)
-        return float(np.mean(np.sign(steps) == np.sign(self.cents))) >= MONOTONE_SHARE
+        return self.initial - self.settled > WOBBLE_FACTOR * self.wobble + 0.5
 
 
 @dataclass(frozen=True)
@@ -160,11 +169,18 @@ def track(y: np.ndarray, *, frequency: float, rate: float, t_from: float = 0.0,
     step = max(2.0, STEP_FRACTION * frequency) / df
 
     def peak(k, guess):
+        # the local maximum nearest the ridge's last place: a ridge is followed, not
+        # abandoned for a louder neighbour
         a, b = int(max(1, guess - step)), int(min(level.shape[1] - 2, guess + step))
         if b <= a:
             return None
-        j = a + int(np.argmax(level[k, a:b + 1]))
-        l0, l1, l2 = level[k, j - 1], level[k, j], level[k, j + 1]
+        row = level[k]
+        seg = row[a:b + 1]
+        mids = np.nonzero((seg >= row[a - 1:b]) & (seg >= row[a + 1:b + 2]))[0] + a
+        if mids.size == 0:
+            return None
+        j = int(mids[np.argmin(np.abs(mids - guess))])
+        l0, l1, l2 = row[j - 1], row[j], row[j + 1]
         den = l0 - 2 * l1 + l2
         d = 0.5 * (l0 - l2) / den if den < 0 else 0.0
         return j + d, l1 - 0.25 * (l0 - l2) * d

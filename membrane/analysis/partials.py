@@ -368,6 +368,7 @@ def _merge_glides(parts, comps, *, y, rate, shift) -> list[Partial]:
                and parts[i].t60 is not None and parts[i].t60 >= GLIDE_MIN_T60_S]
     if not tracked:
         return parts
+    ranges: list[tuple[float, float]] = []
     shared = frames(y, rate=rate, t_from=t_ref,
                     f_max=1.6 * max(parts[i].frequency for i in tracked) + 10.0)
     for i in order:
@@ -381,14 +382,15 @@ def _merge_glides(parts, comps, *, y, rate, shift) -> list[Partial]:
         anchor = min(15.0 / 60.0 * p.t60, 0.6 * y.size / rate)
         tr = track(y, frequency=p.frequency, rate=rate, t_from=t_ref, anchor_s=anchor,
                    shared=shared)
-        if tr is None or not tr.is_glide:
+        if tr is None or not tr.is_glide or any(lo_ <= tr.settled <= hi_ for lo_, hi_ in ranges):
             continue
-        lo = float(tr.frequencies.min()) - 1.5
-        hi = float(tr.frequencies.max()) + 1.5
+        lo = tr.settled - max(1.5, 3.0 * tr.wobble)
+        hi = float(np.max(tr.frequencies[:2])) + 1.5
         members = [j for j in range(len(parts)) if j not in used and lo <= parts[j].frequency <= hi]
         if len(members) < 1:
             continue
         used.update(members)
+        ranges.append((lo, hi))
         out.append(_glide_partial([comps[j] for j in members], tr, shift))
     out += [p for j, p in enumerate(parts) if j not in used]
     return out
@@ -399,9 +401,9 @@ def _glide_partial(comps, tr: Track, shift: float) -> Partial:
     s = np.array([-c.decay_rate + 2j * np.pi * c.frequency for c in comps])
     a = np.array([c.amplitude * np.exp(1j * c.phase) for c in comps])
     amplitude = float(abs(np.sum(a * np.exp(s * shift))))
-    # decay rate from the track's envelope: a log-linear fit over the tracked windows
-    slope = np.polyfit(tr.times, np.log(np.maximum(tr.amplitudes, 1e-300)), 1)[0]
-    rate = max(float(-slope), 1e-6)
+    # decay rate: the comb's, weighted by each component's energy at the reference time
+    weight = np.abs(a * np.exp(s * shift)) ** 2
+    rate = float(np.sum(weight * np.maximum(-s.real, 0.0)) / np.sum(weight))
     return Partial(frequency=tr.initial, amplitude=amplitude, decay_rate=rate,
                    glide_cents=tr.cents, settled_frequency=tr.settled, flags=("glide",))
 
