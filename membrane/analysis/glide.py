@@ -95,6 +95,8 @@ class Frames:
         Frame length [samples].
     first : int
         First sample of the first frame.
+    floor : numpy.ndarray
+        Each frame's noise [dB]: the median over its bins up to 4 kHz (most hold none).
     """
 
     level: np.ndarray
@@ -102,6 +104,7 @@ class Frames:
     df: float
     win: int
     first: int
+    floor: np.ndarray
 
 
 def frames(y: np.ndarray, *, rate: float, t_from: float, f_max: float) -> Frames | None:
@@ -118,9 +121,12 @@ def frames(y: np.ndarray, *, rate: float, t_from: float, f_max: float) -> Frames
     df = rate / nfft
     top = min(nfft // 2 + 1, int(f_max / df) + 2)
     idx = starts[:, None] + np.arange(win)[None, :]
-    power = np.abs(scipy.fft.rfft(y[idx] * hann, nfft, axis=1)[:, :top]) ** 2
+    spec = scipy.fft.rfft(y[idx] * hann, nfft, axis=1)
+    wide = min(spec.shape[1], max(top, int(4000.0 / df)))
+    floor = 10 * np.log10(np.median(np.abs(spec[:, 1:wide]) ** 2, axis=1) + 1e-300)
+    power = np.abs(spec[:, :top]) ** 2
     return Frames(level=10 * np.log10(power + 1e-300), starts=starts, df=df, win=win,
-                  first=first)
+                  first=first, floor=floor)
 
 
 def track(y: np.ndarray, *, frequency: float, rate: float, t_from: float = 0.0,
@@ -163,7 +169,7 @@ def track(y: np.ndarray, *, frequency: float, rate: float, t_from: float = 0.0,
     lo_bin = max(1, int((frequency * 0.6 - 10.0) / df))
     level = fr.level[:, lo_bin:reach]
     hann_sum = 0.5 * win
-    floor = np.median(level, axis=1)  # a frame's own noise: most of its bins hold none
+    floor = fr.floor
     anchor = int(np.clip(round(((anchor_s if anchor_s is not None else (y.size / rate) / 3)
                                  * rate - first) / hop), 0, starts.size - 1))
     step = max(2.0, STEP_FRACTION * frequency) / df

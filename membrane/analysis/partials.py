@@ -385,7 +385,7 @@ def _merge_glides(parts, comps, *, y, rate, shift) -> list[Partial]:
         if tr is None or not tr.is_glide or any(lo_ <= tr.settled <= hi_ for lo_, hi_ in ranges):
             continue
         lo = tr.settled - max(1.5, 3.0 * tr.wobble)
-        hi = float(np.max(tr.frequencies[:2])) + 1.5
+        hi = float(np.max(tr.frequencies[:2])) + max(1.5, 0.02 * tr.initial)
         members = [j for j in range(len(parts)) if j not in used and lo <= parts[j].frequency <= hi]
         if len(members) < 1:
             continue
