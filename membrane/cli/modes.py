@@ -6,8 +6,8 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from .common import (DrumFile, Format, Physics, drum_from, emit, num, parse_mode, signed, t60,
-                     with_drum_flags)
+from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, decay_words, drum_from, emit,
+                     num, parse_mode, signed, t60, with_drum_flags)
 
 COLUMNS = [
     ("mode", "mode", str),
@@ -28,6 +28,7 @@ def modes(
     physics: Annotated[Physics, typer.Option(
         help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
     ] = Physics.full,
+    losses: LossesOpt = LossChoice.all,
     m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters (0-50).")] = 6,
     n_max: Annotated[int, typer.Option(help="Highest number of nodal circles, counting the rim (1-50).")] = 3,
     reference: Annotated[str, typer.Option(help="Mode the ratios are taken to, M,N.")] = "0,1",
@@ -41,7 +42,7 @@ def modes(
     drum = drum_from(drum_file, **drum_flags)
     ref = parse_mode(reference, key="--reference")
     fit_modes = [parse_mode(f, key="--fit") for f in fit] if fit else None
-    result = solve(drum, physics.value, m_max=m_max, n_max=n_max)
+    result = solve(drum, physics.value, m_max=m_max, n_max=n_max, losses=losses.value)
     result.find(*ref)  # a clear error if the reference mode was not solved
     rows = result.table(reference=ref, fit_modes=fit_modes)
     harmonic = result.harmonic_fit(fit_modes)
@@ -50,6 +51,7 @@ def modes(
     payload = {
         "drum": drum.name,
         "physics": physics.value,
+        "losses": losses.value,
         "reference": {"m": ref[0], "n": ref[1]},
         "harmonic_fit": {
             "fundamental_hz": harmonic.fundamental,
@@ -59,7 +61,8 @@ def modes(
         "notes": list(result.notes),
         "modes": [{k: v for k, v in row.items() if k != "mode"} for row in rows],
     }
-    title = (f"{drum.name}: {physics.value} physics; ratios to ({ref[0]},{ref[1]}); "
+    title = (f"{drum.name}: {physics.value} physics{decay_words(physics.value, losses.value)}; "
+             f"ratios to ({ref[0]},{ref[1]}); "
              f"harmonic fit f0 = {harmonic.fundamental:.2f} Hz, rms {harmonic.rms_cents:.1f} cents")
     columns = COLUMNS if format is not Format.csv else \
         [("m", "m", str), ("n", "n", str)] + [c for c in COLUMNS if c[0] != "mode"] + \
