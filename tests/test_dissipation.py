@@ -94,7 +94,7 @@ def test_tube_wall_losses_match_kirchhoffs_lossy_line(radius, length, f_piston):
     ours = _piston_on_tube(radius, length, mass, stiffness)
     book = _piston_on_tube(radius, length, mass, stiffness, lossy_line=True)
     assert ours.imag > 0
-    assert ours.imag == pytest.approx(book.imag, rel=0.02)
+    assert ours.imag == pytest.approx(book.imag, rel=0.01)
     assert ours.real == pytest.approx(book.real, rel=1e-5)
 
 
