@@ -109,5 +109,20 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3,
         params = drum.losses if losses == "all" else None
         modes = full_modes(drum, m_max=m_max, n_max=n_max, losses=params)
         notes.extend(model_notes(drum, params))
+    notes.extend(material_notes(drum))
     return ModeSet(modes=sort_modes(modes), physics=physics, drum=drum, notes=tuple(notes),
                    losses=losses)
+
+
+def material_notes(drum: Drum) -> list[str]:
+    """What the head materials' data leave out (a natural skin changes with humidity)."""
+    from . import materials
+
+    heads = [("struck head", drum.head), ("resonant head", drum.resonant_head)]
+    notes, seen = [], set()
+    for where, head in heads:
+        note = "" if head is None or head.film is None else materials.film(head.film).humidity_note
+        if note and note not in seen:
+            seen.add(note)
+            notes.append(note if drum.resonant_head is None else f"{where}: {note}")
+    return notes

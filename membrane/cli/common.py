@@ -85,7 +85,8 @@ def parse_mode(text: str, *, key: str = "--mode") -> tuple[int, int]:
 # ------------------------------------------------------------------ the drum from file + flags
 DrumFile = Annotated[Optional[str], typer.Argument(
     metavar="[DRUM_FILE]",
-    help="Drum file (TOML), or a built-in example: kettledrum, snare (invented demo drums).")]
+    help="Drum file (TOML), or a built-in example: kettledrum, snare, tom, bass_drum, frame_drum "
+         "(invented demo drums; membrane examples lists them).")]
 Diameter = Annotated[Optional[str], typer.Option(help="Head diameter, e.g. '26 in' or '0.65 m'.")]
 Radius = Annotated[Optional[str], typer.Option(help="Head radius (instead of --diameter).")]
 Tension = Annotated[Optional[str], typer.Option(help="Tension per unit length, e.g. '4 kN/m', '20 lbf/in'.")]
@@ -97,10 +98,74 @@ Volume = Annotated[Optional[str], typer.Option(help="Kettle volume, e.g. '0.17 m
 Depth = Annotated[Optional[str], typer.Option(help="Shell depth, e.g. '14 in'.")]
 
 
+
+
+class Edge(str, Enum):
+    """How the rim holds a head."""
+
+    clamped = "clamped"
+    hinged = "hinged"
+
+
+def _opt(help_text: str, kind=str):
+    return Annotated[Optional[kind], typer.Option(help=help_text)]
+
+
+# Flags beyond the basic ones: the rest of the struck head, the resonant head, the air.
+# Each is one drum-file key (FILE_KEYS below), so a two-headed drum needs no file.
+MORE_FLAGS = {
+    "plies": _opt("Plies of film in the struck head (1-4) [head.plies].", int),
+    "edge": _opt("How the rim holds the struck head [head.edge].", Edge),
+    "film_density": _opt("Volume density of a custom film, with --thickness, e.g. '1390 kg/m^3' "
+                         "[head.density]."),
+    "youngs_modulus": _opt("Young's modulus of the film, e.g. '4.5 GPa' [head.youngs_modulus]."),
+    "poisson_ratio": _opt("Poisson's ratio of the film, 0 to 0.5 [head.poisson_ratio].", float),
+    "yield_stress": _opt("Yield stress of the film, for the cautions, e.g. '100 MPa' [head.yield_stress]."),
+    "tensile_strength": _opt("Breaking stress of the film, e.g. '200 MPa' [head.tensile_strength]."),
+    "resonant_film": _opt("Film of the resonant (far) head of a shell [resonant_head.film]."),
+    "resonant_thickness": _opt("Resonant head's film thickness per ply [resonant_head.thickness]."),
+    "resonant_plies": _opt("Plies in the resonant head (1-4) [resonant_head.plies].", int),
+    "resonant_tension": _opt("Resonant head's tension per unit length [resonant_head.tension]."),
+    "resonant_areal_density": _opt("Resonant head's mass per unit area [resonant_head.areal_density]."),
+    "resonant_edge": _opt("How the rim holds the resonant head [resonant_head.edge].", Edge),
+    "resonant_film_density": _opt("Volume density of the resonant head's custom film "
+                                  "[resonant_head.density]."),
+    "resonant_youngs_modulus": _opt("Young's modulus of the resonant head's film "
+                                    "[resonant_head.youngs_modulus]."),
+    "resonant_poisson_ratio": _opt("Poisson's ratio of the resonant head's film "
+                                   "[resonant_head.poisson_ratio].", float),
+    "resonant_yield_stress": _opt("Yield stress of the resonant head's film [resonant_head.yield_stress]."),
+    "resonant_tensile_strength": _opt("Breaking stress of the resonant head's film "
+                                      "[resonant_head.tensile_strength]."),
+    "air_temperature": _opt("Air temperature, e.g. '20 degC' (dry air, ideal gas) [air.temperature]."),
+    "air_pressure": _opt("Static air pressure, e.g. '101.325 kPa' [air.pressure]."),
+    "air_density": _opt("Air density, with --air-sound-speed, e.g. '1.204 kg/m^3' [air.density]."),
+    "air_sound_speed": _opt("Speed of sound, with --air-density, e.g. '343.2 m/s' [air.sound_speed]."),
+}
+
+# The drum-file key each flag stands for: (table, key). The basic flags are in
+# override_table's own arguments; the others are laid over the file key by key.
+FILE_KEYS = {
+    "diameter": ("head", "diameter"), "radius": ("head", "radius"), "tension": ("head", "tension"),
+    "areal_density": ("head", "areal_density"), "film": ("head", "film"),
+    "thickness": ("head", "thickness"), "body": ("body", "kind"), "volume": ("body", "volume"),
+    "depth": ("body", "depth"),
+    "plies": ("head", "plies"), "edge": ("head", "edge"), "film_density": ("head", "density"),
+    "youngs_modulus": ("head", "youngs_modulus"), "poisson_ratio": ("head", "poisson_ratio"),
+    "yield_stress": ("head", "yield_stress"), "tensile_strength": ("head", "tensile_strength"),
+    **{f"resonant_{k}": ("resonant_head", v) for k, v in (
+        ("film", "film"), ("thickness", "thickness"), ("plies", "plies"), ("tension", "tension"),
+        ("areal_density", "areal_density"), ("edge", "edge"), ("film_density", "density"),
+        ("youngs_modulus", "youngs_modulus"), ("poisson_ratio", "poisson_ratio"),
+        ("yield_stress", "yield_stress"), ("tensile_strength", "tensile_strength"))},
+    "air_temperature": ("air", "temperature"), "air_pressure": ("air", "pressure"),
+    "air_density": ("air", "density"), "air_sound_speed": ("air", "sound_speed"),
+}
+
 # The flags every drum-taking command offers, in the order --help lists them.
 DRUM_FLAGS = {"diameter": Diameter, "radius": Radius, "tension": Tension,
               "areal_density": ArealDensity, "film": Film, "thickness": Thickness,
-              "body": Body, "volume": Volume, "depth": Depth}
+              "body": Body, "volume": Volume, "depth": Depth, **MORE_FLAGS}
 
 
 def with_drum_flags(command: Callable) -> Callable:
@@ -131,15 +196,20 @@ def with_drum_flags(command: Callable) -> Callable:
 
 
 def drum_from(drum_file: str | None, **flags) -> Drum:
-    """The drum from a file (or built-in example) with command-line flags laid over it."""
-    if flags.get("body") is not None:
-        flags["body"] = flags["body"].value
+    """The drum from a file (or built-in example) with command-line flags laid over it.
+
+    Each flag stands for one drum-file key (:data:`FILE_KEYS`), and gives the same drum
+    as that key in a file would.
+    """
+    flags = {k: (v.value if isinstance(v, Enum) else v) for k, v in flags.items()}
+    keys = {FILE_KEYS[k]: flags.pop(k) for k in list(flags) if k in MORE_FLAGS}
+    keys = {where: v for where, v in keys.items() if v is not None}
     if drum_file is not None:
-        return load_drum(drum_file, **flags)
-    if not any(v is not None for v in flags.values()):
-        fail("DRUM_FILE", None, "give a drum file, a built-in example (kettledrum, snare), "
+        return load_drum(drum_file, **flags, keys=keys)
+    if not any(v is not None for v in flags.values()) and not keys:
+        fail("DRUM_FILE", None, "give a drum file, a built-in example (membrane examples lists them), "
              "or --diameter, --tension and --areal-density (or --film and --thickness)")
-    return parse_drum(override_table(None, **flags))
+    return parse_drum(override_table(None, **flags, keys=keys))
 
 
 # ------------------------------------------------------------------ output
