@@ -6,7 +6,7 @@ import numpy as np
 
 from .drum import Drum, Head
 from .errors import InputError
-from .losses import check_choice
+from .losses import Losses, check_choice
 from .modes import PHYSICS, Mode, ModeSet, sort_modes
 from .physics.vacuum import RadialBasis, ideal_basis, stiff_basis
 
@@ -109,6 +109,10 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3,
         params = drum.losses if losses == "all" else None
         modes = full_modes(drum, m_max=m_max, n_max=n_max, losses=params)
         notes.extend(model_notes(drum, params))
+        films = {h.film for h in (drum.head, drum.resonant_head) if h is not None}
+        if params is not None and params == Losses() and films - {"polyester"}:
+            notes.append("the default loss parameters are those of polyester heads; for other "
+                         "films give the drum file a losses table (docs/losses.md)")
     notes.extend(material_notes(drum))
     return ModeSet(modes=sort_modes(modes), physics=physics, drum=drum, notes=tuple(notes),
                    losses=losses)
