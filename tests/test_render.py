@@ -12,7 +12,8 @@ from membrane import load_drum, solve
 from membrane.cli import app
 from membrane.render import stills
 
-# Abramowitz & Stegun, Handbook of Mathematical Functions (1964), Table 9.5 (SOURCES.md): j_{m,k}
+# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero; SOURCES.md); A&S Table 9.5
+# prints them to 5 decimals (10 for m = 0): tests/test_bessel.py checks both
 BESSEL_ZEROS = {
     0: (2.4048255577, 5.5200781103, 8.6537279129),
     1: (3.8317059702, 7.0155866698, 10.173468135),

@@ -23,18 +23,6 @@ from membrane.solver import solve
 from membrane.strike import (MALLETS, Listener, Strike, best_strike_radius, pulse_spectrum,
                              save_wav, strike_partials, synthesize)
 
-
-
-def _have_full() -> bool:
-    try:
-        from membrane.physics.coupled import full_modes  # noqa: F401
-    except ImportError:
-        return False
-    return True
-
-
-HAVE_FULL = _have_full()
-
 runner = CliRunner()
 KETTLE = load_drum("kettledrum")
 
@@ -220,8 +208,6 @@ def test_best_strike_radius_is_the_maximum_of_its_objective(ideal):
 
 @pytest.fixture(scope="module")
 def full():
-    if not HAVE_FULL:
-        pytest.skip("full physics (membrane.physics.coupled.full_modes) has not landed yet")
     return solve(KETTLE, "full", m_max=6, n_max=3)
 
 
