@@ -177,3 +177,43 @@ def test_default_losses_are_said_and_bring_the_m1_family_to_seconds():
         assert 3.0 / 3 < t60[(m, 1)] < 11.5 * 3, (m, t60[(m, 1)])
     table = run("modes", "kettledrum", "--m-max", "2", "--n-max", "1").stdout
     assert "T60 with all losses" in table
+
+
+def test_tables_mark_the_fitted_modes_and_fit_only_three_or_more(tmp_path):
+    import json
+
+    from typer.testing import CliRunner
+
+    from membrane.cli import app
+
+    runner = CliRunner()
+    out = runner.invoke(app, ["modes", "kettledrum", "--physics", "ideal", "--m-max", "6", "--n-max", "2",
+                              "--format", "json"])
+    assert out.exit_code == 0, out.output
+    data = json.loads(out.stdout)
+    assert data["reference"] == {"m": 1, "n": 1}  # a kettledrum is read against its principal
+    fitted = {(f["m"], f["n"]) for f in data["harmonic_fit"]["modes"]}
+    assert fitted == {(1, 1), (2, 1), (3, 1), (4, 1), (5, 1)}
+    for row in data["modes"]:
+        assert row["fitted"] == ((row["m"], row["n"]) in fitted)
+        if not row["fitted"]:  # fit columns empty for the modes the fit did not use
+            assert row["harmonic"] is None and row["cents_from_harmonic"] is None
+    # two modes always sit on some harmonic series: no fit at all
+    out = runner.invoke(app, ["modes", "kettledrum", "--physics", "ideal", "--m-max", "1", "--n-max", "1",
+                              "--format", "json"])
+    assert out.exit_code == 0 and json.loads(out.stdout)["harmonic_fit"] is None
+    table = runner.invoke(app, ["modes", "kettledrum", "--physics", "ideal", "--m-max", "1", "--n-max", "1"])
+    assert "no harmonic fit" in table.stdout and "ratios to (1,1)" in table.stdout
+    bad = runner.invoke(app, ["modes", "kettledrum", "--physics", "ideal", "--fit", "1,1", "--fit", "2,1"])
+    assert bad.exit_code == 2 and "at least 3" in bad.stderr
+    snare = runner.invoke(app, ["modes", "snare", "--physics", "ideal", "--m-max", "1", "--n-max", "1"])
+    assert "ratios to (0,1)" in snare.stdout
+
+
+def test_help_shows_the_drum_argument_once_bracketed():
+    from typer.testing import CliRunner
+
+    from membrane.cli import app
+
+    text = CliRunner().invoke(app, ["render", "--help"]).stdout
+    assert "[DRUM_FILE]" in text and "[[DRUM_FILE]]" not in text
