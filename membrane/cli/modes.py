@@ -6,8 +6,8 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from .common import (REFERENCE_HELP, DrumFile, Format, Physics, drum_from, emit, num, parse_mode,
-                     parse_reference, signed, t60, with_drum_flags)
+from .common import (REFERENCE_HELP, DrumFile, Format, LossChoice, LossesOpt, Physics, decay_words,
+                     drum_from, emit, num, parse_mode, parse_reference, signed, t60, with_drum_flags)
 
 COLUMNS = [
     ("mode", "mode", str),
