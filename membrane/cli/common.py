@@ -63,9 +63,23 @@ def parse_mode(text: str, *, key: str = "--mode") -> tuple[int, int]:
     return m, n
 
 
+REFERENCE_HELP = ("Mode the ratios are taken to, M,N (default: the drum's principal, (1,1) for a drum "
+                  "with a kettle, else (0,1)).")
+
+
+def parse_reference(text: str | None, drum) -> tuple[int, int]:
+    """``--reference``: the mode named, or the drum's principal when none is given."""
+    if text is None:
+        from ..modes import principal_mode
+
+        return principal_mode(drum)
+    return parse_mode(text, key="--reference")
+
+
 # ------------------------------------------------------------------ the drum from file + flags
+# click adds the brackets of an optional argument itself: the metavar is the bare name.
 DrumFile = Annotated[Optional[str], typer.Argument(
-    metavar="[DRUM_FILE]",
+    metavar="DRUM_FILE",
     help="Drum file (TOML), or a built-in example: kettledrum, snare, tom, bass_drum, frame_drum "
          "(invented demo drums; membrane examples lists them).")]
 Diameter = Annotated[Optional[str], typer.Option(help="Head diameter, e.g. '26 in' or '0.65 m'.")]
@@ -246,7 +260,8 @@ def emit(fmt: Format, *, payload: dict, rows: list[dict], columns: list[tuple[st
     from rich.console import Console
     from rich.table import Table
 
-    table = Table(title=title or None, title_justify="left")
+    # a two-column summary (what, value) needs no header row: an empty one reads as a gap
+    table = Table(title=title or None, title_justify="left", show_header=any(headers))
     for i, header in enumerate(headers):
         table.add_column(header, justify="left" if i == 0 else "right", no_wrap=i == 0)
     for c in cells:

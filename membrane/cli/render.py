@@ -12,7 +12,8 @@ from typing import Annotated, Optional
 
 import typer
 
-from .common import (DrumFile, Physics, drum_from, fail, parse_mode, with_drum_flags, write_atomic)
+from .common import (REFERENCE_HELP, DrumFile, Physics, drum_from, fail, parse_mode, parse_reference,
+                     with_drum_flags, write_atomic)
 
 PHYSICS = tuple(p.value for p in Physics)  # the models, in order of what they add
 
@@ -23,7 +24,7 @@ PhysicsOpt = Annotated[Physics, typer.Option(
     help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")]
 MMax = Annotated[int, typer.Option(help="Highest number of nodal diameters solved (0-50).")]
 NMax = Annotated[int, typer.Option(help="Highest number of nodal circles solved, counting the rim (1-50).")]
-Reference = Annotated[str, typer.Option(help="Mode the ratios are taken to, M,N.")]
+Reference = Annotated[Optional[str], typer.Option(help=REFERENCE_HELP, show_default=False)]
 Force = Annotated[bool, typer.Option("--force", help="Overwrite the output file if it exists.")]
 Count = Annotated[int, typer.Option(min=1, max=48, help="Modes in the grid (lowest first).")]
 
@@ -118,7 +119,7 @@ def render(
     physics: PhysicsOpt = Physics.full,
     m_max: MMax = 6,
     n_max: NMax = 3,
-    reference: Reference = "0,1",
+    reference: Reference = None,
     force: Force = False,
 ) -> None:
     """Draw a drum's modes: a 3D animation or nodal diagram of one mode (--mode M,N), the lowest
@@ -136,8 +137,8 @@ def render(
         fmt = _suffix(out, ANIMATIONS + ("png",), "a single mode", force)
     else:
         fmt = _suffix(out, STILLS, "a grid or ratio chart", force)
-    ref = parse_mode(reference, key="--reference")
     drum = drum_from(drum_file, **drum_flags)
+    ref = parse_reference(reference, drum)
 
     if mode is not None:
         m, n = parse_mode(mode)
@@ -194,7 +195,7 @@ def handout(
     physics: PhysicsOpt = Physics.full,
     m_max: MMax = 6,
     n_max: NMax = 3,
-    reference: Reference = "0,1",
+    reference: Reference = None,
     force: Force = False,
 ) -> None:
     """Write a printable workshop handout (PDF, a few pages): the drum, its mode table with ratios
@@ -205,8 +206,8 @@ def handout(
     paper = paper.strip().lower()
     if paper not in ("a4", "letter"):
         fail("--paper", paper, "must be a4 or letter")
-    ref = parse_mode(reference, key="--reference")
     drum = drum_from(drum_file, **drum_flags)
+    ref = parse_reference(reference, drum)
     if compare is None:
         others = list(PHYSICS[:PHYSICS.index(physics.value)])
     else:

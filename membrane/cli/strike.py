@@ -20,9 +20,24 @@ COLUMNS = [
     ("mode", "mode", str),
     ("frequency_hz", "f (Hz)", num(2)),
     ("decay_s", "T60 (s)", t60),
-    ("level_db", "level (dB)", lambda v: "silent" if v <= presets.SILENT_DB else f"{v:.1f}"),
+    ("level_db", "level (dB)", lambda v: level_text(v)),
     ("shape_at_strike", "shape at strike", num(3)),
 ]
+# A model level far below the loudest partial says "inaudible", not a number to a tenth
+# of a dB: whole dB below LEVEL_WHOLE_DB, and a bound below LEVEL_SHOWN_MIN.
+LEVEL_WHOLE_DB = -60.0  # common practice, no source: the range of a tap recording's partials
+LEVEL_SHOWN_MIN = -120.0
+
+
+def level_text(value: float) -> str:
+    """A level in dB for a table: 0.1 dB near the top, whole dB lower, ``< -120`` or silent below."""
+    if value <= presets.SILENT_DB:
+        return "silent"
+    if value < LEVEL_SHOWN_MIN:
+        return f"< {LEVEL_SHOWN_MIN:.0f}"
+    return f"{value:.0f}" if value < LEVEL_WHOLE_DB else f"{value:.1f}"
+
+
 MODE_TOKEN = re.compile(r"^\(?\d+,\d+\)?$")
 RATE_RANGE = (8000, 192000)
 MAX_SECONDS = 60.0
