@@ -102,6 +102,10 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3) 
         modes = full_modes(drum, m_max=m_max, n_max=n_max)
         notes.extend(model_notes(drum))
     notes.extend(material_notes(drum))
+    if drum.resonant_head is not None:
+        from .modes import HEAD_NOTE
+
+        notes.append(HEAD_NOTE)
     return ModeSet(modes=sort_modes(modes), physics=physics, drum=drum, notes=tuple(notes))
 
 

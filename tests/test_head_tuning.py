@@ -138,3 +138,17 @@ def test_kettledrum_at_ten_hertz_is_not_quietly_met():
     assert data["tension_n_per_m"] < data["practical_minimum_n_per_m"]
     assert "not on a real head" in data["statement"]
     assert any("practical minimum" in w for w in data["warnings"])
+
+
+def test_reference_picks_the_head_and_labels_say_which_head():
+    runner = CliRunner()
+    common = ["--m-max", "0", "--n-max", "1", "--format", "json"]
+    by_prefix = json.loads(runner.invoke(app, ["modes", "tom", "--reference", "resonant:0,1", *common]).stdout)
+    by_flag = json.loads(runner.invoke(app, ["modes", "tom", "--head", "resonant", *common]).stdout)
+    assert by_prefix["reference"] == by_flag["reference"] == {"m": 0, "n": 1, "head": "resonant"}
+    ratio = {row["head"]: row["ratio"] for row in by_prefix["modes"]}
+    assert ratio["resonant"] == 1.0 and ratio["struck"] < 1.0
+    table = runner.invoke(app, ["modes", "tom", "--m-max", "0", "--n-max", "1"]).stdout
+    assert "struck head" in table and "resonant head" in table and "names the head it grows from" in table
+    bad = runner.invoke(app, ["modes", "kettledrum", "--head", "resonant", "--physics", "ideal"])
+    assert bad.exit_code == 2 and "--head" in bad.output
