@@ -56,7 +56,7 @@ def modes(
     payload = {
         "drum": drum.name,
         "physics": physics.value,
-        "reference": {"m": ref[0], "n": ref[1], "head": ref_mode.head},
+        "reference": {"m": ref[0], "n": ref[1], **({"head": ref_mode.head} if ref_mode.head else {})},
         "harmonic_fit": None if harmonic is None else {
             "fundamental_hz": harmonic.fundamental,
             "rms_cents": harmonic.rms_cents,
