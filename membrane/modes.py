@@ -52,7 +52,8 @@ class Mode:
     frequency : float
         Hz.
     decay : float or None
-        T60 in s from radiation damping; None in vacuum.
+        T60 in s from Im omega (radiation, plus the drum's losses with ``losses="all"``);
+        None in vacuum.
     multiplicity : int
         1 for m = 0; 2 for the degenerate (cos, sin) pair when m >= 1.
     branch : str or None
@@ -203,12 +204,15 @@ class ModeSet:
         The drum solved.
     notes : tuple of str
         What the model includes and leaves out, for the output.
+    losses : str
+        ``"all"`` or ``"radiation"``: which losses made the decay times (full physics).
     """
 
     modes: tuple
     physics: str
     drum: object
     notes: tuple = ()
+    losses: str = "all"
 
     def __iter__(self):
         return iter(self.modes)

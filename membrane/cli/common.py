@@ -38,6 +38,25 @@ class Physics(str, Enum):
     full = "full"
 
 
+class LossChoice(str, Enum):
+    """Which losses damp the head in ``--physics full`` (:func:`membrane.solve`)."""
+
+    all = "all"
+    radiation = "radiation"
+
+
+LossesOpt = Annotated[LossChoice, typer.Option(
+    "--losses", help="With full physics: all = radiation plus the film, air boundary-layer and rim "
+    "losses (the drum file's [losses], documented defaults); radiation = sound radiation only.")]
+
+
+def decay_words(physics: str, losses: str) -> str:
+    """For titles: which losses made the T60 column (full physics only)."""
+    if physics != "full":
+        return ""
+    return "; T60 from radiation only" if losses == "radiation" else "; T60 with all losses"
+
+
 class BodyKind(str, Enum):
     """What is under the head."""
 

@@ -198,7 +198,8 @@ def mode_caption(modeset, mode, *, reference: tuple[int, int] | None = None, sho
     if mode.decay is not None and not short:
         from ..modes import t60_text
 
-        parts.append(f"T60 {t60_text(mode.decay)} s")
+        which = "radiation only" if getattr(modeset, "losses", "all") == "radiation" else "all losses"
+        parts.append(f"T60 {t60_text(mode.decay)} s ({which})")
     return "  ".join(parts)
 
 
