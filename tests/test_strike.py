@@ -123,8 +123,9 @@ def test_far_field_matches_a_direct_rayleigh_integral(ideal):
 
 def test_effective_mass_with_a_kettle_is_the_residue_of_the_dynamic_stiffness():
     """One ideal (0,1) shape on a kettle, no other air: Z(w) = K + S(w) - w^2 M with the duct's
-    uniform-pressure term S = w^2 rho cot(kL) W^2 / (k pi a^2) (DESIGN.md 3.4, written out
-    here again, W by quadrature); the effective mass must be -Z'/(2w) at the root (central
+    uniform-pressure term S = w^2 rho cot(kL) W^2 / (k pi a^2) (the plane wave in a rigid-ended
+    tube, input impedance -i rho c cot kL: Kinsler et al., Fundamentals of Acoustics, 4th ed.,
+    ch. 10; written out here again, W by quadrature); the effective mass must be -Z'/(2w) at the root (central
     differences), and the root must sit between the in-vacuum and the lumped-kettle limit."""
     from membrane.physics.vacuum import ideal_basis
     from membrane.modes import Mode
@@ -385,7 +386,8 @@ def test_cli_plot_of_levels_against_strike_radius(tmp_path):
 
 def test_effective_mass_of_a_shell_mode_is_the_residue_of_the_two_head_dynamic_stiffness():
     """Two ideal (0,1) shapes, one per head of a shell, coupled only by the duct's plane wave
-    (DESIGN.md 3.4: cot(kL) self and csc(kL) cross terms, outward displacements): a 2 x 2
+    (plane waves in the closed tube between the heads: cot(kL) self and csc(kL) transfer
+    impedances, Kinsler et al. ch. 10; outward displacements): a 2 x 2
     Z(w); at its lower root the effective mass must be -c^T Z' c / (2 w), c the null vector."""
     from membrane.modes import Mode
     from membrane.physics.vacuum import ideal_basis
