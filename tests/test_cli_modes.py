@@ -66,7 +66,7 @@ def _rows(fmt, text):
 def test_other_formats(fmt, digits):
     # self-consistency: every text format prints the same modes, frequencies and ratios as the
     # JSON of the same run (to the digits it prints), in the same order
-    args = ["modes", "kettledrum", "--physics", "stiff", "--m-max", "3", "--n-max", "2"]
+    args = ["modes", "kettledrum", "--physics", "stiff", "--m-max", "3", "--n-max", "2", "--reference", "0,1"]
     result = run(*args, "--format", fmt)
     assert result.exit_code == 0, result.output
     ref = json.loads(run(*args, "--format", "json").stdout)["modes"]
@@ -157,7 +157,63 @@ def test_full_physics_refuses_tables_too_big_to_wait_for():
 
 def test_radiation_only_decay_beyond_100_s_is_shown_as_such():
     # the (5,1) and (6,1) modes of the built-in kettledrum radiate very little (T60 > 100 s)
-    table = run("modes", "kettledrum", "--m-max", "6", "--n-max", "1").stdout
+    table = run("modes", "kettledrum", "--m-max", "6", "--n-max", "1", "--losses", "radiation").stdout
     assert "> 100" in table
-    data = json.loads(run("modes", "kettledrum", "--m-max", "6", "--n-max", "1", "--format", "json").stdout)
+    data = json.loads(run("modes", "kettledrum", "--m-max", "6", "--n-max", "1", "--losses", "radiation",
+                          "--format", "json").stdout)
     assert max(row["decay_s"] for row in data["modes"]) > 100  # JSON keeps the number
+    assert data["losses"] == "radiation" and any("radiation only" in n for n in data["notes"])
+
+
+def test_default_losses_are_said_and_bring_the_m1_family_to_seconds():
+    # issue 19's three real timpani recordings (band-envelope fits): T60 of (1,1)..(4,1) between
+    # about 3 and 11.5 s; within a factor 3 of that range with the default losses
+    result = run("modes", "kettledrum", "--m-max", "4", "--n-max", "1", "--format", "json")
+    assert result.exit_code == 0, result.output
+    data = json.loads(result.stdout)
+    assert data["losses"] == "all" and any("--losses all" in n for n in data["notes"])
+    t60 = {(row["m"], row["n"]): row["decay_s"] for row in data["modes"]}
+    for m in range(1, 5):
+        assert 3.0 / 3 < t60[(m, 1)] < 11.5 * 3, (m, t60[(m, 1)])
+    table = run("modes", "kettledrum", "--m-max", "2", "--n-max", "1").stdout
+    assert "T60 with all losses" in table
+
+
+def test_tables_mark_the_fitted_modes_and_fit_only_three_or_more(tmp_path):
+    import json
+
+    from typer.testing import CliRunner
+
+    from membrane.cli import app
+
+    runner = CliRunner()
+    out = runner.invoke(app, ["modes", "kettledrum", "--physics", "ideal", "--m-max", "6", "--n-max", "2",
+                              "--format", "json"])
+    assert out.exit_code == 0, out.output
+    data = json.loads(out.stdout)
+    assert data["reference"] == {"m": 1, "n": 1}  # a kettledrum is read against its principal
+    fitted = {(f["m"], f["n"]) for f in data["harmonic_fit"]["modes"]}
+    assert fitted == {(1, 1), (2, 1), (3, 1), (4, 1), (5, 1)}
+    for row in data["modes"]:
+        assert row["fitted"] == ((row["m"], row["n"]) in fitted)
+        if not row["fitted"]:  # fit columns empty for the modes the fit did not use
+            assert row["harmonic"] is None and row["cents_from_harmonic"] is None
+    # two modes always sit on some harmonic series: no fit at all
+    out = runner.invoke(app, ["modes", "kettledrum", "--physics", "ideal", "--m-max", "1", "--n-max", "1",
+                              "--format", "json"])
+    assert out.exit_code == 0 and json.loads(out.stdout)["harmonic_fit"] is None
+    table = runner.invoke(app, ["modes", "kettledrum", "--physics", "ideal", "--m-max", "1", "--n-max", "1"])
+    assert "no harmonic fit" in table.stdout and "ratios to (1,1)" in table.stdout
+    bad = runner.invoke(app, ["modes", "kettledrum", "--physics", "ideal", "--fit", "1,1", "--fit", "2,1"])
+    assert bad.exit_code == 2 and "at least 3" in bad.stderr
+    snare = runner.invoke(app, ["modes", "snare", "--physics", "ideal", "--m-max", "1", "--n-max", "1"])
+    assert "ratios to (0,1)" in snare.stdout
+
+
+def test_help_shows_the_drum_argument_once_bracketed():
+    from typer.testing import CliRunner
+
+    from membrane.cli import app
+
+    text = CliRunner().invoke(app, ["render", "--help"]).stdout
+    assert "[DRUM_FILE]" in text and "[[DRUM_FILE]]" not in text

@@ -158,3 +158,15 @@ def test_full_physics_is_the_default():
     # air loading and the bowl: the answer differs from sqrt(T) scaling
     assert abs(data["tension_n_per_m"] / data["naive_tension_n_per_m"] - 1) > 0.005
     assert all(row["decay_s"] is not None for row in data["modes"])
+
+
+def test_the_summary_table_has_no_empty_header_row():
+    out = run("kettledrum", "--mode", "1,1", "--target", "C3", "--physics", "ideal")
+    assert out.exit_code == 0, out.output
+    first_table = out.stdout.split("\n\n")[0]
+    assert "current tension" in first_table
+    # a header row of empty cells would be a line of only box-drawing characters and spaces
+    # between the top rule and the first row
+    lines = [line for line in first_table.splitlines() if line.strip()]
+    body = lines[lines.index(next(line for line in lines if "current tension" in line)) - 1]
+    assert set(body.strip()) <= set("┌┬┐─"), body

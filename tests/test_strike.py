@@ -439,3 +439,14 @@ def test_effective_mass_of_a_shell_mode_is_the_residue_of_the_two_head_dynamic_s
     h = 1e-5 * root
     residue = -vec @ ((z(root + h) - z(root - h)) / (2 * h)) @ vec / (2 * root)
     assert effective_mass(mode, snare, "full") == pytest.approx(residue, rel=1e-6)
+
+
+def test_levels_are_printed_to_a_sensible_precision():
+    from membrane.cli.strike import level_text
+    from membrane.presets import SILENT_DB
+
+    # common practice, no source: tenths of a dB near the top, whole dB far down, a bound below
+    assert level_text(-4.14) == "-4.1"
+    assert level_text(-83.4) == "-83"
+    assert level_text(-169.7) == "< -120"
+    assert level_text(SILENT_DB) == "silent"

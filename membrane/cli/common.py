@@ -38,6 +38,25 @@ class Physics(str, Enum):
     full = "full"
 
 
+class LossChoice(str, Enum):
+    """Which losses damp the head in ``--physics full`` (:func:`membrane.solve`)."""
+
+    all = "all"
+    radiation = "radiation"
+
+
+LossesOpt = Annotated[LossChoice, typer.Option(
+    "--losses", help="With full physics: all = radiation plus the film, air boundary-layer and rim "
+    "losses (the drum file's [losses], documented defaults); radiation = sound radiation only.")]
+
+
+def decay_words(physics: str, losses: str) -> str:
+    """For titles: which losses made the T60 column (full physics only)."""
+    if physics != "full":
+        return ""
+    return "; T60 from radiation only" if losses == "radiation" else "; T60 with all losses"
+
+
 class BodyKind(str, Enum):
     """What is under the head."""
 
@@ -63,9 +82,23 @@ def parse_mode(text: str, *, key: str = "--mode") -> tuple[int, int]:
     return m, n
 
 
+REFERENCE_HELP = ("Mode the ratios are taken to, M,N (default: the drum's principal, (1,1) for a drum "
+                  "with a kettle, else (0,1)).")
+
+
+def parse_reference(text: str | None, drum) -> tuple[int, int]:
+    """``--reference``: the mode named, or the drum's principal when none is given."""
+    if text is None:
+        from ..modes import principal_mode
+
+        return principal_mode(drum)
+    return parse_mode(text, key="--reference")
+
+
 # ------------------------------------------------------------------ the drum from file + flags
+# click adds the brackets of an optional argument itself: the metavar is the bare name.
 DrumFile = Annotated[Optional[str], typer.Argument(
-    metavar="[DRUM_FILE]",
+    metavar="DRUM_FILE",
     help="Drum file (TOML), or a built-in example: kettledrum, snare, tom, bass_drum, frame_drum "
          "(invented demo drums; membrane examples lists them).")]
 Diameter = Annotated[Optional[str], typer.Option(help="Head diameter, e.g. '26 in' or '0.65 m'.")]
@@ -246,7 +279,8 @@ def emit(fmt: Format, *, payload: dict, rows: list[dict], columns: list[tuple[st
     from rich.console import Console
     from rich.table import Table
 
-    table = Table(title=title or None, title_justify="left")
+    # a two-column summary (what, value) needs no header row: an empty one reads as a gap
+    table = Table(title=title or None, title_justify="left", show_header=any(headers))
     for i, header in enumerate(headers):
         table.add_column(header, justify="left" if i == 0 else "right", no_wrap=i == 0)
     for c in cells:
