@@ -16,6 +16,7 @@ from pathlib import Path
 
 from . import materials
 from .errors import InputError
+from .losses import Losses, parse_losses
 from .units import parse_pitch, to_si
 
 EDGES = ("clamped", "hinged")
@@ -186,6 +187,8 @@ class Drum:
         The far head of a shell.
     lugs : Lugs or None
         Tap pitches at the lugs, if measured.
+    losses : Losses
+        Loss parameters besides radiation (the drum file's ``[losses]``; defaults if absent).
     name, description : str
         Words for people.
     """
@@ -195,6 +198,7 @@ class Drum:
     air: Air = field(default_factory=Air)
     resonant_head: Head | None = None
     lugs: Lugs | None = None
+    losses: Losses = field(default_factory=Losses)
     name: str = "drum"
     description: str = ""
 
@@ -210,7 +214,7 @@ _HEAD_KEYS = {"diameter", "radius", "film", "thickness", "plies", "density", "ar
 _BODY_KEYS = {"kind", "volume", "depth"}
 _AIR_KEYS = {"temperature", "pressure", "density", "sound_speed"}
 _LUG_KEYS = {"pitches", "cents_per_turn"}
-_TOP_KEYS = {"name", "description", "head", "body", "resonant_head", "air", "lugs"}
+_TOP_KEYS = {"name", "description", "head", "body", "resonant_head", "air", "lugs", "losses"}
 
 
 def _ranged(table: dict, key: str, kind: str, where: str, lo: float, hi: float, *,
@@ -354,7 +358,8 @@ def parse_drum(table: dict) -> Drum:
     for key in ("name", "description"):
         if key in table and not isinstance(table[key], str):
             raise InputError(key, table[key], "must be text")
-    return Drum(head=head, body=body, air=air, resonant_head=resonant, lugs=lugs,
+    losses = parse_losses(table["losses"]) if "losses" in table else Losses()
+    return Drum(head=head, body=body, air=air, resonant_head=resonant, lugs=lugs, losses=losses,
                 name=table.get("name", "drum"), description=table.get("description", ""))
 
 

@@ -66,7 +66,7 @@ def _rows(fmt, text):
 def test_other_formats(fmt, digits):
     # self-consistency: every text format prints the same modes, frequencies and ratios as the
     # JSON of the same run (to the digits it prints), in the same order
-    args = ["modes", "kettledrum", "--physics", "stiff", "--m-max", "3", "--n-max", "2"]
+    args = ["modes", "kettledrum", "--physics", "stiff", "--m-max", "3", "--n-max", "2", "--reference", "0,1"]
     result = run(*args, "--format", fmt)
     assert result.exit_code == 0, result.output
     ref = json.loads(run(*args, "--format", "json").stdout)["modes"]
@@ -157,10 +157,26 @@ def test_full_physics_refuses_tables_too_big_to_wait_for():
 
 def test_radiation_only_decay_beyond_100_s_is_shown_as_such():
     # the (5,1) and (6,1) modes of the built-in kettledrum radiate very little (T60 > 100 s)
-    table = run("modes", "kettledrum", "--m-max", "6", "--n-max", "1").stdout
+    table = run("modes", "kettledrum", "--m-max", "6", "--n-max", "1", "--losses", "radiation").stdout
     assert "> 100" in table
-    data = json.loads(run("modes", "kettledrum", "--m-max", "6", "--n-max", "1", "--format", "json").stdout)
+    data = json.loads(run("modes", "kettledrum", "--m-max", "6", "--n-max", "1", "--losses", "radiation",
+                          "--format", "json").stdout)
     assert max(row["decay_s"] for row in data["modes"]) > 100  # JSON keeps the number
+    assert data["losses"] == "radiation" and any("radiation only" in n for n in data["notes"])
+
+
+def test_default_losses_are_said_and_bring_the_m1_family_to_seconds():
+    # issue 19's three real timpani recordings (band-envelope fits): T60 of (1,1)..(4,1) between
+    # about 3 and 11.5 s; within a factor 3 of that range with the default losses
+    result = run("modes", "kettledrum", "--m-max", "4", "--n-max", "1", "--format", "json")
+    assert result.exit_code == 0, result.output
+    data = json.loads(result.stdout)
+    assert data["losses"] == "all" and any("--losses all" in n for n in data["notes"])
+    t60 = {(row["m"], row["n"]): row["decay_s"] for row in data["modes"]}
+    for m in range(1, 5):
+        assert 3.0 / 3 < t60[(m, 1)] < 11.5 * 3, (m, t60[(m, 1)])
+    table = run("modes", "kettledrum", "--m-max", "2", "--n-max", "1").stdout
+    assert "T60 with all losses" in table
 
 
 def test_tables_mark_the_fitted_modes_and_fit_only_three_or_more(tmp_path):

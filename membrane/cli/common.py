@@ -38,6 +38,25 @@ class Physics(str, Enum):
     full = "full"
 
 
+class LossChoice(str, Enum):
+    """Which losses damp the head in ``--physics full`` (:func:`membrane.solve`)."""
+
+    all = "all"
+    radiation = "radiation"
+
+
+LossesOpt = Annotated[LossChoice, typer.Option(
+    "--losses", help="With full physics: all = radiation plus the film, air boundary-layer and rim "
+    "losses (the drum file's [losses], documented defaults); radiation = sound radiation only.")]
+
+
+def decay_words(physics: str, losses: str) -> str:
+    """For titles: which losses made the T60 column (full physics only)."""
+    if physics != "full":
+        return ""
+    return "; T60 from radiation only" if losses == "radiation" else "; T60 with all losses"
+
+
 class BodyKind(str, Enum):
     """What is under the head."""
 
@@ -64,16 +83,33 @@ def parse_mode(text: str, *, key: str = "--mode") -> tuple[int, int]:
 
 
 REFERENCE_HELP = ("Mode the ratios are taken to, M,N (default: the drum's principal, (1,1) for a drum "
-                  "with a kettle, else (0,1)).")
+                  "with a kettle, else (0,1)); on a two-headed drum HEAD:M,N names the head, e.g. "
+                  "resonant:0,1 (or use --head).")
+HEAD_HELP = "Which head of a two-headed drum the named mode belongs to: struck or resonant."
 
 
-def parse_reference(text: str | None, drum) -> tuple[int, int]:
-    """``--reference``: the mode named, or the drum's principal when none is given."""
+def parse_reference(text: str | None, drum, head: str | None = None) -> tuple:
+    """``--reference``: the mode named, or the drum's principal when none is given.
+
+    ``HEAD:M,N`` (``resonant:0,1``) or ``head`` (from ``--head``) picks which head's mode
+    on a two-headed drum; the result is then (m, n, head).
+    """
     if text is None:
         from ..modes import principal_mode
 
-        return principal_mode(drum)
-    return parse_mode(text, key="--reference")
+        ref = principal_mode(drum)
+    else:
+        if ":" in text:
+            head, text = text.split(":", 1)
+            head = head.strip().lower()
+            if head not in ("struck", "resonant"):
+                fail("--reference", f"{head}:{text}", "the head before ':' must be struck or resonant")
+        ref = parse_mode(text, key="--reference")
+    if head is None:
+        return ref
+    if head == "resonant" and getattr(drum, "resonant_head", None) is None:
+        fail("--head", head, "this drum has no resonant head (only a shell has two heads)")
+    return (*ref, head)
 
 
 # ------------------------------------------------------------------ the drum from file + flags

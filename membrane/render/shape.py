@@ -170,7 +170,7 @@ def wrap_title(text: str, width_in: float, fontsize: float) -> str:
 def ratio_to(modeset, mode, reference: tuple[int, int]) -> float | None:
     """Frequency ratio of ``mode`` to the reference mode, or None if that was not solved."""
     try:
-        ref = modeset.find(*reference)
+        ref = modeset.reference_mode(reference)
     except ValueError:
         return None
     return mode.frequency / ref.frequency
@@ -198,7 +198,8 @@ def mode_caption(modeset, mode, *, reference: tuple[int, int] | None = None, sho
     if mode.decay is not None and not short:
         from ..modes import t60_text
 
-        parts.append(f"T60 {t60_text(mode.decay)} s")
+        which = "radiation only" if getattr(modeset, "losses", "all") == "radiation" else "all losses"
+        parts.append(f"T60 {t60_text(mode.decay)} s ({which})")
     return "  ".join(parts)
 
 
