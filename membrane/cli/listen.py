@@ -116,6 +116,10 @@ def listen(
     rows = []
     labels = {id(mt.partial): mt for mt in ident.matches} if ident else {}
     shown = analysis.strongest(max_partials)
+    partners = {}
+    for sp in (ident.splits if ident else ()):
+        partners[id(sp.low)] = (sp.high.frequency, sp.beat_hz)
+        partners[id(sp.high)] = (sp.low.frequency, sp.beat_hz)
     for p in shown:
         note, off = note_name(p.frequency)
         row = {"frequency_hz": p.frequency, "level_db": p.level_db, "decay_s": p.t60,
@@ -126,6 +130,9 @@ def listen(
         if mt is not None:
             row.update(m=mt.m, n=mt.n, mode=f"({mt.m},{mt.n})", model_hz=mt.model_frequency,
                        cents_from_model=mt.cents)
+            pair = partners.get(id(p))
+            if pair is not None:
+                row.update(pair=pair[0], beat_hz=pair[1])
             if mt.branch is not None:
                 row["branch"] = mt.branch
                 row["mode"] += f" {mt.branch}"
@@ -164,6 +171,8 @@ def listen(
     if ident is not None:
         payload.update(_identification_payload(ident, physics.value))
         notes += _identification_notes(ident, physics.value)
+        if physics is Physics.full and ident.matches:
+            _fit_losses(ident, rows, payload, notes)
     tuning_result = None
     if targets:
         tuning_result = _tune(ident.drum, targets, physics.value)
@@ -185,8 +194,49 @@ def listen(
             ([("m", "m", str), ("n", "n", str)] + DRUM_COLUMNS[1:] if ident else [])
     title = f"{recording.name}: {len(rows)} partials ({audio.encoding}, {audio.rate:g} Hz)"
     if ident is not None:
-        title += f"; fitted tension {ident.tension:.0f} N/m"
+        title += f"; fitted tension {ident.tension:.0f} N/m ({ident.verdict.split(':')[0]})"
+        if ident.verdict != "identified":
+            print(f"warning: {ident.verdict}", file=sys.stderr)
     emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=notes)
+
+
+def _fit_losses(ident, rows, payload, notes) -> None:
+    """Loss parameters from the matched partials' decay (loss_fit.py), into the output."""
+    from ..errors import SolverError
+    from ..loss_fit import fit_losses
+
+    m_max = max(mt.m for mt in ident.matches)
+    n_max = max(mt.n for mt in ident.matches)
+    try:
+        lf = fit_losses(ident.drum, ident.matches, m_max=m_max, n_max=n_max)
+    except SolverError as exc:
+        notes.append(f"no loss fit: {' '.join(str(exc).split())}")
+        return
+    payload["loss_fit"] = {
+        "parameters": {k: {"value": v, "uncertainty": u} for k, (v, u) in lf.fitted.items()},
+        "fitted_on": [{"m": m, "n": n, "branch": b} for m, n, b in lf.used],
+        "rms_log_ratio": lf.rms_log_ratio,
+        "partials": [{k: v for k, v in r.items() if k != "head"} for r in lf.rows],
+    }
+    by = {(r["m"], r["n"], r["branch"]): r for r in lf.rows}
+    for row in rows:
+        r = by.get((row.get("m"), row.get("n"), row.get("branch")))
+        if r is not None:
+            row["predicted_decay_s"] = r["predicted_t60_s"]
+            row["dominant_loss"] = r["dominant"]
+    if lf.fitted:
+        said = ", ".join(f"{k.replace('_', ' ')} {v:.3g}" + (f" +- {u:.2g}" if u is not None else "")
+                         for k, (v, u) in lf.fitted.items())
+        notes.append(f"loss fit on {len(lf.used)} partials with T60 > 0.5 s: {said} "
+                     f"(rms {100 * lf.rms_log_ratio:.0f} % in T60); the other loss parameters "
+                     "keep the drum file's values (docs/losses.md)")
+    else:
+        notes.append("no loss fit: too few matched partials with T60 > 0.5 s")
+    dominant = {}
+    for r in lf.rows:
+        dominant.setdefault(r["dominant"], []).append(f"({r['m']},{r['n']})")
+    notes.append("what damps each matched partial most: " +
+                 "; ".join(f"{k}: {' '.join(v)}" for k, v in dominant.items()))
 
 
 def _remarks(p) -> str:
@@ -221,6 +271,7 @@ def _identification_payload(ident, physics: str) -> dict:
         "tension_change_percent": 100.0 * (ident.tension / ident.nominal_tension - 1.0),
         "rms_cents": ident.rms_cents,
         "matched": len(ident.matches),
+        "fit": ident.fit,
         "unmatched": [{"frequency_hz": p.frequency, "level_db": p.level_db} for p in ident.unmatched],
         "beyond_model_range": [{"frequency_hz": p.frequency, "level_db": p.level_db} for p in ident.beyond],
         "splits": [{"m": s.m, "n": s.n, "low_hz": s.low.frequency, "high_hz": s.high.frequency,
@@ -230,14 +281,18 @@ def _identification_payload(ident, physics: str) -> dict:
 
 
 def _identification_notes(ident, physics: str) -> list[str]:
-    out = [f"fitted tension {ident.tension:.1f} N/m ({100 * (ident.tension / ident.nominal_tension - 1):+.1f} % "
+    unc = f" +- {ident.uncertainty:.0f}" if ident.uncertainty == ident.uncertainty else ""
+    out = [f"fitted tension {ident.tension:.1f}{unc} N/m ({100 * (ident.tension / ident.nominal_tension - 1):+.1f} % "
            f"from the drum file's {ident.nominal_tension:.0f} N/m), {physics} physics; "
-           f"{len(ident.matches)} partials matched, rms {ident.rms_cents:.1f} cents"]
+           f"{len(ident.matches)} partials matched, rms {ident.rms_cents:.1f} cents; {ident.verdict}"]
     for s in ident.splits:
         out.append(f"mode ({s.m},{s.n}) is split: {s.low.frequency:.2f} and {s.high.frequency:.2f} Hz, "
                    f"beating at {s.beat_hz:.2f} Hz ({s.cents:.1f} cents) - uneven tension round the rim")
     if ident.unmatched:
-        out.append("no mode within reach: " + ", ".join(f"{p.frequency:.1f} Hz" for p in ident.unmatched))
+        few = sorted(ident.unmatched, key=lambda p: -p.amplitude)[:8]
+        out.append("no mode within reach: " + ", ".join(f"{p.frequency:.1f} Hz" for p in
+                                                        sorted(few, key=lambda p: p.frequency))
+                   + (f" and {len(ident.unmatched) - 8} weaker" if len(ident.unmatched) > 8 else ""))
     if ident.beyond:
         out.append(f"{len(ident.beyond)} partials from {ident.beyond[0].frequency:.0f} Hz up are above "
                    f"the range of the {physics} model's mode table and are not labelled")
@@ -273,79 +328,12 @@ def shown_partials(analysis):
 
 
 def _draw(path: Path, spectrum, analysis, ident, name: str) -> None:
-    """Two panels on one frequency axis.
-
-    Top: the measured spectrum, the partials found (dots) and the matched model modes
-    (dashed, labelled). Bottom: each partial's level at the strike, coloured by its T60.
-    """
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-    import numpy as np
-    from matplotlib.colors import LogNorm
+    """The spectrum picture (:func:`membrane.render.spectrum.spectrum_figure`) to a PNG."""
+    from ..render.spectrum import spectrum_figure
 
     freqs, level = spectrum
-    parts = shown_partials(analysis)
-    f_found = np.array([p.frequency for p in parts])
-    span = f_found.max() * 1.15 + 20
-    keep = freqs <= span
-    fig, (ax, bx) = plt.subplots(2, 1, figsize=(11, 7.5), dpi=110, sharex=True,
-                                 gridspec_kw={"height_ratios": [3, 2]}, layout="constrained")
-    ax.plot(freqs[keep], level[keep], color="0.35", lw=0.7,
-            label="measured spectrum (falling half-Hann window from the strike)")
-    ax.plot(f_found, np.interp(f_found, freqs, level), "o", ms=4.5, color="tab:red",
-            label="partials found (damped-sinusoid fit)")
-    if ident is not None:
-        seen, last, row = set(), -np.inf, 0
-        for mt in ident.matches:
-            if (mt.m, mt.n) in seen:
-                continue  # the other half of a split: one line, one label
-            seen.add((mt.m, mt.n))
-            for axis in (ax, bx):
-                axis.axvline(mt.model_frequency, color="tab:blue", lw=0.7, ls="--",
-                             label="model modes at the fitted tension"
-                             if len(seen) == 1 and axis is ax else None)
-            # labels closer than 2 % of the axis take turns on three rows
-            row = (row + 1) % 3 if mt.model_frequency - last < 0.02 * span else 0
-            last = mt.model_frequency
-            ax.annotate(f"({mt.m},{mt.n})", (mt.model_frequency, 3.0 + 7.0 * row), fontsize=7,
-                        ha="center", va="bottom", color="tab:blue",
-                        bbox=dict(boxstyle="round,pad=0.1", fc="white", ec="none", alpha=0.8))
-        for sp in ident.splits:
-            bx.annotate(f"({sp.m},{sp.n}) split, beat {sp.beat_hz:.2f} Hz",
-                        (sp.high.frequency, sp.high.level_db), xytext=(6, 6),
-                        textcoords="offset points", fontsize=8, color="tab:red")
-        title = (f"{name}: fitted tension {ident.tension:.0f} N/m, {len(ident.matches)} partials "
-                 f"labelled, rms {ident.rms_cents:.1f} cents")
-    else:
-        title = f"{name}: {len(parts)} partials"
-    ax.set_ylim(max(level[keep].min(), -100.0), 26)
-    ax.set_ylabel("spectrum (dB re highest peak)")
-    ax.set_title(title)
-    ax.legend(loc="lower right", fontsize=8, framealpha=0.9)
-    ax.grid(alpha=0.3)
-    t60 = np.array([p.t60 if p.t60 is not None else np.nan for p in parts])
-    levels = np.array([p.level_db for p in parts])
-    finite = np.isfinite(t60)
-    bx.vlines(f_found, min(levels.min(), -10) - 5, levels, color="0.6", lw=1.0)
-    norm = LogNorm(vmin=max(np.nanmin(t60), 1e-2), vmax=max(np.nanmax(t60), 2e-2)) if finite.any() else None
-    dots = bx.scatter(f_found[finite], levels[finite], c=t60[finite], cmap="viridis", norm=norm,
-                      s=28, zorder=3)
-    if (~finite).any():
-        bx.scatter(f_found[~finite], levels[~finite], marker="s", color="k", s=20, zorder=3,
-                   label="no decay")
-        bx.legend(loc="lower right", fontsize=8)
-    if finite.any():
-        fig.colorbar(dots, ax=[ax, bx], pad=0.01, shrink=0.4, anchor=(0.0, 0.0),
-                     label="T60 (s) of the partials below")
-    bx.set_ylim(min(levels.min(), -10) - 5, 5)
-    bx.set_xlim(0, span)
-    bx.set_xlabel("frequency (Hz)")
-    bx.set_ylabel("level at the strike (dB)")
-    bx.grid(alpha=0.3)
+    fig = spectrum_figure(freqs, level, shown_partials(analysis), ident=ident, name=name)
     fig.savefig(path, format="png")
-    plt.close(fig)
 
 
 __all__ = ["listen", "parse_channel"]

@@ -302,6 +302,8 @@ def _table_page(modeset, size, reference, fit):
     cells = table_cells(modeset, reference=reference)
     columns, widths = list(TABLE_COLUMNS), list(TABLE_WIDTHS)
     columns[2] = f"ratio to\n({reference[0]},{reference[1]})"
+    # a two-headed drum's labels name the head and branch: widen the mode column to fit them
+    widths[0] = max(widths[0], 0.0125 * max((len(c[0]) for c in cells), default=0))
     if all(mode.decay is None for mode in modeset.modes):  # in vacuum: no decay column
         columns, widths, cells = columns[:-1], widths[:-1], [c[:-1] for c in cells]
     rows = min(len(cells), TABLE_ROWS)
@@ -333,7 +335,9 @@ def _table_page(modeset, size, reference, fit):
                       f"f0 = {fit.fundamental:.2f} Hz each is taken as, and its distance from it in cents "
                       "(100 cents = one semitone). Other modes are not part of the fit.")
     if any(mode.decay is not None for mode in modeset.modes):
-        legend.append(f"T60: time for the mode to die away by 60 dB, from sound radiation alone; values "
+        source = "sound radiation alone" if getattr(modeset, "losses", "all") == "radiation" else \
+            "sound radiation and the modelled losses in the film, the air and the rim"
+        legend.append(f"T60: time for the mode to die away by 60 dB, from {source}; values "
                       f"beyond {T60_SHOWN_MAX:g} s show as \"> {T60_SHOWN_MAX:g}\".")
     if len(cells) > rows:
         legend.insert(0, f"The lowest {rows} of {len(cells)} solved modes (membrane modes lists them all).")
