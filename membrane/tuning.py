@@ -31,7 +31,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 from scipy import optimize
 
-from .bessel import jn_zeros
+from . import ranges
 from .drum import Drum, Head
 from .errors import InputError, SolverError
 from .modes import ModeSet
@@ -69,8 +69,7 @@ def slack_tension(head: Head) -> float:
     the pitch and the head is slack for tuning purposes. A head without bending
     stiffness (no modulus or thickness given) has no such limit here (returns 0).
     """
-    k11 = float(jn_zeros(1, 1)[0]) / head.radius
-    return head.bending_stiffness * k11 * k11
+    return head.slack_tension  # one home for the formula (membrane.drum.Head)
 
 
 def stress(head: Head, tension: float) -> float | None:
@@ -319,7 +318,9 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
             current_value = drum.head.areal_density if free == "areal-density" else drum.body.volume
             x0.append(math.log(current_value))
             # within a factor of 10 either way, and the drum-file range (10 kg/m^2, 10 m^3)
-            bounds = ([lo, math.log(current_value / 10)], [hi, math.log(min(current_value * 10, 10.0))])
+            span = ranges.AREAL_DENSITY if free == "areal-density" else ranges.VOLUME  # what a Drum accepts
+            bounds = ([lo, math.log(max(current_value / 10, span.lo))],
+                      [hi, math.log(min(current_value * 10, span.hi))])
 
         def residuals(p):
             v = math.exp(p[1]) if free else None

@@ -10,8 +10,8 @@ import typer
 
 from ..errors import InputError
 from ..units import note_name, parse_pitch
-from .common import (DrumFile, Format, Physics, drum_from, emit, fail, num, parse_mode, t60,
-                     with_drum_flags)
+from .common import (DrumFile, Format, Physics, check_float, drum_from, emit, fail, num, parse_mode,
+                     t60, with_drum_flags)
 
 TARGET_HELP = ("Target pitch: Hz ('87.3', '87.3 Hz'), a note ('F2', 'F#2', 'Bb2') or either with cents "
                "('F2+15c', 'D3 -8 cents'). With --mode give one bare PITCH; for several modes give "
@@ -99,8 +99,9 @@ def tune(
 
     The suggestion is checked against the film's yield stress and the slack limit.
     """
-    from .. import tuning
+    from .. import ranges, tuning
 
+    check_float("--cents-per-turn", cents_per_turn, ranges.CENTS_PER_TURN)
     drum = drum_from(drum_file, **drum_flags)
     targets = parse_targets(target or [], mode)
     if mode is not None and not targets:
