@@ -29,12 +29,19 @@ GAMMA_AIR = 1.4
 J11 = 3.8317059702075125
 
 
-def _require(obj, name: str, rng: R.Range, *, optional: bool = False) -> None:
-    """Invariant of a drum dataclass: the field lies in its practical range (SI)."""
+def _require(obj, name: str, *, optional: bool = False) -> None:
+    """Invariant of a drum dataclass: the field is a finite number > 0 (SI), or None if optional.
+
+    Only what every drum must satisfy to be one. The practical ranges (membrane.ranges)
+    are checked where values come in from people (the drum file, the command line);
+    the library also accepts modelling limits outside them (air with rho -> 0 and
+    c -> infinity at fixed rho c^2, say).
+    """
     value = getattr(obj, name)
     if value is None and optional:
         return
-    rng.check(value, key=f"{type(obj).__name__}.{name}")
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not (math.isfinite(value) and value > 0):
+        raise InputError(f"{type(obj).__name__}.{name}", value, "must be a finite number > 0 (SI units)")
 
 
 @dataclass(frozen=True)
@@ -79,22 +86,17 @@ class Head:
     tensile_strength: float | None = None
 
     def __post_init__(self) -> None:
-        # The library is protected too, not only the drum file: values outside the practical
-        # ranges (membrane.ranges) never reach a solver. Tension is only required finite and
-        # positive here, because the tuning and fitting searches roam over it by design.
-        _require(self, "radius", R.RADIUS)
-        if not (isinstance(self.tension, (int, float)) and math.isfinite(self.tension) and self.tension > 0):
-            raise InputError("Head.tension", self.tension, "must be a finite tension > 0 N/m")
-        _require(self, "areal_density", R.AREAL_DENSITY)
-        _require(self, "thickness", R.THICKNESS, optional=True)
+        # The library is protected too, not only the drum file: no NaN, infinity, zero or
+        # negative size reaches a solver (the practical ranges are the drum file's job).
+        for name in ("radius", "tension", "areal_density"):
+            _require(self, name)
+        for name in ("thickness", "youngs_modulus", "yield_stress", "tensile_strength"):
+            _require(self, name, optional=True)
         if isinstance(self.plies, bool) or not isinstance(self.plies, int) or not 1 <= self.plies <= 4:
             raise InputError("Head.plies", self.plies, "must be a whole number from 1 to 4")
-        _require(self, "youngs_modulus", R.YOUNGS_MODULUS, optional=True)
-        _require(self, "poisson_ratio", R.POISSON_RATIO)
+        R.POISSON_RATIO.check(self.poisson_ratio, key="Head.poisson_ratio")  # 0 <= nu < 0.5
         if self.edge not in EDGES:
             raise InputError("Head.edge", self.edge, f"must be one of: {', '.join(EDGES)}")
-        _require(self, "yield_stress", R.STRENGTH, optional=True)
-        _require(self, "tensile_strength", R.STRENGTH, optional=True)
 
     @property
     def diameter(self) -> float:
@@ -157,8 +159,8 @@ class Body:
     def __post_init__(self) -> None:
         if self.kind not in BODY_KINDS:
             raise InputError("Body.kind", self.kind, f"must be one of: {', '.join(BODY_KINDS)}")
-        _require(self, "volume", R.VOLUME, optional=True)
-        _require(self, "depth", R.DEPTH, optional=True)
+        _require(self, "volume", optional=True)
+        _require(self, "depth", optional=True)
 
 
 @dataclass(frozen=True)
@@ -177,8 +179,8 @@ class Air:
     sound_speed: float = 343.24
 
     def __post_init__(self) -> None:
-        _require(self, "density", R.AIR_DENSITY)
-        _require(self, "sound_speed", R.SOUND_SPEED)
+        _require(self, "density")
+        _require(self, "sound_speed")
 
     @classmethod
     def from_conditions(cls, *, temperature: float = 293.15, pressure: float = 101325.0) -> "Air":
@@ -197,8 +199,10 @@ class Air:
         343.24 m/s and 1.2041 kg/m^3 at 20 degC and 101.325 kPa (SOURCES.md). Humidity
         is neglected (it raises c by well under 1 % at room temperature).
         """
-        R.TEMPERATURE.check(temperature, key="temperature")
-        R.PRESSURE.check(pressure, key="pressure")
+        for key, value in (("temperature", temperature), ("pressure", pressure)):
+            if isinstance(value, bool) or not isinstance(value, (int, float)) or not (
+                    math.isfinite(value) and value > 0):
+                raise InputError(key, value, "must be a finite number > 0 (K, Pa)")
         return cls(density=pressure / (R_DRY_AIR * temperature),
                    sound_speed=math.sqrt(GAMMA_AIR * R_DRY_AIR * temperature))
 

@@ -11,6 +11,10 @@ the ideal gas over that span.
 
 Each range knows its unit and checks a value, raising the package's one-line
 :class:`~membrane.errors.InputError` that names the key, the value and the range.
+They are checked where values come in from people: the drum file
+(:func:`membrane.drum.parse_drum`) and the command line. The dataclasses themselves
+(:class:`membrane.drum.Head` and the others) require only finite, positive sizes, so
+the library can still be taken to modelling limits outside these ranges.
 """
 
 from __future__ import annotations

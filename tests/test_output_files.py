@@ -37,11 +37,16 @@ def test_force_never_replaces_a_fifo(tmp_path):
     assert stat.S_ISFIFO(os.lstat(fifo).st_mode)  # still a FIFO
 
 
-def test_force_never_replaces_a_device_node():
-    # the write is refused before anything is created, so this holds even when run as root
+def test_force_never_replaces_a_device_node(monkeypatch):
+    # Run as root, the old code replaced /dev/null with a regular file. The writer and the
+    # final rename are booby-trapped, so even code that got this wrong harms nothing here.
+    def never(*args, **kwargs):
+        pytest.fail("a device node was about to be replaced")
+
     assert stat.S_ISCHR(os.stat("/dev/null").st_mode)
+    monkeypatch.setattr(os, "replace", never)
     with pytest.raises(InputError, match="not a regular file"):
-        write_atomic("/dev/null", lambda p: p.write_text("x"), force=True)
+        write_atomic("/dev/null", never, force=True)
     assert stat.S_ISCHR(os.stat("/dev/null").st_mode)
 
 
