@@ -88,7 +88,7 @@ AIR_DENSITY = Range(0.3, 2.1, "kg/m^3", "0.3 to 2.1 kg/m^3")
 SOUND_SPEED = Range(250.0, 400.0, "m/s", "250 to 400 m/s")
 
 # ------------------------------------------------------------------ pitch and listening
-PITCH = Range(1.0, 1.0e5, "Hz", "1 Hz to 100 kHz")
+PITCH = Range(0.1, 1.0e5, "Hz", "0.1 Hz to 100 kHz")
 CENTS_OFFSET = Range(-1200.0, 1200.0, "cents", "-1200 to +1200 cents (one octave)")
 OCTAVE = Range(-1, 10, "", "-1 to 10 (C-1 to B10)")
 CENTS_PER_TURN = Range(0.01, 1200.0, "cents", "0.01 to 1200 cents per turn")
