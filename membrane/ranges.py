@@ -99,3 +99,4 @@ LISTENER_DISTANCE = Range(0.1, 1000.0, "m", "0.1 m to 1 km (the levels are a far
 CONTACT_TIME = Range(1.0e-5, 0.1, "s", "10 us to 100 ms")
 T60 = Range(1.0e-3, 1000.0, "s", "1 ms to 1000 s")
 FLOOR_DB = Range(-200.0, -1.0, "dB", "-200 to -1 dB")
+TURNS_PER_NEWTON = Range(1.0e-6, 1.0, "turns/N", "1e-06 to 1 turn per newton of lug pull")

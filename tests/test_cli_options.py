@@ -51,6 +51,9 @@ def one_line_error(result, words):
     (["render", "kettledrum", "--mode", "1,1", "--out", "x.gif", "--fps", "nan"], "--fps"),
     (["render", "kettledrum", "--mode", "1,1", "--out", "x.gif", "--frames", "1000", "--size", "4096"],
      "--frames and --size"),
+    (["lugs", "kettledrum", "--lug-tensions", "1e-300,4000,4000,4000"], "--lug-tensions"),
+    (["lugs", "kettledrum", "--turns-per-newton", "1e-300"], "--turns-per-newton"),
+    (["lugs", "kettledrum", "--cents-per-turn", "1e-300"], "--cents-per-turn"),
     (["listen", "no-such.wav", "--floor", "nan"], "--floor"),
     (["listen", "no-such.wav", "--floor", "-inf"], "--floor"),
 ])

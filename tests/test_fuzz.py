@@ -159,6 +159,8 @@ ABSURD = {
     "tune": {"--target": ["A4+999999999999c", "A99999999999999", "1e300 Hz", "0 Hz", "nan", "C-9"],
              "--cents-per-turn": ["nan", "-inf", "0", "1e300"],
              "--lug-pitches": ["D3,D3,D3-99999999c", "nan,nan,nan", "1e300,1,1"]},
+    "lugs": {"--lug-tensions": ["1e-300,4000,4000,4000", "nan,4000,4000", "1e300,4000,4000,4000"],
+             "--cents-per-turn": ["nan", "1e-300", "inf"], "--turns-per-newton": ["nan", "1e-300", "1e300"]},
     "render": {"--elevation": ["inf", "nan", "91"], "--azimuth": ["nan", "1e300"], "--amplitude": ["nan", "0", "2"],
                "--fps": ["nan", "0", "1e9"], "--frames": ["0", "100000"], "--size": ["0", "99999", "4096x0"]},
 }
@@ -167,6 +169,7 @@ BASE_ARGS = {
     "strike": ["strike", "kettledrum"],
     "tune": ["tune", "kettledrum", "--mode", "1,1"],
     "render": ["render", "kettledrum", "--mode", "1,1", "--frames", "1000", "--size", "4096"],
+    "lugs": ["lugs", "kettledrum", "--lug-tensions", "4000,4100,3950,4000"],
 }
 
 
