@@ -240,6 +240,11 @@ class ModeSet:
         raise InputError("mode", f"{m},{n}" + (f" {branch}" if branch else ""),
                          f"this drum's solved modes have {have}")
 
+    def reference_mode(self, reference=None) -> Mode:
+        """The mode a reference names: (m, n), or (m, n, head) on a two-headed drum; default the principal."""
+        reference = tuple(reference or self.principal)
+        return self.find(*reference[:2], head=reference[2] if len(reference) > 2 else None)
+
     @property
     def principal(self) -> tuple[int, int]:
         """The default reference mode: (1,1) for a drum with a kettle, else (0,1)."""
@@ -247,8 +252,7 @@ class ModeSet:
 
     def ratios(self, reference: tuple[int, int] | None = None) -> np.ndarray:
         """Frequency of every mode divided by the reference mode's (default :attr:`principal`)."""
-        ref = self.find(*(reference or self.principal)[:2],
-                        head=(reference[2] if reference is not None and len(reference) > 2 else None)).frequency
+        ref = self.reference_mode(reference).frequency
         return np.array([mode.frequency / ref for mode in self.modes])
 
     def harmonic_fit(self, fit_modes=None) -> HarmonicFit | None:

@@ -152,3 +152,19 @@ def test_reference_picks_the_head_and_labels_say_which_head():
     assert "struck head" in table and "resonant head" in table and "names the head it grows from" in table
     bad = runner.invoke(app, ["modes", "kettledrum", "--head", "resonant", "--physics", "ideal"])
     assert bad.exit_code == 2 and "--head" in bad.output
+
+
+def test_head_picks_the_mode_in_strike_and_render(tmp_path):
+    runner = CliRunner()
+    small = ["--m-max", "1", "--n-max", "1"]
+    a = json.loads(runner.invoke(app, ["strike", "tom", "--best-for", "0,1", "--head", "resonant", *small,
+                                       "--format", "json"]).stdout)
+    b = json.loads(runner.invoke(app, ["strike", "tom", "--best-for", "0,1", *small, "--format", "json"]).stdout)
+    assert a["best_for"]["modes"] == [{"m": 0, "n": 1, "head": "resonant"}]
+    assert a["best_for"]["at"] != b["best_for"]["at"]  # a different mode favoured, a different point
+    out = tmp_path / "r.png"
+    done = runner.invoke(app, ["render", "tom", "--mode", "0,1", "--head", "resonant", *small, "--out", str(out)])
+    assert done.exit_code == 0 and out.exists(), done.output
+    bad = runner.invoke(app, ["render", "kettledrum", "--mode", "1,1", "--head", "resonant", "--physics",
+                              "ideal", "--out", str(tmp_path / "k.png")])
+    assert bad.exit_code == 2 and "--head" in bad.output
