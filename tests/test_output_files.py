@@ -112,3 +112,26 @@ def test_stdout_on_a_full_device_is_one_line_and_exit_2():
     assert done.returncode == 2, done.stderr
     lines = done.stderr.strip().splitlines()
     assert len(lines) == 1 and "No space left on device" in lines[0], done.stderr
+
+
+def test_numpy_warnings_never_print_before_the_result_or_the_error():
+    # A numpy RuntimeWarning raised inside a command (here by a solve wrapped to take the
+    # log of zero first, as a search probing a bad trial point would) must not reach the
+    # user: stderr is empty on success and holds one line on error. A real process, since
+    # pytest would capture warnings of an in-process run before they reach stderr.
+    script = (
+        "import sys, numpy as np, membrane.solver as s\n"
+        "solve = s.solve\n"
+        "def noisy(*a, **k):\n"
+        "    np.log(np.zeros(2)); np.float64(1e308) * 10\n"
+        "    return solve(*a, **k)\n"
+        "s.solve = noisy\n"
+        "from membrane.cli import main\n"
+        "sys.argv = ['membrane'] + sys.argv[1:]\n"
+        "main()\n")
+    ok = subprocess.run([sys.executable, "-c", script, "modes", "kettledrum", "--physics", "ideal"],
+                        capture_output=True, text=True, timeout=120)
+    assert ok.returncode == 0 and ok.stderr == "", ok.stderr
+    bad = subprocess.run([sys.executable, "-c", script, "modes", "kettledrum", "--physics", "ideal",
+                          "--reference", "9,3"], capture_output=True, text=True, timeout=120)
+    assert bad.returncode == 2 and len(bad.stderr.strip().splitlines()) == 1, bad.stderr
