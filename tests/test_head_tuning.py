@@ -168,3 +168,14 @@ def test_head_picks_the_mode_in_strike_and_render(tmp_path):
     bad = runner.invoke(app, ["render", "kettledrum", "--mode", "1,1", "--head", "resonant", "--physics",
                               "ideal", "--out", str(tmp_path / "k.png")])
     assert bad.exit_code == 2 and "--head" in bad.output
+
+
+def test_slack_limit_only_where_it_matters_and_minimum_in_words():
+    runner = CliRunner()
+    small = ["--m-max", "1", "--n-max", "1"]
+    usual = runner.invoke(app, ["tune", "kettledrum", "--mode", "1,1", "--target", "C3", *small]).stdout
+    assert "slack limit" not in usual and "practical minimum" not in usual
+    low = runner.invoke(app, ["tune", "kettledrum", "--mode", "1,1", "--target", "10", *small]).stdout
+    # 14 N/m is 35x the slack limit (0.4 N/m): not shown; the practical minimum is, in words
+    assert "slack limit" not in low
+    assert "does not hold a pitch" in low and "common practice" in low and "target met\n" not in low

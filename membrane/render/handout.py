@@ -302,6 +302,8 @@ def _table_page(modeset, size, reference, fit):
     cells = table_cells(modeset, reference=reference)
     columns, widths = list(TABLE_COLUMNS), list(TABLE_WIDTHS)
     columns[2] = f"ratio to\n({reference[0]},{reference[1]})"
+    # a two-headed drum's labels name the head and branch: widen the mode column to fit them
+    widths[0] = max(widths[0], 0.0125 * max((len(c[0]) for c in cells), default=0))
     if all(mode.decay is None for mode in modeset.modes):  # in vacuum: no decay column
         columns, widths, cells = columns[:-1], widths[:-1], [c[:-1] for c in cells]
     rows = min(len(cells), TABLE_ROWS)
