@@ -171,6 +171,8 @@ def listen(
     if ident is not None:
         payload.update(_identification_payload(ident, physics.value))
         notes += _identification_notes(ident, physics.value)
+        if physics is Physics.full and ident.matches:
+            _fit_losses(ident, rows, payload, notes)
     tuning_result = None
     if targets:
         tuning_result = _tune(ident.drum, targets, physics.value)
@@ -196,6 +198,45 @@ def listen(
         if ident.verdict != "identified":
             print(f"warning: {ident.verdict}", file=sys.stderr)
     emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=notes)
+
+
+def _fit_losses(ident, rows, payload, notes) -> None:
+    """Loss parameters from the matched partials' decay (loss_fit.py), into the output."""
+    from ..errors import SolverError
+    from ..loss_fit import fit_losses
+
+    m_max = max(mt.m for mt in ident.matches)
+    n_max = max(mt.n for mt in ident.matches)
+    try:
+        lf = fit_losses(ident.drum, ident.matches, m_max=m_max, n_max=n_max)
+    except SolverError as exc:
+        notes.append(f"no loss fit: {' '.join(str(exc).split())}")
+        return
+    payload["loss_fit"] = {
+        "parameters": {k: {"value": v, "uncertainty": u} for k, (v, u) in lf.fitted.items()},
+        "fitted_on": [{"m": m, "n": n, "branch": b} for m, n, b in lf.used],
+        "rms_log_ratio": lf.rms_log_ratio,
+        "partials": [{k: v for k, v in r.items() if k != "head"} for r in lf.rows],
+    }
+    by = {(r["m"], r["n"], r["branch"]): r for r in lf.rows}
+    for row in rows:
+        r = by.get((row.get("m"), row.get("n"), row.get("branch")))
+        if r is not None:
+            row["predicted_decay_s"] = r["predicted_t60_s"]
+            row["dominant_loss"] = r["dominant"]
+    if lf.fitted:
+        said = ", ".join(f"{k.replace('_', ' ')} {v:.3g}" + (f" +- {u:.2g}" if u is not None else "")
+                         for k, (v, u) in lf.fitted.items())
+        notes.append(f"loss fit on {len(lf.used)} partials with T60 > 0.5 s: {said} "
+                     f"(rms {100 * lf.rms_log_ratio:.0f} % in T60); the other loss parameters "
+                     "keep the drum file's values (docs/losses.md)")
+    else:
+        notes.append("no loss fit: too few matched partials with T60 > 0.5 s")
+    dominant = {}
+    for r in lf.rows:
+        dominant.setdefault(r["dominant"], []).append(f"({r['m']},{r['n']})")
+    notes.append("what damps each matched partial most: " +
+                 "; ".join(f"{k}: {' '.join(v)}" for k, v in dominant.items()))
 
 
 def _remarks(p) -> str:
