@@ -104,7 +104,6 @@ def test_existing_pdf_is_kept_without_force(tmp_path):
 @pytest.fixture(scope="module")
 def full(tmp_path_factory):
     # m up to 6: the (5,1) and (6,1) modes radiate so little that their T60 runs past 100 s
-    # (radiation only: with all losses they ring a few seconds)
     out = tmp_path_factory.mktemp("handout") / "full.pdf"
     # radiation-only decay: with all losses no mode rings past 100 s, and this checks the "> 100" cells
     result = runner.invoke(app, ["handout", "kettledrum", "--m-max", "6", "--n-max", "1", "--count", "6",
