@@ -39,11 +39,13 @@ from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 # A suggestion above this fraction of the film's yield stress gets a caution: a
 # safety factor of 2 on yield, as for static loads on ductile materials.
 SAFE_STRESS_FRACTION = 0.5  # common practice, no source
-# A head stretched by less than this strain (T / (E h), one part in 5000) wrinkles and
-# does not hold a pitch: the practical minimum tension of a head.
-MIN_HOLDING_STRAIN = 2e-4  # common practice, no source
-MIN_RULE = ("rule of thumb (common practice, no source): a head stretched by less than about "
-            "0.02 % (one part in 5000) wrinkles and does not hold a pitch")
+# A head stretched by less than this strain (T / (E h), one part in 5000) is taken to wrinkle
+# and not hold a pitch. This threshold is our own choice (no published or trade figure behind
+# it): it only flags suggestions far below any tension a playable head is set to (a 26-inch
+# polyester kettledrum head is set near 0.5 % strain).
+MIN_HOLDING_STRAIN = 2e-4  # our own threshold, no source
+MIN_RULE = ("a threshold of our own, not a published figure: a head stretched by less than about "
+            "0.02 % (one part in 5000) is taken to wrinkle and not hold a pitch")
 # Targets count as met together when every residual is within this many cents.
 TOGETHER_CENTS = 1.0
 # The root is polished until the mode is within this many cents of its target.
