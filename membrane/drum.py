@@ -16,6 +16,7 @@ from pathlib import Path
 
 from . import materials
 from .errors import InputError
+from .losses import Losses, parse_losses
 from .units import parse_pitch, to_si
 
 EDGES = ("clamped", "hinged")
@@ -186,6 +187,8 @@ class Drum:
         The far head of a shell.
     lugs : Lugs or None
         Tap pitches at the lugs, if measured.
+    losses : Losses
+        Loss parameters besides radiation (the drum file's ``[losses]``; defaults if absent).
     name, description : str
         Words for people.
     """
@@ -195,6 +198,7 @@ class Drum:
     air: Air = field(default_factory=Air)
     resonant_head: Head | None = None
     lugs: Lugs | None = None
+    losses: Losses = field(default_factory=Losses)
     name: str = "drum"
     description: str = ""
 
@@ -210,7 +214,7 @@ _HEAD_KEYS = {"diameter", "radius", "film", "thickness", "plies", "density", "ar
 _BODY_KEYS = {"kind", "volume", "depth"}
 _AIR_KEYS = {"temperature", "pressure", "density", "sound_speed"}
 _LUG_KEYS = {"pitches", "cents_per_turn"}
-_TOP_KEYS = {"name", "description", "head", "body", "resonant_head", "air", "lugs"}
+_TOP_KEYS = {"name", "description", "head", "body", "resonant_head", "air", "lugs", "losses"}
 
 
 def _ranged(table: dict, key: str, kind: str, where: str, lo: float, hi: float, *,
@@ -354,7 +358,8 @@ def parse_drum(table: dict) -> Drum:
     for key in ("name", "description"):
         if key in table and not isinstance(table[key], str):
             raise InputError(key, table[key], "must be text")
-    return Drum(head=head, body=body, air=air, resonant_head=resonant, lugs=lugs,
+    losses = parse_losses(table["losses"]) if "losses" in table else Losses()
+    return Drum(head=head, body=body, air=air, resonant_head=resonant, lugs=lugs, losses=losses,
                 name=table.get("name", "drum"), description=table.get("description", ""))
 
 
@@ -410,21 +415,26 @@ def load_drum(source: str | Path, **overrides) -> Drum:
 
 def override_table(table: dict | None, *, diameter=None, radius=None, tension=None,
                    areal_density=None, film=None, thickness=None, body=None, volume=None,
-                   depth=None) -> dict:
+                   depth=None, keys: dict | None = None) -> dict:
     """A copy of a drum-file table with command-line values laid over it.
 
     A new diameter replaces the file's radius and vice versa; a new film or thickness
     replaces the file's areal density; a new body kind drops the old kind's size.
     With ``body="shell"`` and no resonant head, the struck head is used for both.
+    ``keys`` maps (table, key), e.g. ``("resonant_head", "tension")``, to a value laid
+    over that key after the rest (see :func:`_lay_keys` for what each one replaces).
     """
     table = copy.deepcopy(table) if table else {}
     head = table.setdefault("head", {})
-    if diameter is not None:
-        head.pop("radius", None)
-        head["diameter"] = diameter
-    if radius is not None:
-        head.pop("diameter", None)
-        head["radius"] = radius
+    # a shell's two heads share one diameter, so a new size applies to both
+    sized = [head] + ([table["resonant_head"]] if isinstance(table.get("resonant_head"), dict) else [])
+    for part in sized:
+        if diameter is not None:
+            part.pop("radius", None)
+            part["diameter"] = diameter
+        if radius is not None:
+            part.pop("diameter", None)
+            part["radius"] = radius
     if tension is not None:
         head["tension"] = tension
     if film is not None or thickness is not None:
@@ -448,4 +458,27 @@ def override_table(table: dict | None, *, diameter=None, radius=None, tension=No
         bod["volume"] = volume
     if depth is not None:
         bod["depth"] = depth
+    if keys:
+        _lay_keys(table, keys)
     return table
+
+
+# What a key laid over a file replaces there, so the file and the flags never disagree:
+# a film, thickness or density replaces an areal density (and a film a custom density);
+# air given by temperature and pressure replaces air given by density and sound speed.
+_HEAD_REPLACES = {"film": ("areal_density", "density"), "thickness": ("areal_density",),
+                  "density": ("areal_density",)}
+_AIR_REPLACES = {"temperature": ("density", "sound_speed"), "pressure": ("density", "sound_speed"),
+                 "density": ("temperature", "pressure"), "sound_speed": ("temperature", "pressure")}
+
+
+def _lay_keys(table: dict, keys: dict) -> None:
+    """Lay (table, key) -> value pairs over a drum-file table, in place."""
+    for (where, key), value in keys.items():
+        if where == "resonant_head" and "resonant_head" not in table:
+            # a resonant head described by flags alone starts as a copy of the struck head
+            table["resonant_head"] = copy.deepcopy(table.get("head", {}))
+        part = table.setdefault(where, {})
+        for old in (_AIR_REPLACES if where == "air" else _HEAD_REPLACES).get(key, ()):
+            part.pop(old, None)
+        part[key] = value

@@ -21,6 +21,19 @@ PHYSICS = ("ideal", "stiff", "full")
 # number and keeps the best; two fits within TIE_CENTS rms keep the higher f0.
 MAX_LOWEST_HARMONIC = 4
 TIE_CENTS = 1.0
+# Any two frequencies sit on some harmonic series; three are the fewest a fit can test.
+MIN_FIT_MODES = 3
+
+
+def principal_mode(drum) -> tuple[int, int]:
+    """The mode a drum's partials are read against: its principal.
+
+    A kettle's air pushes the (m,1) family towards a harmonic series whose
+    principal tone is (1,1) (the trade's and Rossing's reading of a kettledrum);
+    an open head or a shell is read against its lowest mode (0,1).
+    """
+    kind = getattr(getattr(drum, "body", None), "kind", "none")
+    return (1, 1) if kind == "kettle" else (0, 1)
 
 
 @dataclass(frozen=True)
@@ -34,7 +47,8 @@ class Mode:
     frequency : float
         Hz.
     decay : float or None
-        T60 in s from radiation damping; None in vacuum.
+        T60 in s from Im omega (radiation, plus the drum's losses with ``losses="all"``);
+        None in vacuum.
     multiplicity : int
         1 for m = 0; 2 for the degenerate (cos, sin) pair when m >= 1.
     branch : str or None
@@ -181,12 +195,15 @@ class ModeSet:
         The drum solved.
     notes : tuple of str
         What the model includes and leaves out, for the output.
+    losses : str
+        ``"all"`` or ``"radiation"``: which losses made the decay times (full physics).
     """
 
     modes: tuple
     physics: str
     drum: object
     notes: tuple = ()
+    losses: str = "all"
 
     def __iter__(self):
         return iter(self.modes)
@@ -210,24 +227,38 @@ class ModeSet:
         raise InputError("mode", f"{m},{n}" + (f" {branch}" if branch else ""),
                          f"this drum's solved modes have {have}")
 
-    def ratios(self, reference: tuple[int, int] = (0, 1)) -> np.ndarray:
-        """Frequency of every mode divided by the reference mode's."""
-        ref = self.find(*reference).frequency
+    @property
+    def principal(self) -> tuple[int, int]:
+        """The default reference mode: (1,1) for a drum with a kettle, else (0,1)."""
+        return principal_mode(self.drum)
+
+    def ratios(self, reference: tuple[int, int] | None = None) -> np.ndarray:
+        """Frequency of every mode divided by the reference mode's (default :attr:`principal`)."""
+        ref = self.find(*(reference or self.principal)).frequency
         return np.array([mode.frequency / ref for mode in self.modes])
 
-    def harmonic_fit(self, fit_modes=None) -> HarmonicFit:
-        """Best harmonic series through ``fit_modes`` ((m, n) pairs).
+    def harmonic_fit(self, fit_modes=None) -> HarmonicFit | None:
+        """Best harmonic series through ``fit_modes`` ((m, n) pairs), or None.
 
         By default the modes with one nodal circle and 1 to 5 nodal diameters, the
         family a kettledrum's air loading brings near a harmonic series; where fewer
-        than two of them were solved, all modes are used.
+        than three of them were solved, all of the struck head's modes are used.
+        With fewer than three modes there is no fit (None): two frequencies always
+        sit on some harmonic series. Modes named in ``fit_modes`` must exist and be
+        at least three.
         """
         if fit_modes is None:  # the default family, as far as it was solved
             chosen = [self.find(m, 1) for m in range(1, 6) if self._has(m, 1)]
+            if len(chosen) < MIN_FIT_MODES:
+                chosen = [mode for mode in self.modes if mode.head != "resonant"]
         else:  # modes asked for by name must exist
-            chosen = [self.find(m, n) for m, n in fit_modes]
-        if len(chosen) < 2:
-            chosen = [mode for mode in self.modes if mode.head != "resonant"]
+            named = list(dict.fromkeys(tuple(mn) for mn in fit_modes))
+            if len(named) < MIN_FIT_MODES:
+                raise InputError("fit", ", ".join(f"{m},{n}" for m, n in named),
+                                 f"name at least {MIN_FIT_MODES} different modes for a harmonic fit")
+            chosen = [self.find(m, n) for m, n in named]
+        if len(chosen) < MIN_FIT_MODES:
+            return None
         f0, h, rms = harmonic_fit([mode.frequency for mode in chosen])
         return HarmonicFit(fundamental=f0,
                            harmonics={(mo.m, mo.n): int(k) for mo, k in zip(chosen, h)},
@@ -236,21 +267,31 @@ class ModeSet:
     def _has(self, m: int, n: int) -> bool:
         return any(mode.m == m and mode.n == n for mode in self.modes)
 
-    def table(self, reference: tuple[int, int] = (0, 1), fit_modes=None) -> list[dict]:
+    def is_fitted(self, mode: Mode, fit: HarmonicFit | None) -> bool:
+        """Whether ``mode`` is one the harmonic fit used (the struck head's member of its (m, n))."""
+        return fit is not None and (mode.m, mode.n) in fit.harmonics and \
+            self.find(mode.m, mode.n) is mode
+
+    def table(self, reference: tuple[int, int] | None = None, fit_modes=None) -> list[dict]:
         """One row per mode: frequency, decay, ratio, harmonic deviation, nearest note.
+
+        ``reference`` defaults to :attr:`principal`. Only the modes the harmonic fit
+        used get a harmonic number and a deviation from it (``fitted`` True); the
+        others have None there, as every row has when there is no fit.
 
         Returns
         -------
         list of dict
-            Keys ``m, n, frequency_hz, decay_s, ratio, multiplicity, harmonic,
-            cents_from_harmonic, note, cents_from_note`` and, where they apply,
-            ``branch`` and ``head``.
+            Keys ``m, n, frequency_hz, decay_s, ratio, multiplicity, fitted,
+            harmonic, cents_from_harmonic, note, cents_from_note`` and, where they
+            apply, ``branch`` and ``head``.
         """
         ratios = self.ratios(reference)
         fit = self.harmonic_fit(fit_modes)
         rows = []
         for mode, ratio in zip(self.modes, ratios):
-            harmonic = max(1, round(mode.frequency / fit.fundamental))
+            fitted = self.is_fitted(mode, fit)
+            harmonic = fit.harmonics[(mode.m, mode.n)] if fitted else None
             note, off = note_name(mode.frequency)
             row = {
                 "m": mode.m, "n": mode.n,
@@ -258,8 +299,9 @@ class ModeSet:
                 "decay_s": mode.decay,
                 "ratio": float(ratio),
                 "multiplicity": mode.multiplicity,
+                "fitted": fitted,
                 "harmonic": harmonic,
-                "cents_from_harmonic": cents(mode.frequency, harmonic * fit.fundamental),
+                "cents_from_harmonic": cents(mode.frequency, harmonic * fit.fundamental) if fitted else None,
                 "note": note,
                 "cents_from_note": off,
             }

@@ -6,6 +6,7 @@ import numpy as np
 
 from .drum import Drum, Head
 from .errors import InputError
+from .losses import Losses, check_choice
 from .modes import PHYSICS, Mode, ModeSet, sort_modes
 from .physics.vacuum import RadialBasis, ideal_basis, stiff_basis
 
@@ -60,7 +61,8 @@ def vacuum_modes(drum: Drum, *, m_max: int, n_max: int, stiff: bool) -> list[Mod
     return modes
 
 
-def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3) -> ModeSet:
+def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3,
+          losses: str = "all") -> ModeSet:
     """Solve a drum's modes.
 
     Parameters
@@ -76,6 +78,10 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3) 
         Highest number of nodal diameters, 0..50.
     n_max : int
         Highest number of nodal circles (counting the rim), 1..50.
+    losses : {"all", "radiation"}
+        With ``full`` physics: ``all`` damps the head by radiation and by the drum's loss
+        parameters (``drum.losses``: film, air boundary layers, rim); ``radiation`` by
+        sound radiation only. Vacuum physics has no decay either way.
 
     Returns
     -------
@@ -85,6 +91,7 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3) 
     if physics not in PHYSICS:
         raise InputError("physics", physics, f"must be one of: {', '.join(PHYSICS)}")
     _check_orders(m_max, n_max)
+    check_choice(losses)
     notes = []
     if physics in ("ideal", "stiff"):
         stiff = physics == "stiff"
@@ -99,6 +106,27 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3) 
                              "(the coupled solve grows fast; use --physics stiff for bigger tables)")
         from .physics.coupled import full_modes, model_notes
 
-        modes = full_modes(drum, m_max=m_max, n_max=n_max)
-        notes.extend(model_notes(drum))
-    return ModeSet(modes=sort_modes(modes), physics=physics, drum=drum, notes=tuple(notes))
+        params = drum.losses if losses == "all" else None
+        modes = full_modes(drum, m_max=m_max, n_max=n_max, losses=params)
+        notes.extend(model_notes(drum, params))
+        films = {h.film for h in (drum.head, drum.resonant_head) if h is not None}
+        if params is not None and params == Losses() and films - {"polyester"}:
+            notes.append("the default loss parameters are those of polyester heads; for other "
+                         "films give the drum file a losses table (docs/losses.md)")
+    notes.extend(material_notes(drum))
+    return ModeSet(modes=sort_modes(modes), physics=physics, drum=drum, notes=tuple(notes),
+                   losses=losses)
+
+
+def material_notes(drum: Drum) -> list[str]:
+    """What the head materials' data leave out (a natural skin changes with humidity)."""
+    from . import materials
+
+    heads = [("struck head", drum.head), ("resonant head", drum.resonant_head)]
+    notes, seen = [], set()
+    for where, head in heads:
+        note = "" if head is None or head.film is None else materials.film(head.film).humidity_note
+        if note and note not in seen:
+            seen.add(note)
+            notes.append(note if drum.resonant_head is None else f"{where}: {note}")
+    return notes

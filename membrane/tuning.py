@@ -79,24 +79,41 @@ def stress(head: Head, tension: float) -> float | None:
 
 
 def safety_warnings(head: Head, tension: float) -> list[str]:
-    """Cautions for a suggested tension (N/m) on this head: stress and slackness."""
+    """Cautions for a suggested tension (N/m) on this head: stress and slackness.
+
+    The stress is measured against the film's yield stress; for a film with no known
+    yield but a known breaking stress (taken as elastic to break) against that; for a
+    material with neither (natural skins) no check is made and the output says why.
+    """
     warnings = []
     s = stress(head, tension)
-    if s is None or head.yield_stress is None:
-        warnings.append("no stress check: the drum gives no film thickness or yield stress; "
-                        "follow the head maker's rating")
-    elif s > head.yield_stress:
-        warnings.append(f"{tension:.0f} N/m puts the film at {s / 1e6:.1f} MPa, above its yield stress "
-                        f"({head.yield_stress / 1e6:.0f} MPa): it will stretch permanently and may tear")
-    elif s > SAFE_STRESS_FRACTION * head.yield_stress:
+    limit, what = (head.yield_stress, "yield stress") if head.yield_stress is not None else \
+        (head.tensile_strength, "breaking stress (no yield stress is known for this film)")
+    if s is None or limit is None:
+        note = _strength_note(head)
+        warnings.append("no stress check: " + (note if note else "the drum gives no film thickness or "
+                                               "yield stress; follow the head maker's rating"))
+    elif s > limit:
+        warnings.append(f"{tension:.0f} N/m puts the film at {s / 1e6:.1f} MPa, above its {what} "
+                        f"({limit / 1e6:.0f} MPa): it will stretch permanently and may tear")
+    elif s > SAFE_STRESS_FRACTION * limit:
         warnings.append(f"{tension:.0f} N/m puts the film at {s / 1e6:.1f} MPa, "
-                        f"{100 * s / head.yield_stress:.0f} % of its yield stress, above the "
+                        f"{100 * s / limit:.0f} % of its {what}, above the "
                         f"{100 * SAFE_STRESS_FRACTION:.0f} % taken here as a safe limit")
     slack = slack_tension(head)
     if tension < slack:
         warnings.append(f"{tension:.3g} N/m is below the slack limit {slack:.3g} N/m, where bending "
                         "stiffness sets the (1,1) frequency as much as tension does")
     return warnings
+
+
+def _strength_note(head: Head) -> str:
+    """The catalogue's plain statement on a film's missing strength data, if it has one."""
+    if head.film is None or head.thickness is None:
+        return ""
+    from . import materials
+
+    return materials.film(head.film).strength_note
 
 
 def _tension_ceiling(head: Head) -> float:

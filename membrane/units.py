@@ -27,6 +27,7 @@ DIMENSIONS = {
     "pressure": ("[mass] / [length] / [time] ** 2", "a pressure or stress such as '101.325 kPa' or '4.5 GPa'"),
     "time": ("[time]", "a time such as '2 ms' or '0.5 s'"),
     "frequency": ("1 / [time]", "a frequency such as '150 Hz'"),
+    "mobility": ("[time] / [mass]", "a line mobility such as '1e-4 m/(N*s)'"),
 }
 
 _NUMBER_UNIT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?|[-+]?nan|[-+]?inf)\s*(.*?)\s*$",
@@ -99,6 +100,7 @@ def _base_unit(kind: str) -> str:
     return {
         "length": "m", "tension": "N/m", "areal_density": "kg/m^2", "volume": "m^3",
         "density": "kg/m^3", "speed": "m/s", "pressure": "Pa", "time": "s", "frequency": "Hz",
+        "mobility": "m/(N*s)",
     }[kind]
 
 

@@ -1,6 +1,19 @@
-"""Shared test setup: the on-disk table cache goes to a temporary folder, never the home cache."""
+"""Shared test setup: hypothesis profiles; the on-disk table cache goes to a temporary folder."""
+
+import os
 
 import pytest
+from hypothesis import settings
+
+# ------------------------------------------------------------------ hypothesis profiles
+# "ci": the same examples on every run (derandomize: the seed is a hash of the test), no example
+# database, so a clean clone goes red or green the same way every time. .ci/run sets CI=true.
+# "explore" (local default): fresh random examples each run, so new inputs get tried; a failure
+# prints its reproduction blob (@reproduce_failure) as well as the falsifying example.
+# Either can be chosen with --hypothesis-profile; --hypothesis-seed=N replays one random run.
+settings.register_profile("ci", derandomize=True, database=None, print_blob=True)
+settings.register_profile("explore", derandomize=False, print_blob=True)
+settings.load_profile("ci" if os.environ.get("CI") else "explore")
 
 
 @pytest.fixture(scope="session", autouse=True)

@@ -7,9 +7,13 @@ from scipy import integrate, special
 
 from membrane.bessel import jn_zeros, jnp_zeros, lommel
 
-# Abramowitz & Stegun, Handbook of Mathematical Functions (1964), Table 9.5, as listed in
-# SOURCES.md (11 significant digits; A&S prints 5 decimals, 10 for m = 0).
-AS_TABLE_9_5 = {
+# j_{m,n} to 11 significant digits, COMPUTED (SOURCES.md). Abramowitz & Stegun, Handbook of
+# Mathematical Functions (1964), Table 9.5, prints these zeros to 5 decimals, 10 for m = 0 (READ:
+# its list of tables, p. 356, "5D (10D for n = 0)"). The printed page was not at hand, so the
+# "printed digits" below are these values correctly rounded to A&S's decimals (A&S states its
+# tables correct to the last place; MathWorld's "Bessel Function Zeros" 4-decimal table, READ,
+# agrees). The printed digits are checked as A&S; every further digit against mpmath.
+ZEROS_11 = {
     0: [2.4048255577, 5.5200781103, 8.6537279129, 11.791534439, 14.930917708],
     1: [3.8317059702, 7.0155866698, 10.173468135, 13.323691936, 16.470630051],
     2: [5.1356223018, 8.4172441404, 11.619841172, 14.795951782, 17.959819495],
@@ -20,39 +24,67 @@ AS_TABLE_9_5 = {
     7: [11.086370019, 14.821268727, 18.287582832, 21.641541020, 24.934927888],
     8: [12.225092264, 16.037774191, 19.554536431, 22.945173132, 26.266814641],
 }
+# m = 0 to A&S's 10 decimals (the last two carry one more digit than the 11 significant above)
+AS_J0_10D = [2.4048255577, 5.5200781103, 8.6537279129, 11.7915344390, 14.9309177085]
 
 
-@pytest.mark.parametrize("m", sorted(AS_TABLE_9_5))
+def _printed(m):
+    """The zeros of J_m as A&S Table 9.5 prints them: 10 decimals for m = 0, else 5."""
+    return (AS_J0_10D, 10) if m == 0 else ([round(z, 5) for z in ZEROS_11[m]], 5)
+
+
+@pytest.mark.parametrize("m", sorted(ZEROS_11))
 def test_zeros_match_abramowitz_stegun_table_9_5(m):
-    # Abramowitz & Stegun Table 9.5: agreement to the 11 digits listed
-    np.testing.assert_allclose(jn_zeros(m, 5), AS_TABLE_9_5[m], rtol=0, atol=6e-9)
+    # Abramowitz & Stegun Table 9.5: our zeros, rounded as A&S rounds, are the printed digits
+    printed, decimals = _printed(m)
+    assert [round(float(z), decimals) for z in jn_zeros(m, 5)] == pytest.approx(printed, abs=1e-12)
+    # mpmath.besseljzero (30 digits): all 11 significant digits of the table and of ours
+    mpmath.mp.dps = 30
+    ref = [float(mpmath.besseljzero(m, n)) for n in range(1, 6)]
+    np.testing.assert_allclose(ZEROS_11[m], ref, rtol=6e-11)
+    np.testing.assert_allclose(jn_zeros(m, 5), ref, rtol=2e-15)
 
 
 def test_zeros_match_mpmath_up_to_order_and_index_30():
-    # mpmath.besseljzero, 30 digits, as an independent reference
-    mpmath.mp.dps = 30
+    # mpmath at 18 digits as the independent reference, for all 31 x 30 zeros: the Newton step
+    # J_m(x)/J_m'(x) = -J_m(x)/J_{m+1}(x) at each of ours is below 1e-15 relative (each is a root
+    # to double precision), and the 30th equals mpmath.besseljzero(m, 30), so with 30 distinct
+    # increasing roots none is skipped: they are the first 30
+    mpmath.mp.dps = 18
     worst = 0.0
-    for m in range(0, 31, 3):
-        ours = jn_zeros(m, 30)
-        for n in range(1, 31, 29 // 4):
-            ref = float(mpmath.besseljzero(m, n))
-            worst = max(worst, abs(ours[n - 1] / ref - 1))
-    assert worst < 1e-12, worst
-
-
-def test_all_thirty_by_thirty_zeros_are_roots_and_ordered():
-    # Every zero for m, n <= 30 is a root of J_m (scipy.special.jv) and they interlace
     for m in range(31):
-        z = jn_zeros(m, 30)
-        assert np.all(np.diff(z) > 2.5)  # zeros of J_m are spaced by about pi
-        assert np.max(np.abs(special.jv(m, z))) < 1e-13
+        ours = jn_zeros(m, 30)
+        assert np.all(np.diff(ours) > 0)
+        for x in map(mpmath.mpf, ours):
+            worst = max(worst, abs(float(mpmath.besselj(m, x) / mpmath.besselj(m + 1, x) / x)))
+        assert ours[29] == pytest.approx(float(mpmath.besseljzero(m, 30)), rel=1e-14)
+    assert worst < 2e-15, worst
+
+
+def test_all_thirty_by_thirty_zeros_are_roots_and_interlace():
+    # Every zero for m, n <= 30 is a root of J_m (scipy.special.jv); zeros of consecutive orders
+    # interlace, j_{m,n} < j_{m+1,n} < j_{m,n+1} (A&S 9.5.2), and the zeros of one order are
+    # spaced by more than pi for m >= 1 (A&S 9.5.2: j_{m,n+1} - j_{m,n} decreases to pi)
+    z = np.array([jn_zeros(m, 31) for m in range(32)])
+    for m in range(31):
+        assert np.max(np.abs(special.jv(m, z[m, :30]))) < 1e-13
+        assert np.all(z[m, :30] < z[m + 1, :30]) and np.all(z[m + 1, :30] < z[m, 1:31])
+        if m >= 1:
+            assert np.all(np.diff(z[m, :30]) > np.pi)
 
 
 def test_derivative_zeros_and_the_x_equals_zero_convention():
-    # SOURCES.md (A&S Table 9.5 / DLMF 10.21): zeros of J_m'; x = 0 is not counted here
-    np.testing.assert_allclose(jnp_zeros(1, 3), [1.8411837813, 5.3314427735, 8.5363163663], atol=6e-10)
-    np.testing.assert_allclose(jnp_zeros(2, 3), [3.0542369282, 6.7061331942, 9.9694678231], atol=6e-10)
-    np.testing.assert_allclose(jnp_zeros(0, 2), [3.8317059702, 7.0155866698], atol=6e-10)
+    # Zeros of J_m' as A&S Table 9.5 prints them (5 decimals; 10 for m = 0, whose x = 0 zero A&S
+    # and DLMF 10.21 count and scipy's jnp_zeros does not), then to 11 digits against mpmath
+    printed = {1: [1.84118, 5.33144, 8.53632], 2: [3.05424, 6.70613, 9.96947],
+               0: [3.8317059702, 7.0155866698]}
+    mpmath.mp.dps = 30
+    for m, values in printed.items():
+        ours = jnp_zeros(m, len(values))
+        decimals = 10 if m == 0 else 5
+        assert [round(float(x), decimals) for x in ours] == pytest.approx(values, abs=1e-12)
+        ref = [float(mpmath.besseljzero(m, n + (m == 0), derivative=1)) for n in range(1, len(values) + 1)]
+        np.testing.assert_allclose(ours, ref, rtol=1e-14)
 
 
 @pytest.mark.parametrize("m", [0, 1, 3])

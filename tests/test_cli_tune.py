@@ -1,6 +1,5 @@
 """`membrane tune` as a user runs it: both target forms, lugs, formats, and every refusal."""
 
-import importlib.util
 import json
 import math
 import subprocess
@@ -16,10 +15,10 @@ from membrane.units import cents
 from conftest import installed_command
 
 runner = CliRunner()
-# A&S Table 9.5 (SOURCES.md)
+# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero; SOURCES.md); A&S Table 9.5
+# prints them to 5 decimals (10 for m = 0): tests/test_bessel.py checks both
 J11, J21 = 3.8317059702, 5.1356223018
 FAST = ["--physics", "stiff", "--m-max", "2", "--n-max", "1"]
-FULL = importlib.util.find_spec("membrane.physics.coupled") is not None
 
 
 def run(*args):
@@ -153,10 +152,21 @@ def test_real_subprocess_of_the_installed_script():
     assert bad.returncode == 2 and bad.stderr.count("\n") == 1 and "Traceback" not in bad.stderr
 
 
-@pytest.mark.skipif(not FULL, reason="membrane.physics.coupled.full_modes has not landed")
 def test_full_physics_is_the_default():
     data = as_json("kettledrum", "--mode", "1,1", "--target", "A2", "--m-max", "1", "--n-max", "3")
     assert data["physics"] == "full" and abs(data["error_cents"]) < 0.1
     # air loading and the bowl: the answer differs from sqrt(T) scaling
     assert abs(data["tension_n_per_m"] / data["naive_tension_n_per_m"] - 1) > 0.005
     assert all(row["decay_s"] is not None for row in data["modes"])
+
+
+def test_the_summary_table_has_no_empty_header_row():
+    out = run("kettledrum", "--mode", "1,1", "--target", "C3", "--physics", "ideal")
+    assert out.exit_code == 0, out.output
+    first_table = out.stdout.split("\n\n")[0]
+    assert "current tension" in first_table
+    # a header row of empty cells would be a line of only box-drawing characters and spaces
+    # between the top rule and the first row
+    lines = [line for line in first_table.splitlines() if line.strip()]
+    body = lines[lines.index(next(line for line in lines if "current tension" in line)) - 1]
+    assert set(body.strip()) <= set("┌┬┐─"), body

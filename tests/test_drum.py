@@ -83,3 +83,15 @@ def test_missing_file_and_bad_toml(tmp_path):
     bad.write_text("[head\ndiameter = 3")
     with pytest.raises(InputError, match="not valid TOML"):
         load_drum(bad)
+
+
+@pytest.mark.parametrize("name", ["tom", "bass_drum", "frame_drum"])
+def test_new_examples_load_and_say_they_are_invented(name):
+    from membrane.drum import builtin_text
+
+    drum = load_drum(name)
+    assert "invented" in drum.name and "INVENTED DEMO DATA" in builtin_text(name)
+    if name == "frame_drum":
+        assert drum.head.film == "goatskin" and drum.body.kind == "none"
+    else:
+        assert drum.body.kind == "shell" and drum.resonant_head is not None

@@ -1,7 +1,7 @@
 """Naming partials with modes and fitting the tension, against partials we know the origin of.
 
-Two kinds of reference: partial sets built from the Bessel zeros of Abramowitz & Stegun
-(Table 9.5, the values in SOURCES.md) with the ideal-membrane formula
+Two kinds of reference: partial sets built from the Bessel zeros (11 digits computed with
+mpmath, SOURCES.md; Abramowitz & Stegun Table 9.5 prints them to 5 decimals) with the formula
 f_mn = j_mn / (2 pi a) sqrt(T / sigma) (DESIGN.md 3.1), so the answer does not come from
 the solver under test; and a recording synthesised from the drum model at a known
 tension through the strike module, analysed like any recording.
@@ -21,7 +21,8 @@ from membrane.errors import InputError
 from membrane.identify import identify
 from membrane.recording import Partial, analyse, read_wav
 
-# Abramowitz & Stegun Table 9.5 (SOURCES.md): j_{m,n}
+# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero; SOURCES.md); A&S Table 9.5
+# prints them to 5 decimals (10 for m = 0): tests/test_bessel.py checks both
 J = {(0, 1): 2.4048255577, (0, 2): 5.5200781103, (0, 3): 8.6537279129,
      (1, 1): 3.8317059702, (1, 2): 7.0155866698, (1, 3): 10.173468135,
      (2, 1): 5.1356223018, (2, 2): 8.4172441404, (3, 1): 6.3801618959, (3, 2): 9.7610231300,
@@ -31,7 +32,7 @@ TRUE_TENSION = 4400.0  # N/m; the built-in kettledrum's file says 4000
 
 
 def ideal_partials(drum, tension, modes, *, split=None, extra=()):
-    """Partials at the ideal-membrane frequencies (A&S zeros), strongest first in the list."""
+    """Partials at the ideal-membrane frequencies (the zeros J above), strongest first."""
     head = drum.head
     out = []
     for i, mn in enumerate(modes):
@@ -59,7 +60,7 @@ def test_ideal_partials_give_the_tension_and_every_label(kettle):
     modes = [(1, 1), (2, 1), (0, 1), (3, 1), (4, 1), (1, 2), (0, 2), (2, 2), (5, 1), (3, 2), (6, 1)]
     parts = ideal_partials(kettle, TRUE_TENSION, modes)
     result = identify(kettle, parts, physics="ideal")
-    # A&S zeros to 10-11 digits: the fit must land on the tension to about that
+    # zeros to 11 significant digits (mpmath): the fit must land on the tension to about that
     assert result.tension == pytest.approx(TRUE_TENSION, rel=1e-8)
     assert result.nominal_tension == 4000.0
     got = labelled(result)

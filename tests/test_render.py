@@ -12,7 +12,8 @@ from membrane import load_drum, solve
 from membrane.cli import app
 from membrane.render import stills
 
-# Abramowitz & Stegun, Handbook of Mathematical Functions (1964), Table 9.5 (SOURCES.md): j_{m,k}
+# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero; SOURCES.md); A&S Table 9.5
+# prints them to 5 decimals (10 for m = 0): tests/test_bessel.py checks both
 BESSEL_ZEROS = {
     0: (2.4048255577, 5.5200781103, 8.6537279129),
     1: (3.8317059702, 7.0155866698, 10.173468135),
@@ -74,6 +75,78 @@ def test_grid_nodal_circles_and_diameters_are_the_handbook_ones(ideal):
     assert freqs == sorted(freqs)
 
 
+def drawn_nodal_lines(ax):
+    """The nodal lines drawn on one panel: (diameters, circles), each a list of (x, y) arrays."""
+    lines = {"nodal diameter": [], "nodal circle": []}
+    for line in ax.get_lines():
+        if line.get_gid() in lines:
+            lines[line.get_gid()].append((np.asarray(line.get_xdata()), np.asarray(line.get_ydata())))
+    return lines["nodal diameter"], lines["nodal circle"]
+
+
+def test_grid_draws_every_nodal_diameter_and_whole_nodal_circles():
+    from scipy.special import jn_zeros  # reference library, more digits than A & S Table 9.5
+
+    ideal = solve(load_drum("kettledrum"), "ideal", m_max=6, n_max=3)
+    fig = stills.mode_grid(ideal, count=len(ideal.modes), columns=6)
+    seen = set()
+    for ax in fig.axes:
+        title = re.match(r"\((\d+),(\d+)\)", ax.get_title())
+        if not title:
+            continue
+        m, n = int(title[1]), int(title[2])
+        diameters, circles = drawn_nodal_lines(ax)
+        # m nodal diameters, at the zeros of cos(m theta), each from rim to rim through the centre
+        assert len(diameters) == m, (m, n)
+        angles = []
+        for x, y in diameters:
+            ends = np.hypot(x[[0, -1]], y[[0, -1]])
+            assert np.all(ends >= 0.99), (m, n, ends)  # across the whole head
+            assert x[0] == pytest.approx(-x[-1]) and y[0] == pytest.approx(-y[-1])  # through the centre
+            angles.append(np.degrees(np.arctan2(y[-1], x[-1])) % 180.0)
+        expected = sorted(((2 * k + 1) * 90.0 / m) % 180.0 for k in range(m))
+        assert sorted(angles) == pytest.approx(expected, abs=1.0), (m, n)
+        # n - 1 nodal circles at r/a = j_{m,k} / j_{m,n} (Abramowitz & Stegun Table 9.5), each whole
+        zeros = jn_zeros(m, n)
+        radii = []
+        for x, y in circles:
+            r = np.hypot(x, y)
+            assert np.ptp(r) < 1e-9
+            phi = np.sort(np.degrees(np.arctan2(y, x)) % 360.0)
+            gaps = np.diff(np.concatenate([phi, [phi[0] + 360.0]]))
+            assert 360.0 - gaps.max() >= 355.0, (m, n)  # the arc drawn covers at least 355 degrees
+            radii.append(r[0])
+        assert sorted(radii) == pytest.approx(list(zeros[:-1] / zeros[-1]), rel=0.01), (m, n)
+        seen.add((m, n))
+    assert seen == {(m, n) for m in range(7) for n in range(1, 4)}
+
+
+def test_a_shell_mode_drawn_alone_has_its_diameter_and_an_unclipped_title():
+    snare = solve(load_drum("snare"), "full", m_max=1, n_max=1)
+    mode = next(mo for mo in snare if (mo.m, mo.n, mo.branch) == (1, 1, "opposed"))
+    fig = stills.nodal_diagram(snare, mode)
+    diameters, circles = drawn_nodal_lines(fig.axes[0])
+    assert len(diameters) == 1 and circles == []
+    from membrane.render.labels import _canvas
+
+    renderer = _canvas(fig)
+    page = fig.bbox
+    for text in [fig._suptitle, *fig.texts]:
+        box = text.get_window_extent(renderer)
+        assert page.x0 <= box.x0 and box.x1 <= page.x1 and page.y0 <= box.y0 and box.y1 <= page.y1, text
+    assert "head" in fig._suptitle.get_text()  # which head the picture shows
+
+
+def test_the_default_reference_is_the_principal():
+    kettle = solve(load_drum("kettledrum"), "ideal", m_max=1, n_max=1)
+    snare = solve(load_drum("snare"), "ideal", m_max=1, n_max=1)
+    # a kettledrum is read against its principal (1,1) (Rossing 1982), an open or shell drum against (0,1)
+    assert kettle.principal == (1, 1) and snare.principal == (0, 1)
+    assert "to (1,1)" in stills.mode_grid(kettle)._suptitle.get_text()
+    assert "to (0,1)" in stills.mode_grid(snare)._suptitle.get_text()
+    assert "to (0,1)" in stills.mode_grid(kettle, reference=(0, 1))._suptitle.get_text()
+
+
 def test_a_stiff_mode_is_drawn_from_its_own_vector():
     # A slack head is plate-like: its (0,2) nodal circle moves well away from the ideal
     # 0.4357 (SOURCES.md), so a picture of the ideal Bessel function would fail here.
@@ -105,8 +178,39 @@ def test_ratio_chart_places_modes_at_their_frequency_ratios(ideal):
     # SOURCES.md, ideal membrane: f(2,1)/f(1,1) = 1.3403, f(3,1)/f(1,1) = 1.6651
     assert at["(2,1)"][0] / at["(1,1)"][0] == pytest.approx(1.3403, abs=1e-4)
     assert at["(3,1)"][0] / at["(1,1)"][0] == pytest.approx(1.6651, abs=1e-4)
+    low, high = panels[0].get_ylim()
     for h, c in at.values():  # y is the distance in cents from the nearest harmonic
-        assert c == pytest.approx(1200 * np.log2(h / max(1, round(h))), abs=1e-9)
+        cents = 1200 * np.log2(h / max(1, round(h)))
+        if low < cents < high:
+            assert c == pytest.approx(cents, abs=1e-9)
+        else:  # beyond the chart: drawn on its edge, the value written beside it
+            assert low < c < high and abs(c) > 0.9 * high
+
+
+def test_ratio_chart_clips_outliers_and_labels_do_not_overlap():
+    from membrane.render.labels import _canvas, boxes_overlap
+
+    full = solve(load_drum("kettledrum"), "ideal")  # 6 x 3 modes: a crowded chart
+    fig = stills.ratio_chart([full])
+    ax = next(ax for ax in fig.axes if ax.get_lines())
+    labels = [t for t in ax.texts if (t.get_gid() or "").startswith("label")]
+    assert len(labels) >= 10
+    assert boxes_overlap(labels, _canvas(fig)) == []
+    # modes far off a harmonic (the (0,n) family) must not set the scale of the fitted (m,1) band:
+    # they sit on the chart's edge with their deviation written out
+    low, high = ax.get_ylim()
+    assert high <= 100 + 1e-9
+    texts = [t.get_text() for t in labels]
+    outside = 0
+    for line in ax.get_lines():
+        if not line.get_gid():
+            continue
+        h = line.get_xdata()[0]
+        cents = 1200 * np.log2(h / max(1, round(h)))
+        if abs(cents) > high:
+            outside += 1
+            assert any(t.endswith(f"{cents:+.0f} c") for t in texts), (line.get_gid(), cents)
+    assert outside >= 2
 
 
 def run(*args):
@@ -226,7 +330,7 @@ def test_a_shell_shows_both_heads_moving_as_the_branch_says():
     for mode in snare:
         scene = HeadScene(snare, mode, View(frames=2, width=64, height=64))
         try:
-            (top, w_top, z_top), (bottom, w_bottom, z_bottom) = scene.heads
+            (top, w_top, z_top, _), (bottom, w_bottom, z_bottom, _) = scene.heads
             assert z_top == 0 and z_bottom < 0
             # centre displacement, drawn upward-positive; outward is down for the resonant head
             up_top, up_bottom = w_top[0], w_bottom[0]
@@ -235,3 +339,18 @@ def test_a_shell_shows_both_heads_moving_as_the_branch_says():
             assert same_way_up == (mode.branch == "opposed"), mode.label
         finally:
             scene.close()
+
+
+def test_the_readme_pictures_are_made_by_the_readme_commands():
+    import importlib.util
+    from pathlib import Path
+
+    root = Path(__file__).resolve().parents[1]
+    spec = importlib.util.spec_from_file_location("make_assets", root / "assets" / "make_assets.py")
+    make = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(make)
+    readme = (root / "README.md").read_text(encoding="utf-8")
+    for name, command, extra in make.PICTURES:
+        assert command in readme, command  # the README shows exactly this command
+        assert f"(assets/{name})" in readme, name  # and the picture it makes
+        assert not {"--reference", "--physics", "--compare"} & set(extra.split())  # only size options added

@@ -23,18 +23,6 @@ from membrane.solver import solve
 from membrane.strike import (MALLETS, Listener, Strike, best_strike_radius, pulse_spectrum,
                              save_wav, strike_partials, synthesize)
 
-
-
-def _have_full() -> bool:
-    try:
-        from membrane.physics.coupled import full_modes  # noqa: F401
-    except ImportError:
-        return False
-    return True
-
-
-HAVE_FULL = _have_full()
-
 runner = CliRunner()
 KETTLE = load_drum("kettledrum")
 
@@ -220,8 +208,6 @@ def test_best_strike_radius_is_the_maximum_of_its_objective(ideal):
 
 @pytest.fixture(scope="module")
 def full():
-    if not HAVE_FULL:
-        pytest.skip("full physics (membrane.physics.coupled.full_modes) has not landed yet")
     return solve(KETTLE, "full", m_max=6, n_max=3)
 
 
@@ -436,3 +422,14 @@ def test_effective_mass_of_a_shell_mode_is_the_residue_of_the_two_head_dynamic_s
     h = 1e-5 * root
     residue = -vec @ ((z(root + h) - z(root - h)) / (2 * h)) @ vec / (2 * root)
     assert effective_mass(mode, snare, "full") == pytest.approx(residue, rel=1e-6)
+
+
+def test_levels_are_printed_to_a_sensible_precision():
+    from membrane.cli.strike import level_text
+    from membrane.presets import SILENT_DB
+
+    # common practice, no source: tenths of a dB near the top, whole dB far down, a bound below
+    assert level_text(-4.14) == "-4.1"
+    assert level_text(-83.4) == "-83"
+    assert level_text(-169.7) == "< -120"
+    assert level_text(SILENT_DB) == "silent"

@@ -63,6 +63,7 @@ app = typer.Typer(
 # (the library is imported inside each command), so --help stays fast.
 from .examples import examples  # noqa: E402
 from .listen import listen  # noqa: E402
+from .lugs import lugs  # noqa: E402
 from .modes import modes  # noqa: E402
 from .render import handout, render  # noqa: E402
 from .strike import strike  # noqa: E402
@@ -71,6 +72,7 @@ from .tune import tune  # noqa: E402
 app.command()(modes)
 app.command()(tune)
 app.command()(listen)
+app.command()(lugs)
 # the unquoted form `--best-for 1,1 2,1 3,1` needs the extra arguments
 app.command(context_settings={"allow_extra_args": True})(strike)
 app.command()(render)

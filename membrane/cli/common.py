@@ -38,6 +38,25 @@ class Physics(str, Enum):
     full = "full"
 
 
+class LossChoice(str, Enum):
+    """Which losses damp the head in ``--physics full`` (:func:`membrane.solve`)."""
+
+    all = "all"
+    radiation = "radiation"
+
+
+LossesOpt = Annotated[LossChoice, typer.Option(
+    "--losses", help="With full physics: all = radiation plus the film, air boundary-layer and rim "
+    "losses (the drum file's [losses], documented defaults); radiation = sound radiation only.")]
+
+
+def decay_words(physics: str, losses: str) -> str:
+    """For titles: which losses made the T60 column (full physics only)."""
+    if physics != "full":
+        return ""
+    return "; T60 from radiation only" if losses == "radiation" else "; T60 with all losses"
+
+
 class BodyKind(str, Enum):
     """What is under the head."""
 
@@ -63,10 +82,25 @@ def parse_mode(text: str, *, key: str = "--mode") -> tuple[int, int]:
     return m, n
 
 
+REFERENCE_HELP = ("Mode the ratios are taken to, M,N (default: the drum's principal, (1,1) for a drum "
+                  "with a kettle, else (0,1)).")
+
+
+def parse_reference(text: str | None, drum) -> tuple[int, int]:
+    """``--reference``: the mode named, or the drum's principal when none is given."""
+    if text is None:
+        from ..modes import principal_mode
+
+        return principal_mode(drum)
+    return parse_mode(text, key="--reference")
+
+
 # ------------------------------------------------------------------ the drum from file + flags
+# click adds the brackets of an optional argument itself: the metavar is the bare name.
 DrumFile = Annotated[Optional[str], typer.Argument(
-    metavar="[DRUM_FILE]",
-    help="Drum file (TOML), or a built-in example: kettledrum, snare (invented demo drums).")]
+    metavar="DRUM_FILE",
+    help="Drum file (TOML), or a built-in example: kettledrum, snare, tom, bass_drum, frame_drum "
+         "(invented demo drums; membrane examples lists them).")]
 Diameter = Annotated[Optional[str], typer.Option(help="Head diameter, e.g. '26 in' or '0.65 m'.")]
 Radius = Annotated[Optional[str], typer.Option(help="Head radius (instead of --diameter).")]
 Tension = Annotated[Optional[str], typer.Option(help="Tension per unit length, e.g. '4 kN/m', '20 lbf/in'.")]
@@ -78,10 +112,74 @@ Volume = Annotated[Optional[str], typer.Option(help="Kettle volume, e.g. '0.17 m
 Depth = Annotated[Optional[str], typer.Option(help="Shell depth, e.g. '14 in'.")]
 
 
+
+
+class Edge(str, Enum):
+    """How the rim holds a head."""
+
+    clamped = "clamped"
+    hinged = "hinged"
+
+
+def _opt(help_text: str, kind=str):
+    return Annotated[Optional[kind], typer.Option(help=help_text)]
+
+
+# Flags beyond the basic ones: the rest of the struck head, the resonant head, the air.
+# Each is one drum-file key (FILE_KEYS below), so a two-headed drum needs no file.
+MORE_FLAGS = {
+    "plies": _opt("Plies of film in the struck head (1-4) [head.plies].", int),
+    "edge": _opt("How the rim holds the struck head [head.edge].", Edge),
+    "film_density": _opt("Volume density of a custom film, with --thickness, e.g. '1390 kg/m^3' "
+                         "[head.density]."),
+    "youngs_modulus": _opt("Young's modulus of the film, e.g. '4.5 GPa' [head.youngs_modulus]."),
+    "poisson_ratio": _opt("Poisson's ratio of the film, 0 to 0.5 [head.poisson_ratio].", float),
+    "yield_stress": _opt("Yield stress of the film, for the cautions, e.g. '100 MPa' [head.yield_stress]."),
+    "tensile_strength": _opt("Breaking stress of the film, e.g. '200 MPa' [head.tensile_strength]."),
+    "resonant_film": _opt("Film of the resonant (far) head of a shell [resonant_head.film]."),
+    "resonant_thickness": _opt("Resonant head's film thickness per ply [resonant_head.thickness]."),
+    "resonant_plies": _opt("Plies in the resonant head (1-4) [resonant_head.plies].", int),
+    "resonant_tension": _opt("Resonant head's tension per unit length [resonant_head.tension]."),
+    "resonant_areal_density": _opt("Resonant head's mass per unit area [resonant_head.areal_density]."),
+    "resonant_edge": _opt("How the rim holds the resonant head [resonant_head.edge].", Edge),
+    "resonant_film_density": _opt("Volume density of the resonant head's custom film "
+                                  "[resonant_head.density]."),
+    "resonant_youngs_modulus": _opt("Young's modulus of the resonant head's film "
+                                    "[resonant_head.youngs_modulus]."),
+    "resonant_poisson_ratio": _opt("Poisson's ratio of the resonant head's film "
+                                   "[resonant_head.poisson_ratio].", float),
+    "resonant_yield_stress": _opt("Yield stress of the resonant head's film [resonant_head.yield_stress]."),
+    "resonant_tensile_strength": _opt("Breaking stress of the resonant head's film "
+                                      "[resonant_head.tensile_strength]."),
+    "air_temperature": _opt("Air temperature, e.g. '20 degC' (dry air, ideal gas) [air.temperature]."),
+    "air_pressure": _opt("Static air pressure, e.g. '101.325 kPa' [air.pressure]."),
+    "air_density": _opt("Air density, with --air-sound-speed, e.g. '1.204 kg/m^3' [air.density]."),
+    "air_sound_speed": _opt("Speed of sound, with --air-density, e.g. '343.2 m/s' [air.sound_speed]."),
+}
+
+# The drum-file key each flag stands for: (table, key). The basic flags are in
+# override_table's own arguments; the others are laid over the file key by key.
+FILE_KEYS = {
+    "diameter": ("head", "diameter"), "radius": ("head", "radius"), "tension": ("head", "tension"),
+    "areal_density": ("head", "areal_density"), "film": ("head", "film"),
+    "thickness": ("head", "thickness"), "body": ("body", "kind"), "volume": ("body", "volume"),
+    "depth": ("body", "depth"),
+    "plies": ("head", "plies"), "edge": ("head", "edge"), "film_density": ("head", "density"),
+    "youngs_modulus": ("head", "youngs_modulus"), "poisson_ratio": ("head", "poisson_ratio"),
+    "yield_stress": ("head", "yield_stress"), "tensile_strength": ("head", "tensile_strength"),
+    **{f"resonant_{k}": ("resonant_head", v) for k, v in (
+        ("film", "film"), ("thickness", "thickness"), ("plies", "plies"), ("tension", "tension"),
+        ("areal_density", "areal_density"), ("edge", "edge"), ("film_density", "density"),
+        ("youngs_modulus", "youngs_modulus"), ("poisson_ratio", "poisson_ratio"),
+        ("yield_stress", "yield_stress"), ("tensile_strength", "tensile_strength"))},
+    "air_temperature": ("air", "temperature"), "air_pressure": ("air", "pressure"),
+    "air_density": ("air", "density"), "air_sound_speed": ("air", "sound_speed"),
+}
+
 # The flags every drum-taking command offers, in the order --help lists them.
 DRUM_FLAGS = {"diameter": Diameter, "radius": Radius, "tension": Tension,
               "areal_density": ArealDensity, "film": Film, "thickness": Thickness,
-              "body": Body, "volume": Volume, "depth": Depth}
+              "body": Body, "volume": Volume, "depth": Depth, **MORE_FLAGS}
 
 
 def with_drum_flags(command: Callable) -> Callable:
@@ -112,15 +210,20 @@ def with_drum_flags(command: Callable) -> Callable:
 
 
 def drum_from(drum_file: str | None, **flags) -> Drum:
-    """The drum from a file (or built-in example) with command-line flags laid over it."""
-    if flags.get("body") is not None:
-        flags["body"] = flags["body"].value
+    """The drum from a file (or built-in example) with command-line flags laid over it.
+
+    Each flag stands for one drum-file key (:data:`FILE_KEYS`), and gives the same drum
+    as that key in a file would.
+    """
+    flags = {k: (v.value if isinstance(v, Enum) else v) for k, v in flags.items()}
+    keys = {FILE_KEYS[k]: flags.pop(k) for k in list(flags) if k in MORE_FLAGS}
+    keys = {where: v for where, v in keys.items() if v is not None}
     if drum_file is not None:
-        return load_drum(drum_file, **flags)
-    if not any(v is not None for v in flags.values()):
-        fail("DRUM_FILE", None, "give a drum file, a built-in example (kettledrum, snare), "
+        return load_drum(drum_file, **flags, keys=keys)
+    if not any(v is not None for v in flags.values()) and not keys:
+        fail("DRUM_FILE", None, "give a drum file, a built-in example (membrane examples lists them), "
              "or --diameter, --tension and --areal-density (or --film and --thickness)")
-    return parse_drum(override_table(None, **flags))
+    return parse_drum(override_table(None, **flags, keys=keys))
 
 
 # ------------------------------------------------------------------ output
@@ -176,7 +279,8 @@ def emit(fmt: Format, *, payload: dict, rows: list[dict], columns: list[tuple[st
     from rich.console import Console
     from rich.table import Table
 
-    table = Table(title=title or None, title_justify="left")
+    # a two-column summary (what, value) needs no header row: an empty one reads as a gap
+    table = Table(title=title or None, title_justify="left", show_header=any(headers))
     for i, header in enumerate(headers):
         table.add_column(header, justify="left" if i == 0 else "right", no_wrap=i == 0)
     for c in cells:

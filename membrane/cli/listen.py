@@ -8,7 +8,7 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from ..errors import RecordingError
+from ..errors import InputError, RecordingError
 from .common import Format, Physics, emit, fail, num, signed, t60, write_atomic
 
 COLUMNS = [
@@ -17,6 +17,7 @@ COLUMNS = [
     ("decay_s", "T60 (s)", t60),
     ("note", "note", str),
     ("cents_from_note", "cents off note", signed(0)),
+    ("remarks", "remarks", str),
 ]
 DRUM_COLUMNS = [
     ("mode", "mode", str),
@@ -41,8 +42,8 @@ def parse_channel(text: str) -> int | None:
 
 def listen(
     recording: Annotated[Path, typer.Argument(
-        metavar="RECORDING.wav", help="WAV file of one tap: PCM 16/24/32-bit or float, any rate, "
-        "mono or stereo.", show_default=False)],
+        metavar="RECORDING", help="Recording of one tap: WAV (PCM 8/16/24/32-bit or float), "
+        "FLAC, OGG or MP3; any rate, mono or stereo.", show_default=False)],
     drum: Annotated[Optional[str], typer.Option(
         help="Drum file (TOML) or built-in example: label the partials with modes and fit the "
              "head's tension.")] = None,
@@ -54,7 +55,8 @@ def listen(
     floor: Annotated[float, typer.Option(
         help="Leave out partials weaker than this, in dB below the strongest.", max=-1.0)] = -50.0,
     max_partials: Annotated[int, typer.Option(
-        help="Report at most this many partials (the strongest).", min=1, max=500)] = 32,
+        help="Show at most this many partials (the strongest); the analysis and the fit use "
+             "all of them.", min=1, max=500)] = 32,
     target: Annotated[Optional[List[str]], typer.Option(
         help="With --drum: M,N=PITCH (Hz or a note such as F2); the tension that puts the mode "
              "there, starting from the fitted drum. Repeat for several modes.",
@@ -85,8 +87,8 @@ def listen(
     targets = _targets(target) if target else []
 
     try:
-        audio = rec.read_wav(recording, channel=chan)
-        analysis = rec.analyse(audio, floor_db=floor, max_partials=max_partials)
+        audio = rec.read_recording(recording, channel=chan)
+        analysis = rec.analyse(audio, floor_db=floor)
     except RecordingError as exc:
         message = str(exc)
         raise RecordingError(message if str(recording) in message else f"{recording}: {message}") from None
@@ -94,17 +96,32 @@ def listen(
         print(f"warning: {warning}", file=sys.stderr)
 
     ident = None
-    if model is not None:
+    fit_failed = None
+    if model is not None and analysis.partials:
+        from ..errors import SolverError
         from ..identify import identify
 
         show = (lambda m: print(f"listen: {m}", file=sys.stderr)) if physics is Physics.full else None
-        ident = identify(model, analysis.partials, physics=physics.value, progress=show)
+        try:
+            ident = identify(model, analysis.partials, physics=physics.value, progress=show)
+        except (SolverError, InputError) as exc:
+            # the measurement stands on its own: keep the partials, say why there is no fit
+            fit_failed = " ".join(str(exc).split())
+            print(f"warning: no tension fit: {fit_failed}", file=sys.stderr)
+    elif model is not None:
+        fit_failed = "no partials to fit"
+    if targets and ident is None:
+        print("warning: no --target tension without a tension fit", file=sys.stderr)
+        targets = []
     rows = []
     labels = {id(mt.partial): mt for mt in ident.matches} if ident else {}
-    for p in analysis.partials:
+    shown = analysis.strongest(max_partials)
+    for p in shown:
         note, off = note_name(p.frequency)
         row = {"frequency_hz": p.frequency, "level_db": p.level_db, "decay_s": p.t60,
-               "decay_rate_per_s": p.decay_rate, "note": note, "cents_from_note": off}
+               "decay_rate_per_s": p.decay_rate, "note": note, "cents_from_note": off,
+               "settled_frequency_hz": p.settled, "glide_cents": p.glide_cents,
+               "flags": list(p.flags), "remarks": _remarks(p)}
         mt = labels.get(id(p))
         if mt is not None:
             row.update(m=mt.m, n=mt.n, mode=f"({mt.m},{mt.n})", model_hz=mt.model_frequency,
@@ -120,11 +137,30 @@ def listen(
     payload = {"recording": str(recording), "sample_rate_hz": audio.rate, "channels": audio.channels,
                "encoding": audio.encoding, "strike_time_s": analysis.strike_time,
                "analysed_from_s": analysis.start_time, "analysed_to_s": analysis.end_time,
-               "floor_db": floor, "partials": [{k: v for k, v in r.items() if k != "mode"} for r in rows],
-               "warnings": list(analysis.warnings)}
-    notes = [f"levels in dB re the strongest partial at the strike; T60 = time to fall 60 dB; "
-             f"strike at {analysis.strike_time:.3f} s, decay analysed "
+               "reference_time_s": analysis.reference_time,
+               "floor_db": floor, "partials": [{k: v for k, v in r.items() if k not in ("mode", "remarks")}
+                            for r in rows],
+               "partials_found": len(analysis.partials), "warnings": list(analysis.warnings)}
+    ref_ms = 1e3 * (analysis.reference_time - analysis.strike_time)
+    notes = [f"levels in dB re the strongest partial, {ref_ms:.0f} ms after the strike; "
+             f"T60 = time to fall 60 dB; strike at {analysis.strike_time:.3f} s, decay analysed "
              f"{analysis.start_time:.3f}-{analysis.end_time:.3f} s"]
+    if len(shown) < len(analysis.partials):
+        notes.append(f"showing the {len(shown)} strongest of {len(analysis.partials)} partials "
+                     "(--max-partials); the fit uses all")
+    glides = [p for p in shown if "glide" in p.flags]
+    for p in glides:
+        notes.append(f"{p.frequency:.1f} Hz glides {p.glide_cents:+.0f} cents to "
+                     f"{p.settled:.1f} Hz as the head settles (one partial)")
+    if any("fast" in p.flags for p in shown):
+        notes.append("fast: decays faster than the analysis resolves well; its level and T60 "
+                     "are uncertain")
+    if not analysis.partials:
+        notes.append(rec.NO_PARTIALS)
+    if fit_failed is not None:
+        payload["fit"] = {"tension_n_per_m": None, "uncertainty_n_per_m": None, "matched": 0,
+                          "rms_cents": None, "verdict": f"no fit: {fit_failed}"}
+        notes.append(f"no tension fit: {fit_failed}")
     if ident is not None:
         payload.update(_identification_payload(ident, physics.value))
         notes += _identification_notes(ident, physics.value)
@@ -135,19 +171,31 @@ def listen(
         notes += _tuning_notes(tuning_result)
         for w in tuning_result["warnings"]:
             print(f"caution: {w}", file=sys.stderr)
-    if plot is not None:
+    if plot is not None and not analysis.partials:
+        print("warning: no partials, so no --plot picture", file=sys.stderr)
+    elif plot is not None:
         spectrum = rec.decay_spectrum(audio, analysis)
         write_atomic(plot, lambda tmp: _draw(tmp, spectrum, analysis, ident, recording.name),
                      force=force, key="--plot")
         notes.append(f"spectrum picture written to {plot}")
     columns = COLUMNS + (DRUM_COLUMNS if ident else [])
     if format is Format.csv:
-        columns = COLUMNS[:3] + [("decay_rate_per_s", "decay_rate_per_s", str)] + COLUMNS[3:] + \
+        columns = COLUMNS[:3] + [("decay_rate_per_s", "decay_rate_per_s", str)] + COLUMNS[3:5] + \
+            [("settled_frequency_hz", "settled_frequency_hz", str), ("glide_cents", "glide_cents", str)] + \
             ([("m", "m", str), ("n", "n", str)] + DRUM_COLUMNS[1:] if ident else [])
     title = f"{recording.name}: {len(rows)} partials ({audio.encoding}, {audio.rate:g} Hz)"
     if ident is not None:
         title += f"; fitted tension {ident.tension:.0f} N/m"
     emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=notes)
+
+
+def _remarks(p) -> str:
+    """Flags in a few words for the table: the glide, fast decays, steady tones."""
+    out = []
+    if "glide" in p.flags:
+        out.append(f"glide {p.glide_cents:+.0f}c to {p.settled:.1f}")
+    out += [f for f in p.flags if f != "glide"]
+    return ", ".join(out)
 
 
 def _load_drum(source: str):
@@ -219,6 +267,11 @@ def _tuning_notes(t: dict) -> list[str]:
         t["cautions"]
 
 
+def shown_partials(analysis):
+    """The partials a picture marks: all of them (the table may show fewer)."""
+    return analysis.partials
+
+
 def _draw(path: Path, spectrum, analysis, ident, name: str) -> None:
     """Two panels on one frequency axis.
 
@@ -233,7 +286,7 @@ def _draw(path: Path, spectrum, analysis, ident, name: str) -> None:
     from matplotlib.colors import LogNorm
 
     freqs, level = spectrum
-    parts = analysis.partials
+    parts = shown_partials(analysis)
     f_found = np.array([p.frequency for p in parts])
     span = f_found.max() * 1.15 + 20
     keep = freqs <= span

@@ -6,14 +6,15 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from .common import (DrumFile, Format, Physics, drum_from, emit, num, parse_mode, signed, t60,
-                     with_drum_flags)
+from .common import (REFERENCE_HELP, DrumFile, Format, LossChoice, LossesOpt, Physics, decay_words,
+                     drum_from, emit, num, parse_mode, parse_reference, signed, t60, with_drum_flags)
 
 COLUMNS = [
     ("mode", "mode", str),
     ("frequency_hz", "f (Hz)", num(2)),
     ("decay_s", "T60 (s)", t60),
     ("ratio", "ratio", num(4)),
+    ("fit_mark", "in fit", str),
     ("harmonic", "harmonic", str),
     ("cents_from_harmonic", "cents to harmonic", signed(1)),
     ("note", "note", str),
@@ -28,40 +29,52 @@ def modes(
     physics: Annotated[Physics, typer.Option(
         help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
     ] = Physics.full,
+    losses: LossesOpt = LossChoice.all,
     m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters (0-50).")] = 6,
     n_max: Annotated[int, typer.Option(help="Highest number of nodal circles, counting the rim (1-50).")] = 3,
-    reference: Annotated[str, typer.Option(help="Mode the ratios are taken to, M,N.")] = "0,1",
+    reference: Annotated[Optional[str], typer.Option(help=REFERENCE_HELP, show_default=False)] = None,
     fit: Annotated[Optional[List[str]], typer.Option(
-        help="Mode to include in the harmonic-series fit, M,N; repeat. Default (1,1)...(5,1).")] = None,
+        help="Mode to include in the harmonic-series fit, M,N; repeat, at least 3 modes. "
+             "Default (1,1)...(5,1) as far as solved.")] = None,
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
 ) -> None:
     """Solve a drum's modes: frequencies, decay, ratios, harmonic fit and nearest notes."""
     from ..solver import solve
 
     drum = drum_from(drum_file, **drum_flags)
-    ref = parse_mode(reference, key="--reference")
+    ref = parse_reference(reference, drum)
     fit_modes = [parse_mode(f, key="--fit") for f in fit] if fit else None
-    result = solve(drum, physics.value, m_max=m_max, n_max=n_max)
+    result = solve(drum, physics.value, m_max=m_max, n_max=n_max, losses=losses.value)
     result.find(*ref)  # a clear error if the reference mode was not solved
     rows = result.table(reference=ref, fit_modes=fit_modes)
     harmonic = result.harmonic_fit(fit_modes)
     for row, mode in zip(rows, result.modes):
         row["mode"] = mode.label
+        row["fit_mark"] = "yes" if row["fitted"] else None
     payload = {
         "drum": drum.name,
         "physics": physics.value,
+        "losses": losses.value,
         "reference": {"m": ref[0], "n": ref[1]},
-        "harmonic_fit": {
+        "harmonic_fit": None if harmonic is None else {
             "fundamental_hz": harmonic.fundamental,
             "rms_cents": harmonic.rms_cents,
             "modes": [{"m": m, "n": n, "harmonic": harmonic.harmonics[(m, n)]} for m, n in harmonic.fitted],
         },
         "notes": list(result.notes),
-        "modes": [{k: v for k, v in row.items() if k != "mode"} for row in rows],
+        "modes": [{k: v for k, v in row.items() if k not in ("mode", "fit_mark")} for row in rows],
     }
-    title = (f"{drum.name}: {physics.value} physics; ratios to ({ref[0]},{ref[1]}); "
-             f"harmonic fit f0 = {harmonic.fundamental:.2f} Hz, rms {harmonic.rms_cents:.1f} cents")
+    title = (f"{drum.name}: {physics.value} physics{decay_words(physics.value, losses.value)}; "
+             f"ratios to ({ref[0]},{ref[1]})")
+    if harmonic is None:
+        title += "; no harmonic fit (fewer than 3 modes solved)"
+        fit_note = []
+    else:
+        title += f"; harmonic fit f0 = {harmonic.fundamental:.2f} Hz, rms {harmonic.rms_cents:.1f} cents"
+        fit_note = [f"harmonic fit through {', '.join(f'({m},{n})' for m, n in harmonic.fitted)} "
+                    "(marked 'in fit'); the harmonic columns are left empty for the other modes"]
     columns = COLUMNS if format is not Format.csv else \
-        [("m", "m", str), ("n", "n", str)] + [c for c in COLUMNS if c[0] != "mode"] + \
-        [("multiplicity", "multiplicity", str), ("branch", "branch", str), ("head", "head", str)]
-    emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=result.notes)
+        [("m", "m", str), ("n", "n", str)] + [c for c in COLUMNS if c[0] not in ("mode", "fit_mark")] + \
+        [("fitted", "fitted", str), ("multiplicity", "multiplicity", str), ("branch", "branch", str),
+         ("head", "head", str)]
+    emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=fit_note + list(result.notes))

@@ -12,7 +12,9 @@ from typing import Annotated, Optional
 
 import typer
 
-from .common import (DrumFile, Physics, drum_from, fail, parse_mode, with_drum_flags, write_atomic)
+from .common import (REFERENCE_HELP, DrumFile, LossChoice, LossesOpt, Physics, drum_from, fail,
+                     parse_mode, parse_reference,
+                     with_drum_flags, write_atomic)
 
 PHYSICS = tuple(p.value for p in Physics)  # the models, in order of what they add
 
@@ -23,7 +25,7 @@ PhysicsOpt = Annotated[Physics, typer.Option(
     help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")]
 MMax = Annotated[int, typer.Option(help="Highest number of nodal diameters solved (0-50).")]
 NMax = Annotated[int, typer.Option(help="Highest number of nodal circles solved, counting the rim (1-50).")]
-Reference = Annotated[str, typer.Option(help="Mode the ratios are taken to, M,N.")]
+Reference = Annotated[Optional[str], typer.Option(help=REFERENCE_HELP, show_default=False)]
 Force = Annotated[bool, typer.Option("--force", help="Overwrite the output file if it exists.")]
 Count = Annotated[int, typer.Option(min=1, max=48, help="Modes in the grid (lowest first).")]
 
@@ -71,13 +73,13 @@ def _progress(label: str):
     return report
 
 
-def _solve(drum, physics: str, m_max: int, n_max: int, need=(0, 1)):
+def _solve(drum, physics: str, m_max: int, n_max: int, need=(0, 1), losses: str = "all"):
     from ..solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
     m, n = need
     if m > M_MAX_LIMIT or n > N_MAX_LIMIT:
         fail("--mode", f"{m},{n}", f"this drum's modes are solved up to m = {M_MAX_LIMIT}, n = {N_MAX_LIMIT}")
-    return solve(drum, physics, m_max=max(m_max, m), n_max=max(n_max, n))
+    return solve(drum, physics, m_max=max(m_max, m), n_max=max(n_max, n), losses=losses)
 
 
 def _find(modeset, m: int, n: int, branch: str | None):
@@ -116,9 +118,10 @@ def render(
     fps: Annotated[float, typer.Option(help="Animation frames per second.")] = 24.0,
     drum_flags: dict = None,
     physics: PhysicsOpt = Physics.full,
+    losses: LossesOpt = LossChoice.all,
     m_max: MMax = 6,
     n_max: NMax = 3,
-    reference: Reference = "0,1",
+    reference: Reference = None,
     force: Force = False,
 ) -> None:
     """Draw a drum's modes: a 3D animation or nodal diagram of one mode (--mode M,N), the lowest
@@ -136,8 +139,8 @@ def render(
         fmt = _suffix(out, ANIMATIONS + ("png",), "a single mode", force)
     else:
         fmt = _suffix(out, STILLS, "a grid or ratio chart", force)
-    ref = parse_mode(reference, key="--reference")
     drum = drum_from(drum_file, **drum_flags)
+    ref = parse_reference(reference, drum)
 
     if mode is not None:
         m, n = parse_mode(mode)
@@ -148,7 +151,7 @@ def render(
                     elevation=elevation, azimuth=azimuth, fps=fps)
         if fmt != "png" or snapshot:
             check_view(view, fmt)
-        modeset = _solve(drum, physics.value, m_max, n_max, need=(m, n))
+        modeset = _solve(drum, physics.value, m_max, n_max, need=(m, n), losses=losses.value)
         if branch is not None and not any(x.branch for x in modeset):
             fail("--branch", branch, "only a shell's two heads solved together (--physics full) have branches")
         the_mode = _find(modeset, m, n, branch)
@@ -164,14 +167,14 @@ def render(
             def writer(tmp):
                 save(nodal_diagram(modeset, the_mode, reference=ref), tmp)
     elif grid:
-        modeset = _solve(drum, physics.value, m_max, n_max)
+        modeset = _solve(drum, physics.value, m_max, n_max, losses=losses.value)
         from ..render.stills import mode_grid, save
 
         def writer(tmp):
             save(mode_grid(modeset, count=count, reference=ref), tmp)
     else:
         names = _physics_list(compare, "--compare") or [physics.value]
-        modesets = [_solve(drum, name, m_max, n_max) for name in names]
+        modesets = [_solve(drum, name, m_max, n_max, losses=losses.value) for name in names]
         from ..render.stills import ratio_chart as chart, save
 
         def writer(tmp):
@@ -192,9 +195,10 @@ def handout(
     count: Count = 12,
     drum_flags: dict = None,
     physics: PhysicsOpt = Physics.full,
+    losses: LossesOpt = LossChoice.all,
     m_max: MMax = 6,
     n_max: NMax = 3,
-    reference: Reference = "0,1",
+    reference: Reference = None,
     force: Force = False,
 ) -> None:
     """Write a printable workshop handout (PDF, a few pages): the drum, its mode table with ratios
@@ -205,15 +209,15 @@ def handout(
     paper = paper.strip().lower()
     if paper not in ("a4", "letter"):
         fail("--paper", paper, "must be a4 or letter")
-    ref = parse_mode(reference, key="--reference")
     drum = drum_from(drum_file, **drum_flags)
+    ref = parse_reference(reference, drum)
     if compare is None:
         others = list(PHYSICS[:PHYSICS.index(physics.value)])
     else:
         others = [p for p in _physics_list(compare, "--compare") if p != physics.value]
-    modeset = _solve(drum, physics.value, m_max, n_max)
+    modeset = _solve(drum, physics.value, m_max, n_max, losses=losses.value)
     modeset.find(*ref)  # a clear error if the reference mode was not solved
-    compared = [_solve(drum, name, m_max, n_max) for name in others]
+    compared = [_solve(drum, name, m_max, n_max, losses=losses.value) for name in others]
     from ..render.handout import write_handout
 
     write_atomic(out, lambda tmp: write_handout(tmp, modeset, compare=compared, paper=paper,

@@ -13,16 +13,32 @@ import typer
 from .. import presets
 
 from ..units import to_si
-from .common import (DrumFile, Format, Physics, drum_from, emit, fail, num, parse_mode, t60,
+from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, decay_words, drum_from, emit,
+                     fail, num, parse_mode, t60,
                      with_drum_flags, write_atomic)
 
 COLUMNS = [
     ("mode", "mode", str),
     ("frequency_hz", "f (Hz)", num(2)),
     ("decay_s", "T60 (s)", t60),
-    ("level_db", "level (dB)", lambda v: "silent" if v <= presets.SILENT_DB else f"{v:.1f}"),
+    ("level_db", "level (dB)", lambda v: level_text(v)),
     ("shape_at_strike", "shape at strike", num(3)),
 ]
+# A model level far below the loudest partial says "inaudible", not a number to a tenth
+# of a dB: whole dB below LEVEL_WHOLE_DB, and a bound below LEVEL_SHOWN_MIN.
+LEVEL_WHOLE_DB = -60.0  # common practice, no source: the range of a tap recording's partials
+LEVEL_SHOWN_MIN = -120.0
+
+
+def level_text(value: float) -> str:
+    """A level in dB for a table: 0.1 dB near the top, whole dB lower, ``< -120`` or silent below."""
+    if value <= presets.SILENT_DB:
+        return "silent"
+    if value < LEVEL_SHOWN_MIN:
+        return f"< {LEVEL_SHOWN_MIN:.0f}"
+    return f"{value:.0f}" if value < LEVEL_WHOLE_DB else f"{value:.1f}"
+
+
 MODE_TOKEN = re.compile(r"^\(?\d+,\d+\)?$")
 RATE_RANGE = (8000, 192000)
 MAX_SECONDS = 60.0
@@ -139,6 +155,7 @@ def strike(
     physics: Annotated[Physics, typer.Option(
         help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
     ] = Physics.full,
+    losses: LossesOpt = LossChoice.all,
     m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters (0-50).")] = 6,
     n_max: Annotated[int, typer.Option(help="Highest number of nodal circles, counting the rim (1-50).")] = 3,
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
@@ -181,7 +198,7 @@ def strike(
     from .. import strike as model
     from ..solver import solve
 
-    result = solve(drum, physics.value, m_max=m_max, n_max=n_max)
+    result = solve(drum, physics.value, m_max=m_max, n_max=n_max, losses=losses.value)
     if out is not None and t60 is None and any(mo.decay is None for mo in result
                                                if mo.head != "resonant"):
         fail("--physics", physics.value, "models no decay, so a sound preview cannot be made: use "
@@ -214,13 +231,13 @@ def strike(
     rows = _rows(partials)
     mallet_name = None if contact_time is not None else mallet.strip().lower()
     how = f"{mallet_name} mallet" if mallet_name else f"contact time {t_c * 1e3:.2f} ms"
-    title = (f"{drum.name}: {physics.value} physics; strike at r/a = {at:.3f}, {how}; listener "
+    title = (f"{drum.name}: {physics.value} physics{decay_words(physics.value, losses.value)}; strike at r/a = {at:.3f}, {how}; listener "
              f"{listener_angle:g} deg off the axis at {distance:g} m")
     if advice is not None:
         title += (f"; best for {' '.join(f'({m},{n})' for m, n in advice.chosen)}: r/a = {advice.at:.3f}, "
                   f"contrast {advice.contrast_db:+.1f} dB")
     payload = {
-        "drum": drum.name, "physics": physics.value,
+        "drum": drum.name, "physics": physics.value, "losses": losses.value,
         "strike": {"at": at, "angle_deg": angle, "contact_time_s": t_c, "mallet": mallet_name},
         "listener": {"angle_deg": listener_angle, "distance_m": distance,
                      "azimuth_deg": angle if listener_azimuth is None else listener_azimuth},

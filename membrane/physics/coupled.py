@@ -42,7 +42,7 @@ import numpy as np
 from scipy import special
 
 from ..errors import InputError, SolverError
-from . import table_cache
+from . import dissipation, table_cache
 from .cavity import duct_norms, duct_terms, duct_wavenumbers
 from .radiation import Quadrature, RadiationTable
 from .vacuum import RadialBasis, _ratio_i, ideal_basis, stiff_basis
@@ -441,9 +441,11 @@ class RootSet:
     settings : Settings
     k_max : sequence of float
         Largest acoustic wavenumber needed per order, 1/m (sets the radiation tables' range).
+    losses : membrane.losses.Losses or None
+        Losses besides radiation (dissipation.py), or None for radiation only.
     """
 
-    def __init__(self, orders, which, *, air, settings: Settings, k_max):
+    def __init__(self, orders, which, *, air, settings: Settings, k_max, losses=None):
         self.rho, self.c = air
         self.orders = orders
         self.which = np.asarray(which)
@@ -459,6 +461,7 @@ class RootSet:
         self.air_spring = max([rho_c2 * np.pi * h.radius**2 / (h.head.tension * o.depth)
                                for o in orders if o.depth is not None for h in o.heads] + [0.0])
         self.M = np.stack([self.data[i]["M"] for i in self.which])
+        self.losses = None if losses is None else dissipation.RootLosses(self, losses)
 
     def _order_data(self, order, kmax, settings):
         d = {"K": _block_diag([h.K for h in order.heads]),
@@ -518,6 +521,8 @@ class RootSet:
                         f = body * self._duct_weights(order, fcot, fcsc, a_, b_)
                         Kg[:, off[a_]:off[a_ + 1], off[b_]:off[b_ + 1]] += \
                             (V[a_][None, :, :] * f[:, None, :]) @ V[b_].T
+            if self.losses is not None:
+                Kg = Kg + self.losses.matrix(i, w, outer=outer, body=body)
             Keff[sel], Meff[sel] = Kg, Mg
         return Keff, Meff
 
@@ -560,6 +565,8 @@ class RootSet:
                     f = body * self._duct_weights(order, fcot, fcsc, a_, b_)
                     Z[:, off[a_]:off[a_ + 1], off[b_]:off[b_ + 1]] += \
                         (V[a_][None, :, :] * f[:, None, :]) @ V[b_].T
+        if head and self.losses is not None:
+            Z = Z + self.losses.matrix(i, w, outer=outer, body=body)
         return Z
 
     def ensure_range(self, i, k_top: float) -> None:
@@ -608,6 +615,8 @@ class RootSet:
                         proj[a_, b_, sel] = ps[a_] * ps[b_]
                 cross[sel] = order.cross_sign or 0.0
         rho, c = self.rho, self.c
+        extra = None if self.losses is None else \
+            self.losses.rayleigh(self.which[idx], x, outer=outer, body=body)
 
         def r(omega):
             k = omega / c
@@ -629,6 +638,8 @@ class RootSet:
                         for b_ in range(nheads):
                             f = fcot if a_ == b_ else fcsc
                             val = val + body * np.sum(f * proj[a_, b_], axis=1)
+            if extra is not None:
+                val = val + extra(omega)
             return val
 
         return r
@@ -982,7 +993,8 @@ def _families(drum, *, m_max: int, n_max: int, settings: Settings):
     return orders
 
 
-def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT) -> list:
+def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
+               losses=None) -> list:
     """Every root of every order of a drum, weighed and labelled: a list of OrderRoots.
 
     Roots come from the contour solve of spectrum.py in a window that grows until each
@@ -993,7 +1005,8 @@ def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT) ->
     orders = _families(drum, m_max=m_max, n_max=n_max, settings=settings)
     air = (drum.air.density, drum.air.sound_speed)
     k_max = [1.6 * max(h.omega[n_max] for h in o.heads) / air[1] for o in orders]
-    rs = RootSet(orders, np.arange(len(orders)), air=air, settings=settings, k_max=k_max)
+    rs = RootSet(orders, np.arange(len(orders)), air=air, settings=settings, k_max=k_max,
+                 losses=losses)
     out = []
     for i, order in enumerate(orders):
         lowest = min(h.omega[0] for h in order.heads)
@@ -1019,7 +1032,8 @@ def decay_time(omega: complex) -> float:
     return LN1000 / omega.imag
 
 
-def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT) -> list:
+def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
+               losses=None) -> list:
     """Modes of a drum with air on its faces and in its body (``--physics full``).
 
     Parameters
@@ -1030,6 +1044,9 @@ def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT) ->
         Orders 0..m_max and n = 1..n_max per order (and per branch for a shell).
     settings : Settings
         Numerical settings; the defaults converge the frequencies to about 1e-5 or better.
+    losses : membrane.losses.Losses or None
+        Losses besides radiation (film, air boundary layers, rim: dissipation.py); None
+        for radiation damping only.
 
     Returns
     -------
@@ -1040,7 +1057,7 @@ def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT) ->
     """
     from ..modes import Mode
 
-    solved = solve_drum(drum, m_max=m_max, n_max=n_max, settings=settings)
+    solved = solve_drum(drum, m_max=m_max, n_max=n_max, settings=settings, losses=losses)
     bases = {}
     out = []
     pair = {}
@@ -1092,13 +1109,13 @@ def _phase_score(mode, n) -> float:
     return float(np.real(a * np.conj(b)) / den) if den > 0 else 0.0
 
 
-def model_notes(drum) -> list[str]:
-    """What the full model includes and leaves out, for output."""
+def model_notes(drum, losses=None) -> list[str]:
+    """What the full model includes and leaves out, for output (``losses`` as for
+    :func:`full_modes`)."""
+    from ..losses import decay_note
+
     notes = ["air loading from baffled radiation on each open face (an infinite rigid baffle "
-             "at the rim: approximate for a drum without one)",
-             "decay times (T60) are from sound radiation only; losses in the film, the rim "
-             "and the air are not modelled, so real partials die sooner (tables show those "
-             "beyond 100 s as > 100)"]
+             "at the rim: approximate for a drum without one)", decay_note(losses)]
     kind = drum.body.kind
     if kind == "kettle":
         notes.append("kettle modelled as a rigid cylinder of the bowl's volume under the head: "

@@ -22,6 +22,7 @@ FORMATS = ("gif", "mp4", "png")
 # A 480-pixel picture shows no difference from the stills' finer grid; half the
 # triangles render nearly twice as fast in software.
 SCENE_GRID = {"radial": 81, "angular": 145}
+COLOUR_FLOOR = 0.1  # fraction of the struck head's peak below which a head's colours are not boosted
 BODY_DEPTH = 0.45  # drawn depth of a kettle below the head, in radii (a hint, not to scale)
 
 
@@ -101,7 +102,7 @@ class HeadScene:
         Mode the ratio in the title is taken to.
     """
 
-    def __init__(self, modeset, mode, view: View, *, reference=(0, 1)):
+    def __init__(self, modeset, mode, view: View, *, reference=None):
         import pyvista as pv
 
         _quiet_vtk()
@@ -122,17 +123,21 @@ class HeadScene:
             # Mode shapes are outward displacements: outward is down for the resonant
             # head. Drawn and coloured as up (red) / down (blue) for both heads.
             up = -field.w if resonant else field.w
+            # Colour: each head on its own scale, so a resonant head that moves less than
+            # the struck one still shows its sign in full colour (its height stays true);
+            # a head moving under COLOUR_FLOOR of the struck head's peak keeps that scale.
+            tint = 1.0 / max(float(np.max(np.abs(up))), COLOUR_FLOOR)
             x, y = field.xy
             grid = pv.StructuredGrid(x, y, z0 + view.amplitude * up)
-            grid["displacement"] = up.ravel(order="F")
+            grid["displacement"] = tint * up.ravel(order="F")
             p.add_mesh(grid, scalars="displacement", cmap=CMAP, clim=(-1.0, 1.0), show_scalar_bar=False,
                        smooth_shading=False, ambient=0.25, diffuse=0.8)
             rim = np.column_stack([np.cos(field.theta), np.sin(field.theta), np.full_like(field.theta, z0)])
             p.add_mesh(pv.lines_from_points(rim).tube(radius=0.018), color="#303030")
-            self.heads.append((grid, up.ravel(order="F"), z0))
+            self.heads.append((grid, up.ravel(order="F"), z0, tint))
         body = _body(kind, depth)
-        if body is not None:  # see-through, so the head below the rim stays in sight
-            p.add_mesh(body, color="#a0a0a0", opacity=0.25, smooth_shading=True)
+        if body is not None:  # see-through, so the head below the rim stays in sight (and in colour)
+            p.add_mesh(body, color="#a0a0a0", opacity=0.12 if kind == "shell" else 0.25, smooth_shading=True)
         el, az = np.radians(view.elevation), np.radians(view.azimuth)
         centre = -0.05 - 0.5 * depth * (len(self.heads) - 1)
         distance = 4.2 + 1.2 * depth * (len(self.heads) - 1)
@@ -148,20 +153,22 @@ class HeadScene:
         longest = max(len(line) for line in title.split("\n"))
         font = max(5, min(int(view.width / (1.3 * longest)), int(view.height / 34)))
         p.add_text(title, position="upper_edge", font_size=font, color="black")
-        note = f"motion exaggerated: peak {view.amplitude:g} x radius"
+        note = [f"motion exaggerated (peak {view.amplitude:g} x radius)"]
         if len(self.heads) > 1:
-            note += "; below: the resonant head"
-        p.add_text(note, position="lower_left", font_size=max(6, font - 1), color="#404040")
+            note.append("below: the resonant head; colours per head")
+        # as large as the title allows, each line fitting across the picture
+        small = font + 2  # vtk shrinks corner text to fit the window: ask for as much as the title
+        p.add_text("\n".join(note), position="lower_left", font_size=small, color="#303030")
         self.plotter = p
 
     def frame(self, phase: float) -> np.ndarray:
         """RGB image (height, width, 3) with the head(s) at cos(phase) of the peak."""
         c = np.cos(phase)
-        for grid, w, z0 in self.heads:
+        for grid, w, z0, tint in self.heads:
             points = grid.points
             points[:, 2] = z0 + self.view.amplitude * c * w
             grid.points = points
-            grid["displacement"] = c * w
+            grid["displacement"] = tint * c * w
         self.plotter.render()
         return np.asarray(self.plotter.screenshot(return_img=True))[..., :3]
 
@@ -224,7 +231,7 @@ def check_view(view: View, fmt: str) -> None:
         raise InputError("--out", fmt, f"the 3D picture is written as one of: {', '.join(FORMATS)}")
 
 
-def render_mode(modeset, mode, path, *, view: View = View(), reference=(0, 1), progress=None) -> None:
+def render_mode(modeset, mode, path, *, view: View = View(), reference=None, progress=None) -> None:
     """Write a GIF or MP4 of one period of ``mode``, or a PNG of its peak (format from the suffix).
 
     Parameters

@@ -68,6 +68,105 @@ def sample(mode, *, radial: int = RADIAL_POINTS, angular: int = ANGULAR_POINTS,
     return PolarField(r=r, theta=theta, w=w)
 
 
+@dataclass(frozen=True)
+class NodalLines:
+    """Where a mode w = shape(r) cos(m theta) does not move, from its own structure.
+
+    Attributes
+    ----------
+    diameters : tuple of float
+        Angles in rad of the m nodal diameters (each a whole line through the centre,
+        so theta and theta + pi are one diameter), the zeros of cos(m theta).
+    circles : tuple of float
+        Radii r/a of the nodal circles inside the rim: the zeros of the solver's radial
+        shape (the rim itself is left out).
+    """
+
+    diameters: tuple
+    circles: tuple
+
+
+# Radial zeros are bracketed on this many samples, then refined: nodal circles of the
+# solved orders (n <= 50) are far more than 1/RADIAL_SEARCH apart.
+RADIAL_SEARCH = 2001
+RIM_GAP = 0.002  # a zero closer than this to r/a = 1 is the clamped or hinged rim
+QUIET = 1e-7  # |shape| below this fraction of its peak: round-off, not a sign
+LOBE_FLOOR = 1e-3  # a region between nodal circles moving less than this (of the peak) is no region
+
+
+def nodal_lines(mode, *, resonant: bool = False) -> NodalLines | None:
+    """The nodal diameters and circles of one head of a mode, or None if unknown.
+
+    The angular part of every solved mode is cos(m theta), so its m nodal diameters sit
+    at theta = (2k + 1) pi / (2m); the nodal circles are the sign changes of the
+    radial shape (:meth:`Mode.radial_shape`, the solver's mode vector), refined by
+    Brent's method. None when the mode has no radial shape to read (draw a contour).
+    """
+    from scipy.optimize import brentq
+
+    shape = getattr(mode, "radial_shape", None)
+    basis = mode.resonant_basis if resonant else getattr(mode, "basis", None)
+    if shape is None or basis is None:
+        return None
+    a = basis.radius
+    m = int(mode.m)
+    diameters = tuple((2 * k + 1) * np.pi / (2 * m) for k in range(m))
+    r = np.linspace(0.0, a, RADIAL_SEARCH)
+    w = shape(r, resonant=resonant)
+    peak = np.max(np.abs(w))
+    if not np.all(np.isfinite(w)) or peak == 0:
+        return NodalLines(diameters=diameters, circles=()) if peak == 0 else None
+    loud = np.abs(w) > QUIET * peak
+    circles = []
+    for i in np.flatnonzero((np.sign(w[1:]) * np.sign(w[:-1]) <= 0) & loud[:-1]):
+        j = i + 1 + int(np.argmax(loud[i + 1:])) if not loud[i + 1] else i + 1  # across a zero sample
+        if j >= r.size or not loud[j] or np.sign(w[j]) == np.sign(w[i]):
+            continue
+        root = brentq(lambda x: float(shape(np.array([x]), resonant=resonant)[0]), r[i], r[j], xtol=1e-12 * a)
+        if root < a * (1 - RIM_GAP) and (not circles or root / a - circles[-1] > 1e-6):
+            circles.append(root / a)
+    # A sign change that bounds a region moving less than LOBE_FLOOR of the peak (e.g.
+    # near the centre of a mode with many diameters, where w ~ r^m) divides nothing a
+    # listener or a hand could find: that region is merged with its neighbour.
+    while circles:
+        edges = [0.0, *circles, 1.0]
+        lobes = [np.max(np.abs(w[(r / a >= lo) & (r / a <= hi)]), initial=0.0) for lo, hi in zip(edges, edges[1:])]
+        weak = [k for k, v in enumerate(lobes) if v < LOBE_FLOOR * peak]
+        if not weak:
+            break
+        k = weak[0]
+        circles.pop(k if k < len(circles) else k - 1)  # the circle bounding the weak region
+    return NodalLines(diameters=diameters, circles=tuple(circles))
+
+
+def drawn_head(mode) -> bool:
+    """Whether a picture of ``mode`` should show the resonant head (``resonant`` argument).
+
+    A mode counted on a shell's resonant head hardly moves the struck head: it is drawn
+    on the head it lives on. (An uncoupled resonant-head mode in vacuum carries that
+    head as its own basis, so it is drawn as a struck head would be.)
+    """
+    return getattr(mode, "head", None) == "resonant" and getattr(mode, "resonant_coefficients", None) is not None
+
+
+def head_words(modeset, mode) -> str:
+    """``"struck head"`` or ``"resonant head"`` for a two-headed drum's picture, else ``""``."""
+    if getattr(modeset.drum, "resonant_head", None) is None:
+        return ""
+    return "resonant head" if getattr(mode, "head", None) == "resonant" else "struck head"
+
+
+def wrap_title(text: str, width_in: float, fontsize: float) -> str:
+    """Break each line of a title so it fits ``width_in`` inches at ``fontsize`` points.
+
+    An average glyph of matplotlib's default sans-serif is about 0.55 em wide.
+    """
+    import textwrap
+
+    chars = max(12, int(width_in * 72.0 / (0.55 * fontsize)))
+    return "\n".join(textwrap.fill(line, chars, break_on_hyphens=False) for line in text.split("\n"))
+
+
 def ratio_to(modeset, mode, reference: tuple[int, int]) -> float | None:
     """Frequency ratio of ``mode`` to the reference mode, or None if that was not solved."""
     try:
@@ -77,8 +176,21 @@ def ratio_to(modeset, mode, reference: tuple[int, int]) -> float | None:
     return mode.frequency / ref.frequency
 
 
-def mode_caption(modeset, mode, *, reference: tuple[int, int] = (0, 1), short: bool = False) -> str:
-    """``"(2,1)  305.5 Hz  ratio 2.136 to (0,1)"``: label, frequency, ratio [, T60]."""
+def reference_of(modeset, reference) -> tuple[int, int]:
+    """The reference mode asked for, or the drum's principal (see :func:`membrane.modes.principal_mode`)."""
+    if reference is not None:
+        return tuple(reference)
+    from ..modes import principal_mode
+
+    return principal_mode(modeset.drum)
+
+
+def mode_caption(modeset, mode, *, reference: tuple[int, int] | None = None, short: bool = False) -> str:
+    """``"(2,1)  305.5 Hz  ratio 1.341 to (1,1)"``: label, frequency, ratio [, T60].
+
+    ``reference`` defaults to the drum's principal mode.
+    """
+    reference = reference_of(modeset, reference)
     ratio = ratio_to(modeset, mode, reference)
     parts = [mode.label, f"{mode.frequency:.1f} Hz"]
     if ratio is not None:
@@ -86,7 +198,8 @@ def mode_caption(modeset, mode, *, reference: tuple[int, int] = (0, 1), short: b
     if mode.decay is not None and not short:
         from ..modes import t60_text
 
-        parts.append(f"T60 {t60_text(mode.decay)} s")
+        which = "radiation only" if getattr(modeset, "losses", "all") == "radiation" else "all losses"
+        parts.append(f"T60 {t60_text(mode.decay)} s ({which})")
     return "  ".join(parts)
 
 

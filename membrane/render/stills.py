@@ -12,7 +12,8 @@ from __future__ import annotations
 
 import numpy as np
 
-from .shape import CMAP, mode_caption, physics_words, sample
+from .shape import (CMAP, drawn_head, head_words, mode_caption, nodal_lines, physics_words, reference_of,
+                    sample, wrap_title)
 
 NODAL_COLOUR = "black"
 # A grid panel is small: a coarser polar grid looks the same and draws 2-3x faster.
@@ -29,11 +30,47 @@ def _figure(size):
 
 
 NOISE_FLOOR = 1e-3  # fraction of the peak displacement below which the sign is not drawn
+DIAMETER_GID = "nodal diameter"
+CIRCLE_GID = "nodal circle"
+CONTOUR_GID = "nodal contour"
+ARC_POINTS = 361  # a nodal circle drawn as a closed polygon of this many points (1 degree apart)
+
+
+def draw_nodal_lines(ax, lines, *, linewidth: float = 1.4):
+    """Draw nodal diameters (whole, rim to rim through the centre) and circles (closed).
+
+    Parameters
+    ----------
+    ax : matplotlib.axes.Axes
+        Axes in units of the head's radius.
+    lines : membrane.render.shape.NodalLines
+        Angles of the diameters (rad) and radii of the circles (r/a).
+
+    Returns
+    -------
+    list of matplotlib.lines.Line2D
+        One line per diameter (gid ``"nodal diameter"``) and per circle (``"nodal circle"``).
+    """
+    drawn = []
+    for angle in lines.diameters:
+        c, s = np.cos(angle), np.sin(angle)
+        drawn += ax.plot([-c, c], [-s, s], color=NODAL_COLOUR, linewidth=linewidth, solid_capstyle="butt",
+                         gid=DIAMETER_GID, zorder=3)
+    phi = np.linspace(0.0, 2.0 * np.pi, ARC_POINTS)
+    for radius in lines.circles:
+        drawn += ax.plot(radius * np.cos(phi), radius * np.sin(phi), color=NODAL_COLOUR,
+                         linewidth=linewidth, gid=CIRCLE_GID, zorder=3)
+    return drawn
 
 
 def draw_field(ax, mode, *, signs: bool = False, hatch: bool = False, radial: int | None = None,
-               angular: int | None = None):
+               angular: int | None = None, resonant: bool | None = None, linewidth: float = 1.4):
     """Draw one mode's displacement on an axes: colour, nodal lines, rim.
+
+    The nodal lines come from the mode's own structure (:func:`~membrane.render.shape.nodal_lines`:
+    m diameters where cos(m theta) vanishes, circles at the zeros of the solver's radial
+    shape), each drawn whole. Only a mode whose structure is unknown gets the zero
+    contour of the sampled field instead.
 
     Parameters
     ----------
@@ -47,6 +84,10 @@ def draw_field(ax, mode, *, signs: bool = False, hatch: bool = False, radial: in
         Hatch the regions moving down, for print without colour.
     radial, angular : int, optional
         Grid size (defaults from :mod:`membrane.render.shape`).
+    resonant : bool, optional
+        Draw a shell's resonant head; default the head the mode is counted on.
+    linewidth : float
+        Width of the nodal lines in points.
 
     Returns
     -------
@@ -54,15 +95,23 @@ def draw_field(ax, mode, *, signs: bool = False, hatch: bool = False, radial: in
         The coloured field; ``get_array()`` holds w, ``get_coordinates()`` x, y.
     """
     kw = {k: v for k, v in (("radial", radial), ("angular", angular)) if v}
-    field = sample(mode, **kw)
+    if resonant is None:
+        resonant = drawn_head(mode)
+    field = sample(mode, resonant=resonant, **kw)
+    w_all = field.w
+    if resonant:  # the resonant head on its own colour scale (its motion can be far smaller)
+        peak = np.max(np.abs(w_all))
+        w_all = w_all / peak if peak > 0 else w_all
     x, y = field.xy
-    mesh = ax.pcolormesh(x, y, field.w, shading="gouraud", cmap=CMAP, vmin=-1.0, vmax=1.0,
+    mesh = ax.pcolormesh(x, y, w_all, shading="gouraud", cmap=CMAP, vmin=-1.0, vmax=1.0,
                          rasterized=True)
-    inner = field.r < 0.995  # the rim is a node anyway: drawn as the rim, not as a contour
-    # Where the head barely moves (below 0.1 % of the peak, e.g. near the centre of a mode
-    # with many nodal diameters) the sign is numerical noise: no nodal line is drawn there.
-    w = np.ma.masked_where(np.abs(field.w) < NOISE_FLOOR, field.w)[:, inner]
-    ax.contour(x[:, inner], y[:, inner], w, levels=[0.0], colors=NODAL_COLOUR, linewidths=1.4)
+    inner = field.r < 0.995  # the rim is a node anyway: drawn as the rim, not as a line
+    w = np.ma.masked_where(np.abs(w_all) < NOISE_FLOOR, w_all)[:, inner]
+    lines = nodal_lines(mode, resonant=resonant)
+    if lines is not None:
+        draw_nodal_lines(ax, lines, linewidth=linewidth)
+    else:  # structure unknown: the zero contour of the sampled field
+        ax.contour(x[:, inner], y[:, inner], w, levels=[0.0], colors=NODAL_COLOUR, linewidths=linewidth)
     if hatch:
         ax.contourf(x[:, inner], y[:, inner], w, levels=[-2.0, 0.0], colors="none",
                     hatches=["///"])
@@ -70,9 +119,10 @@ def draw_field(ax, mode, *, signs: bool = False, hatch: bool = False, radial: in
 
     ax.add_patch(Circle((0.0, 0.0), 1.0, fill=False, edgecolor=RIM_COLOUR, linewidth=2.0))
     if signs:
-        for xs, ys, sign in antinodes(field.r, field.w[0], mode.m):
+        for xs, ys, sign in antinodes(field.r, w_all[0], mode.m):
             ax.text(xs, ys, "+" if sign > 0 else "\u2212", ha="center", va="center",
-                    fontsize=14, fontweight="bold", color="black")
+                    fontsize=14, fontweight="bold", color="black",
+                    bbox=dict(boxstyle="circle,pad=0.05", fc="white", ec="none", alpha=0.6))
     ax.set_aspect("equal")
     ax.set_xlim(-1.08, 1.08)
     ax.set_ylim(-1.08, 1.08)
@@ -114,7 +164,7 @@ def antinodes(r, shape, m: int):
     return out
 
 
-def nodal_diagram(modeset, mode, *, reference: tuple[int, int] = (0, 1), size: float = 5.0):
+def nodal_diagram(modeset, mode, *, reference: tuple[int, int] | None = None, size: float = 5.0):
     """One mode's nodal diagram: nodal diameters and circles, + and - regions.
 
     Parameters
@@ -122,24 +172,39 @@ def nodal_diagram(modeset, mode, *, reference: tuple[int, int] = (0, 1), size: f
     modeset : membrane.modes.ModeSet
         Solved modes (for the ratio in the caption).
     mode : membrane.modes.Mode
-        The mode, e.g. ``modeset.find(2, 1)``; for a shell, its struck head is drawn.
-    reference : (int, int)
-        Mode the ratio in the caption is taken to.
+        The mode, e.g. ``modeset.find(2, 1)``; drawn on the head it is counted on.
+    reference : (int, int), optional
+        Mode the ratio in the caption is taken to; default the drum's principal.
     size : float
         Figure width in inches.
     """
-    fig = _figure((size, size * 1.12))
+    fig = _figure((size, size * 1.16))
     ax = fig.add_subplot()
     draw_field(ax, mode, signs=True, hatch=True)
-    ax.set_title(f"{mode_caption(modeset, mode, reference=reference)}\n"
-                 f"{physics_words(modeset.physics)}", fontsize=10)
-    fig.text(0.5, 0.01, "black lines: nodes (no motion); + and \u2212 (hatched) move in opposite directions",
-             ha="center", va="bottom", fontsize=8)
+    head = head_words(modeset, mode)
+    title = f"{mode_caption(modeset, mode, reference=reference_of(modeset, reference))}\n" \
+        f"{physics_words(modeset.physics)}" + (f"; {head} shown" if head else "")
+    # a figure title: the layout engine makes room for it (an axes title can be pushed off the top)
+    fig.suptitle(wrap_title(title, size * 0.92, 10), fontsize=10)
+    fig.text(0.5, 0.01, wrap_title("black lines: nodes (no motion); + and \u2212 (hatched) move in "
+                                   "opposite directions", size * 0.95, 8), ha="center", va="bottom", fontsize=8)
     return fig
 
 
-def mode_grid(modeset, *, count: int = 12, columns: int = 4, reference: tuple[int, int] = (0, 1),
-              title: str | None = None, width: float = 10.0):
+def grid_caption(modeset, mode, reference) -> str:
+    """A grid panel's caption: the mode, its frequency and ratio, and for two heads which one is shown."""
+    label, rest = mode_caption(modeset, mode, reference=reference, short=True).split("  ", 1)
+    head = head_words(modeset, mode)
+    if head and "head" not in label:
+        label = f"{label}\n{head}"
+    elif head:  # the label names the resonant head already
+        label = label.replace(", resonant head", "\nresonant head")
+    return f"{label}\n{rest.replace('  ', '   ')}"
+
+
+def mode_grid(modeset, *, count: int = 12, columns: int = 4, reference: tuple[int, int] | None = None,
+              title: str | None = None, width: float = 10.0, height: float | None = None,
+              fontsize: float = 9.0):
     """The first ``count`` modes by frequency, each labelled (m,n), frequency and ratio.
 
     Parameters
@@ -150,31 +215,47 @@ def mode_grid(modeset, *, count: int = 12, columns: int = 4, reference: tuple[in
         How many modes to draw (at most the number solved).
     columns : int
         Panels per row.
-    reference : (int, int)
-        Mode the ratios are taken to.
+    reference : (int, int), optional
+        Mode the ratios are taken to; default the drum's principal.
     title : str, optional
         Figure title; default the drum's name and the physics.
-    width : float
-        Figure width in inches.
+    width, height : float
+        Figure size in inches (height: default from the rows).
+    fontsize : float
+        Panel captions in points.
     """
+    reference = reference_of(modeset, reference)
     modes = list(modeset.modes)[:count]
     rows = -(-len(modes) // columns)
-    fig = _figure((width, width / columns * rows * 1.2 + 0.6))
+    two_heads = getattr(modeset.drum, "resonant_head", None) is not None
+    per_row = width / columns * (1.28 if two_heads else 1.18)
+    fig = _figure((width, height or per_row * rows + 1.4))
     axes = fig.subplots(rows, columns, squeeze=False).ravel()
     mesh = None
     for ax, mode in zip(axes, modes):
         mesh = draw_field(ax, mode, **PANEL_GRID)
-        ax.set_title(mode_caption(modeset, mode, reference=reference, short=True).replace("  ", "\n", 1),
-                     fontsize=9)
+        ax.set_title(grid_caption(modeset, mode, reference), fontsize=fontsize, linespacing=1.15)
     for ax in axes[len(modes):]:
         ax.set_axis_off()
     drum = getattr(modeset.drum, "name", "") or "drum"
-    fig.suptitle(title or f"{drum}\nfirst {len(modes)} modes by frequency, {physics_words(modeset.physics)}; "
-                 f"ratios to ({reference[0]},{reference[1]})", fontsize=10)
+    if title is None:
+        title = (f"{drum}\nfirst {len(modes)} modes by frequency, {physics_words(modeset.physics)}; "
+                 f"ratios to ({reference[0]},{reference[1]})")
+    fig.suptitle(wrap_title(title, width * 0.95, fontsize + 1), fontsize=fontsize + 1)
     if mesh is not None:
-        bar = fig.colorbar(mesh, ax=list(axes), shrink=0.5, aspect=30, pad=0.02)
-        bar.set_label("displacement (peak 1); black lines are nodes", fontsize=8)
+        bar = fig.colorbar(mesh, ax=list(axes), orientation="horizontal", shrink=0.45, aspect=35,
+                           pad=0.02, ticks=[-1, 0, 1])
+        bar.ax.set_xticklabels(["down", "0", "up"], fontsize=fontsize)
+        bar.set_label("displacement at one instant (peak 1"
+                      + ("; each head on its own scale" if two_heads else "")
+                      + "); black lines are nodes (no motion)", fontsize=fontsize)
     return fig
+
+
+def _short_label(mode) -> str:
+    """(m,n) with a shell's branch and head abbreviated, for crowded charts."""
+    words = {"in-phase": " in-ph.", "opposed": " opp."}.get(mode.branch or "", "")
+    return f"({mode.m},{mode.n}){words}" + (" res." if mode.head == "resonant" else "")
 
 
 def ratio_points(modeset, *, fit_modes=None, span: float = 1.3):
@@ -182,12 +263,15 @@ def ratio_points(modeset, *, fit_modes=None, span: float = 1.3):
 
     Returns
     -------
-    (HarmonicFit, list of dict)
+    (HarmonicFit or None, list of dict)
         The fit, and one dict per mode up to ``span`` times the highest fitted
-        frequency: ``label, m, n, harmonic_ratio`` (f / f0), ``cents`` (from the
-        nearest harmonic) and ``fitted`` (bool).
+        frequency: ``label, short, m, n, harmonic_ratio`` (f / f0), ``cents`` (from
+        the nearest harmonic) and ``fitted`` (bool). No fit (fewer than three modes):
+        (None, []).
     """
     fit = modeset.harmonic_fit(fit_modes)
+    if fit is None:
+        return None, []
     f0 = fit.fundamental
     top = span * max(modeset.find(m, n).frequency for m, n in fit.fitted)
     points = []
@@ -196,58 +280,118 @@ def ratio_points(modeset, *, fit_modes=None, span: float = 1.3):
             continue
         h = mode.frequency / f0
         nearest = max(1, int(round(h)))
-        fitted = (mode.m, mode.n) in fit.harmonics and mode.head != "resonant" and \
-            modeset.find(mode.m, mode.n) is mode
-        points.append({"label": mode.label, "m": mode.m, "n": mode.n, "harmonic_ratio": h,
-                       "cents": 1200.0 * np.log2(h / nearest), "fitted": fitted})
+        points.append({"label": mode.label, "short": _short_label(mode), "m": mode.m, "n": mode.n,
+                       "harmonic_ratio": h, "cents": 1200.0 * np.log2(h / nearest),
+                       "fitted": modeset.is_fitted(mode, fit)})
     return fit, points
 
 
-def ratio_chart(modesets, *, fit_modes=None, width: float = 11.0, height: float = 4.2):
+CENTS_MIN_SPAN = 100.0  # the chart shows at least +/- this many cents
+FIT_COLOUR = "#b2182b"
+
+
+def cents_span(points) -> float:
+    """Half-height of the chart in cents: room for the fitted modes, outliers clipped.
+
+    The fitted modes decide the scale (1.3 x their largest deviation, at least
+    +/- 100 cents, in steps of 10); any other mode beyond it is drawn on the edge,
+    with its value written beside it, instead of squashing the band of interest.
+    """
+    fitted = [abs(p["cents"]) for p in points if p["fitted"]] or [abs(p["cents"]) for p in points] or [0.0]
+    return float(min(600.0, max(CENTS_MIN_SPAN, 10.0 * np.ceil(1.3 * max(fitted) / 10.0))))
+
+
+def ratio_chart(modesets, *, fit_modes=None, width: float = 11.0, height: float = 4.2,
+                stack: str = "columns", fontsize: float = 8.0, title: bool = True, rect=None):
     """Each mode against the best harmonic series, one panel per physics model.
 
     x is the mode's frequency in units of the fitted f0 (so harmonics sit on whole
     numbers), y its deviation in cents from the nearest harmonic. Filled markers are
-    the modes the fit used, hollow ones the rest.
+    the modes the fit used, hollow ones the rest; a mode beyond the chart's height is
+    drawn as a triangle on its edge, with its deviation written out. Labels are placed
+    so they do not overlap (leader lines where they had to move out).
 
     Parameters
     ----------
     modesets : sequence of membrane.modes.ModeSet
-        The same drum solved under one or more physics models, drawn side by side.
+        The same drum solved under one or more physics models.
     fit_modes : list of (int, int), optional
         Modes for the harmonic fit; default :meth:`ModeSet.harmonic_fit`'s.
+    width, height : float
+        Figure size in inches.
+    stack : {"columns", "rows"}
+        Panels side by side, or one above the other (a portrait page).
+    fontsize : float
+        Labels in points (titles one larger).
+    title : bool
+        Give the figure its explaining title.
+    rect : (float, float, float, float), optional
+        Part of the figure the panels fill (left, bottom, width, height as fractions),
+        leaving the rest for text; default all of it.
     """
+    from .labels import place_labels
+
     modesets = list(modesets)
-    fig = _figure((max(width * len(modesets) / 3.0, 5.5), height))
-    axes = fig.subplots(1, len(modesets), sharey=True, squeeze=False)[0]
+    rows = stack == "rows"
+    size = (width, height) if rows else (max(width * len(modesets) / 3.0, 5.5), height)
+    fig = _figure(size)
+    if rect is not None:
+        fig.get_layout_engine().set(rect=rect)
+    shape = (len(modesets), 1) if rows else (1, len(modesets))
+    axes = fig.subplots(*shape, squeeze=False).ravel()
+    pending = []
     for ax, modeset in zip(axes, modesets):
         fit, points = ratio_points(modeset, fit_modes=fit_modes)
+        if fit is None:
+            ax.set_axis_off()
+            ax.text(0.5, 0.5, f"{modeset.physics}: no harmonic fit\n(fewer than 3 modes solved)",
+                    ha="center", va="center", fontsize=fontsize + 1, transform=ax.transAxes)
+            continue
+        span = cents_span(points)
         hmax = max(p["harmonic_ratio"] for p in points)
-        label_all = len(points) <= LABEL_ALL_UP_TO  # else only the fitted modes, to stay legible
-        for h in range(1, int(hmax) + 2):
-            ax.axvline(h, color="0.8", linewidth=0.8, zorder=0)
+        top = int(hmax) + 1
+        for h in range(1, top + 1):
+            ax.axvline(h, color="0.82", linewidth=0.8, zorder=0)
         ax.axhline(0.0, color="0.4", linewidth=0.8, zorder=0)
         ax.axhspan(-10, 10, color="0.92", zorder=0)
+        label_all = len(points) <= LABEL_ALL_UP_TO  # else only the fitted modes, to stay legible
+        spots, texts, colours = [], [], []
         for p in points:
             filled = p["fitted"]
-            ax.plot([p["harmonic_ratio"]], [p["cents"]], marker="o" if filled else "s",
-                    markersize=7 if filled else 5, linestyle="none",
-                    markerfacecolor="#b2182b" if filled else "white",
-                    markeredgecolor="#b2182b" if filled else "0.35", gid=p["label"])
-            if filled or label_all:
-                ax.annotate(f"({p['m']},{p['n']})", (p["harmonic_ratio"], p["cents"]),
-                            textcoords="offset points", xytext=(4, 4), fontsize=7 if filled else 6,
-                            color="black" if filled else "0.35")
-        top = int(hmax) + 1
+            y = p["cents"]
+            clipped = abs(y) > span
+            shown = float(np.clip(y, -0.94 * span, 0.94 * span))
+            marker = ("^" if y > 0 else "v") if clipped else ("o" if filled else "s")
+            ax.plot([p["harmonic_ratio"]], [shown], marker=marker,
+                    markersize=7 if filled else 5.5, linestyle="none",
+                    markerfacecolor=FIT_COLOUR if filled else "white",
+                    markeredgecolor=FIT_COLOUR if filled else "0.35", gid=p["label"], clip_on=False)
+            if filled or label_all or clipped:
+                spots.append((p["harmonic_ratio"], shown))
+                texts.append(p["short"] + (f" {y:+.0f} c" if clipped else ""))
+                colours.append("black" if filled else "0.3")
+        pending.append((ax, spots, texts, colours, [(p["harmonic_ratio"], p["cents"]) for p in points]))
         ax.set_xlim(0.5, top + 0.5)
-        ax.set_xticks(range(1, top + 1, 1 if top <= 10 else 2))
-        ax.set_xlabel("f / f0")
-        ax.set_title(f"{modeset.physics}: f0 = {fit.fundamental:.1f} Hz\n"
-                     f"rms {fit.rms_cents:.1f} cents over {len(fit.fitted)} modes", fontsize=9)
-    axes[0].set_ylabel("cents from nearest harmonic")
-    drum = getattr(modesets[0].drum, "name", "") or "drum"
-    fig.suptitle(f"{drum}\nmodes against the best harmonic series (harmonics at whole numbers)\n"
-                 "filled: modes in the fit; hollow: the others; grey band: within 10 cents", fontsize=10)
+        ax.set_ylim(-span, span)
+        ax.set_xticks(range(1, top + 1, 1 if top <= 12 else 2))
+        ax.tick_params(labelsize=fontsize)
+        ax.set_xlabel("f / f0 (harmonics at whole numbers)", fontsize=fontsize)
+        if rows or ax is axes[0]:
+            ax.set_ylabel("cents from nearest harmonic", fontsize=fontsize)
+        panel_width = size[0] / (1 if rows else len(modesets))
+        ax.set_title(wrap_title(f"{physics_words(modeset.physics)}\nf0 = {fit.fundamental:.1f} Hz, "
+                                f"rms {fit.rms_cents:.1f} cents over {len(fit.fitted)} modes",
+                                panel_width * 0.95, fontsize + 1), fontsize=fontsize + 1)
+    if title:
+        drum = getattr(modesets[0].drum, "name", "") or "drum"
+        fig.suptitle(wrap_title(f"{drum}\nmodes against the best harmonic series; filled: modes in the fit; "
+                                "hollow: the others; triangles: beyond the chart (value written); "
+                                "grey band: within 10 cents", size[0] * 0.95, fontsize + 2), fontsize=fontsize + 2)
+    for ax, spots, texts, colours, all_points in pending:  # last: labels need the final layout
+        place_labels(ax, spots, texts, fontsize=fontsize - 0.5, colors=colours,
+                     obstacles=[q for q in all_points if q not in spots])
+    if pending:
+        fig.set_layout_engine("none")  # keep the layout the labels were placed in
     return fig
 
 

@@ -1,0 +1,156 @@
+"""Pitch glide: how a partial's frequency moves over the decay.
+
+A head struck hard stretches as it swings, so its tension, and with it every partial's
+frequency, is highest just after the strike and settles as the motion dies away (tension
+modulation at large amplitude; common practice, no source at hand: toms are heard to fall
+by a semitone or more, timpani by a few cents). The partial's frequency is followed frame by
+frame along its ridge in a short-time spectrum.
+
+A glide is one partial. Its fit by damped exponentials is a comb of components spread over
+the glide (a chirp is no sum of a few exponentials), which must not be read as several
+partials, nor as a degenerate mode split by uneven tension (that is two components, each
+with its own steady frequency and envelope, beating).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+import scipy.fft
+
+WINDOW_S = 0.1  # frequency measured in frames this long [s], a quarter frame apart
+GLIDE_MIN_CENTS = 20.0  # a drift smaller than this is not called a glide (beats wobble less)
+MONOTONE_SHARE = 0.7  # share of window-to-window steps that go the glide's way
+TRACK_DB = 30.0  # the track follows the partial down this far below its loudest
+STEP_FRACTION = 0.04  # a step of the ridge from one frame to the next, at most
+
+
+@dataclass(frozen=True)
+class Track:
+    """A partial's frequency over the decay.
+
+    Attributes
+    ----------
+    times : numpy.ndarray
+        Window centres, from the start of the decay [s].
+    frequencies : numpy.ndarray
+        [Hz] in each window.
+    amplitudes : numpy.ndarray
+        Band amplitude in each window (full scale = 1).
+    """
+
+    times: np.ndarray
+    frequencies: np.ndarray
+    amplitudes: np.ndarray
+
+    @property
+    def initial(self) -> float:
+        """Frequency in the first window [Hz]."""
+        return float(self.frequencies[0])
+
+    @property
+    def settled(self) -> float:
+        """Median frequency over the last third of the track [Hz]."""
+        tail = self.frequencies[-max(1, self.frequencies.size // 3):]
+        return float(np.median(tail))
+
+    @property
+    def cents(self) -> float:
+        """Settled minus initial [cents]; negative when the partial falls."""
+        return 1200.0 * math.log2(self.settled / self.initial)
+
+    @property
+    def is_glide(self) -> bool:
+        """A steady drift of at least :data:`GLIDE_MIN_CENTS` in one direction."""
+        if self.frequencies.size < 4 or abs(self.cents) < GLIDE_MIN_CENTS:
+            return False
+        steps = np.diff(self.frequencies)
+        return float(np.mean(np.sign(steps) == np.sign(self.cents))) >= MONOTONE_SHARE
+
+
+def track(y: np.ndarray, *, frequency: float, rate: float, t_from: float = 0.0,
+          anchor_s: float | None = None) -> Track | None:
+    """The frequency of the partial near ``frequency`` frame by frame (a spectral ridge).
+
+    Hann frames of :data:`WINDOW_S`, zero-padded eightfold, every quarter frame; in each the
+    peak nearest the ridge is taken with parabolic interpolation of its log power. The ridge
+    is followed from an anchor frame (where the partial is, by default a third into the
+    decay) back to ``t_from`` and on until the peak sinks :data:`TRACK_DB` below the
+    ridge's loudest or into the noise; each step may move by at most :data:`STEP_FRACTION`
+    of the frequency (or 2 Hz).
+
+    Parameters
+    ----------
+    y : numpy.ndarray
+        The decay, full scale = 1.
+    frequency : float
+        Where the partial is at the anchor [Hz].
+    rate : float
+        Sample rate [Hz].
+    t_from : float
+        First frame starts here, from the start of the decay [s].
+    anchor_s : float or None
+        Start of the anchor frame [s].
+
+    Returns
+    -------
+    Track or None
+        None when fewer than four frames follow the partial.
+    """
+    win = int(WINDOW_S * rate)
+    hop = max(1, win // 4)
+    first = int(max(t_from, 0.0) * rate)
+    if y.size - first < 2 * win:
+        return None
+    nfft = scipy.fft.next_fast_len(8 * win, real=True)
+    hann = np.hanning(win)
+    starts = np.arange(first, y.size - win + 1, hop)
+    df = rate / nfft
+    reach = int(np.ceil((frequency * 1.6 + 10.0) / df))
+    lo_bin = max(1, int((frequency * 0.6 - 10.0) / df))
+    frames = np.stack([y[s:s + win] * hann for s in starts])
+    power = np.abs(scipy.fft.rfft(frames, nfft, axis=1)[:, lo_bin:reach]) ** 2
+    level = 10 * np.log10(power + 1e-300)
+    floor = np.median(level, axis=1)  # a frame's own noise: most of its bins hold none
+    anchor = int(np.clip(round(((anchor_s if anchor_s is not None else (y.size / rate) / 3)
+                                 * rate - first) / hop), 0, starts.size - 1))
+    step = max(2.0, STEP_FRACTION * frequency) / df
+
+    def peak(k, guess):
+        a, b = int(max(1, guess - step)), int(min(level.shape[1] - 2, guess + step))
+        if b <= a:
+            return None
+        j = a + int(np.argmax(level[k, a:b + 1]))
+        l0, l1, l2 = level[k, j - 1], level[k, j], level[k, j + 1]
+        den = l0 - 2 * l1 + l2
+        d = 0.5 * (l0 - l2) / den if den < 0 else 0.0
+        return j + d, l1 - 0.25 * (l0 - l2) * d
+
+    freq = {}
+    amp = {}
+    guess = frequency / df - lo_bin
+    got = peak(anchor, guess)
+    if got is None:
+        return None
+    for direction in (-1, 1):
+        guess = got[0]
+        k = anchor if direction == -1 else anchor + 1
+        while 0 <= k < starts.size:
+            here = peak(k, guess)
+            if here is None or here[1] < floor[k] + 10.0:
+                break
+            freq[k], amp[k] = here
+            guess = here[0]
+            k += direction
+    keys = sorted(freq)
+    if len(keys) < 4:
+        return None
+    loud = max(amp.values())
+    keys = [k for k in keys if amp[k] >= loud - TRACK_DB]
+    # keep the stretch that reaches back to the first frame kept
+    times = (starts[keys] - first + win / 2) / rate + max(t_from, 0.0)
+    f = (np.array([freq[k] for k in keys]) + lo_bin) * df
+    a = 10 ** (np.array([amp[k] for k in keys]) / 20) * 2.0 / hann.sum()
+    return Track(times=times, frequencies=f, amplitudes=a)

@@ -1,0 +1,401 @@
+"""The partials of a decay: frequency, level at a reference time, decay time, glide, flags.
+
+A partial is modelled as a damped sinusoid ``A exp(-r t) cos(2 pi f t + phi)``: frequency
+``f`` [Hz], amplitude decay rate ``r`` [1/s] and reverberation-style decay time
+``T60 = 3 ln(10) / r`` [s], the time the partial takes to fall by 60 dB. Its *level* is its
+amplitude at one reference time, :data:`REFERENCE_TIME_S` after the strike's onset, in dB
+relative to the strongest partial there. That time is inside the decay that was measured
+(the decay begins when the mallet leaves, a few milliseconds after the onset), so no level
+is an extrapolation towards the strike, where a fast-dying component would be blown up by
+exp(r t).
+
+The method: seeds from long- and short-window spectra (:mod:`.seeding`), damped
+exponentials band by band (:mod:`.esprit`), and frequency tracks of the strong partials
+(:mod:`.glide`) that turn a comb of components along a glide back into one partial.
+
+Approximations: each partial is assumed to decay exponentially; a partial whose decay is
+not exponential (two-stage decay, strong beating with a third partial) is reported with its
+best exponential fit; a glide's decay time comes from its band's envelope.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+import scipy.fft
+
+from membrane.errors import InputError, RecordingError
+
+from . import esprit
+from .audio import Recording
+from .glide import Track, track
+from .onset import find_strike
+from .seeding import seeds as find_seeds
+
+LN1000 = esprit.LN1000
+
+REFERENCE_TIME_S = 0.02  # levels are amplitudes this long after the strike's onset [s]
+MIN_DURATION_S = 0.1  # shortest decay worth analysing
+MAX_DURATION_S = 10.0  # longest decay analysed: enough for 0.01 Hz, and bounded work
+DEFAULT_FLOOR_DB = -50.0
+DEFAULT_MAX_PARTIALS = 32
+MIN_FREQUENCY_HZ = 20.0  # below this: rumble and DC, not a partial of a drumhead
+STRIKE_CONTRAST_DB = 6.0  # the loudest 20 ms stands this far above the quietest tenth
+GLIDE_TRACK_DB = -30.0  # partials this strong (re the strongest) are tracked for glide
+GLIDE_MIN_T60_S = 0.2  # and ring at least this long
+NO_PARTIALS = "no drum partials stand above the noise"
+
+
+@dataclass(frozen=True)
+class Partial:
+    """One damped sinusoid of a decay.
+
+    Attributes
+    ----------
+    frequency : float
+        Frequency at the reference time [Hz].
+    amplitude : float
+        Amplitude at the reference time (full scale = 1).
+    decay_rate : float
+        Amplitude decay rate r [1/s]; the partial goes as ``exp(-r t)``.
+    level_db : float
+        Amplitude at the reference time in dB relative to the strongest partial.
+    glide_cents : float
+        Settled minus initial frequency [cents], 0 for a steady partial.
+    settled_frequency : float or None
+        Frequency once the glide has settled [Hz]; None means the same as ``frequency``.
+    flags : tuple of str
+        ``"glide"``, ``"fast"`` (decays faster than the analysis resolves well: level and
+        T60 uncertain), ``"steady"`` (does not decay: hum, not a drum partial).
+    """
+
+    frequency: float
+    amplitude: float
+    decay_rate: float
+    level_db: float = 0.0
+    glide_cents: float = 0.0
+    settled_frequency: float | None = None
+    flags: tuple[str, ...] = ()
+
+    @property
+    def t60(self) -> float | None:
+        """Time to fall by 60 dB [s], ``3 ln 10 / r``; None if the partial does not decay."""
+        return LN1000 / self.decay_rate if self.decay_rate > 0 else None
+
+    @property
+    def settled(self) -> float:
+        """The settled frequency [Hz] (the frequency, for a partial that does not glide)."""
+        return self.frequency if self.settled_frequency is None else self.settled_frequency
+
+
+@dataclass(frozen=True)
+class Analysis:
+    """What a recording's decay is made of.
+
+    Attributes
+    ----------
+    partials : tuple of Partial
+        Every partial above the floor, sorted by frequency.
+    rate : float
+        Sample rate [Hz].
+    strike_time : float
+        When the strike begins, from the start of the file [s].
+    start_time, end_time : float
+        The analysed stretch of the decay, from the start of the file [s].
+    warnings : tuple of str
+        Things the user should know (clipping, a second strike, no partials, ...).
+    reference_time : float
+        When the levels are taken, from the start of the file [s].
+    """
+
+    partials: tuple[Partial, ...]
+    rate: float
+    strike_time: float
+    start_time: float
+    end_time: float
+    warnings: tuple[str, ...] = ()
+    reference_time: float = field(default=math.nan)
+
+    def strongest(self, count: int) -> tuple[Partial, ...]:
+        """The ``count`` strongest partials, sorted by frequency (for display)."""
+        kept = sorted(self.partials, key=lambda p: -p.amplitude)[:count]
+        return tuple(sorted(kept, key=lambda p: p.frequency))
+
+
+def analyse(recording: Recording, *, floor_db: float = DEFAULT_FLOOR_DB,
+            max_partials: int | None = None,
+            min_frequency: float = MIN_FREQUENCY_HZ) -> Analysis:
+    """Find the strike in a recording and the partials of its decay.
+
+    Parameters
+    ----------
+    recording : Recording
+    floor_db : float
+        Partials weaker than this, in dB relative to the strongest, are left out (< 0).
+    max_partials : int or None
+        Return only this many (the strongest); the analysis itself does not depend on it.
+    min_frequency : float
+        Lowest frequency reported [Hz].
+
+    Returns
+    -------
+    Analysis
+        With no partials and a warning when none stands above the noise (white noise, a
+        constant offset, no strike).
+
+    Raises
+    ------
+    RecordingError
+        If the recording is silent, too short, not finite, or its partials reach the
+        Nyquist limit.
+    """
+    if not floor_db < 0:
+        raise InputError("floor", floor_db, "a level below the strongest partial, in dB (< 0)")
+    if max_partials is not None and max_partials < 1:
+        raise InputError("max-partials", max_partials, "a whole number of at least 1")
+    x, rate = recording.samples, recording.rate
+    if x.size < MIN_DURATION_S * rate:
+        raise RecordingError(f"recording is {x.size / rate:.3f} s long; "
+                             f"need at least {MIN_DURATION_S} s of decay after the strike")
+    if not np.all(np.isfinite(x)):
+        raise RecordingError("recording holds NaN or infinite samples")
+    if not np.any(x):
+        raise RecordingError("recording is silent (every sample is zero)")
+    # a constant offset (a microphone preamp's DC) is no partial and would hide the strike
+    x = x - float(np.mean(x))
+    peak = float(np.max(np.abs(x)))
+    if peak <= 1e-12 * max(1.0, float(np.max(np.abs(recording.samples)))):
+        return _empty(rate, f"{NO_PARTIALS}: the recording holds only a constant offset (DC)")
+    if _strike_contrast_db(x, rate) < STRIKE_CONTRAST_DB:
+        return _empty(rate, f"{NO_PARTIALS}: no strike rises {STRIKE_CONTRAST_DB:.0f} dB above "
+                      "the rest of the recording (noise or a steady sound?)")
+    onset, start, end = find_strike(x, rate=rate, min_frequency=min_frequency)
+    end = min(end, start + int(MAX_DURATION_S * rate))
+    notes = []
+    if recording.clipped >= 3:
+        stuck = np.nonzero(np.abs(recording.samples) >= np.max(np.abs(recording.samples))
+                           * (1 - 1e-6))[0]
+        later = stuck[-1] + int(0.002 * rate)
+        notes.append(f"recording is clipped ({recording.clipped} samples at full scale): "
+                     "the decay is analysed after the clipping ends; record at a lower gain")
+        if later < end - MIN_DURATION_S * rate:
+            start = max(start, later)
+    if end < x.size and end - start >= MIN_DURATION_S * rate and \
+            np.max(np.abs(x[end:])) > 0.1 * np.max(np.abs(x[start:end])):
+        notes.append(f"a second strike at {end / rate:.2f} s; only the decay before it is used")
+    if end - start < MIN_DURATION_S * rate:
+        raise RecordingError(f"only {(end - start) / rate:.3f} s of decay after the strike; "
+                             f"need at least {MIN_DURATION_S} s")
+    reference = onset + REFERENCE_TIME_S * rate
+    if start > reference:
+        notes.append(f"the decay is measured from {(start - onset) / rate * 1e3:.0f} ms after "
+                     f"the strike; levels at {REFERENCE_TIME_S * 1e3:.0f} ms are extrapolated "
+                     "back along each partial's decay")
+    partials = find_partials(x[start:end], rate=rate, floor_db=floor_db,
+                             min_frequency=min_frequency, time_origin=(start - onset) / rate)
+    if not partials:
+        return _empty(rate, f"{NO_PARTIALS} of this recording", onset=onset, start=start,
+                      end=end, notes=notes)
+    nyquist = rate / 2
+    near = [p for p in partials if p.frequency > 0.95 * nyquist and p.level_db > -30.0]
+    if near:
+        raise RecordingError(
+            f"sample rate {rate:g} Hz is too low: a strong partial at {near[0].frequency:.0f} Hz "
+            f"sits at the Nyquist limit {nyquist:g} Hz, so higher partials are missing or folded "
+            "back; record at 44.1 kHz or 48 kHz")
+    result = Analysis(partials=partials, rate=rate, strike_time=onset / rate,
+                      start_time=start / rate, end_time=end / rate, warnings=tuple(notes),
+                      reference_time=reference / rate)
+    if max_partials is not None:
+        result = Analysis(**{**result.__dict__, "partials": result.strongest(max_partials)})
+    return result
+
+
+def _empty(rate, why, *, onset=0, start=0, end=0, notes=()) -> Analysis:
+    return Analysis(partials=(), rate=rate, strike_time=onset / rate, start_time=start / rate,
+                    end_time=end / rate, warnings=tuple(notes) + (why,),
+                    reference_time=onset / rate + REFERENCE_TIME_S)
+
+
+def _strike_contrast_db(x: np.ndarray, rate: float) -> float:
+    """Loudest 20 ms frame over the 10th percentile of the frames, in dB.
+
+    A tap stands out of its own decay's end or of the noise before it; the 20 ms frames of
+    steady noise differ by a dB or so (each holds hundreds of independent samples).
+    """
+    hop = max(1, int(0.02 * rate))
+    nfr = x.size // hop
+    if nfr < 3:
+        return math.inf
+    e = np.mean(x[: nfr * hop].reshape(nfr, hop) ** 2, axis=1)
+    med = float(np.percentile(e, 10))
+    return math.inf if med <= 0 else 10.0 * math.log10(float(e.max()) / med)
+
+
+def find_partials(decay: np.ndarray, *, rate: float, floor_db: float = DEFAULT_FLOOR_DB,
+                  max_partials: int | None = None,
+                  min_frequency: float = MIN_FREQUENCY_HZ,
+                  time_origin: float = 0.0,
+                  reference_time: float = REFERENCE_TIME_S) -> tuple[Partial, ...]:
+    """Fit a sum of damped sinusoids to a decay.
+
+    Parameters
+    ----------
+    decay : numpy.ndarray
+        Samples of the decay (full scale = 1), starting after the strike.
+    rate : float
+        Sample rate [Hz].
+    floor_db : float
+        Leave out partials weaker than this relative to the strongest [dB].
+    max_partials : int or None
+        Return only this many (the strongest); the others are found all the same.
+    min_frequency : float
+        Lowest frequency reported [Hz].
+    time_origin : float
+        How long after the strike's onset ``decay[0]`` is [s].
+    reference_time : float
+        When the levels are taken, after the onset [s].
+
+    Returns
+    -------
+    tuple of Partial
+        Sorted by frequency.
+    """
+    y = np.asarray(decay, dtype=float)
+    n = y.size
+    nfft = scipy.fft.next_fast_len(2 * n, real=True)
+    spectrum = scipy.fft.rfft(y, nfft)
+    seeds, grid, noise_var = find_seeds(y, rate=rate, floor_db=floor_db,
+                                        min_frequency=min_frequency)
+    # seeds within half a band of each other share one band
+    groups: list[list[float]] = []
+    for f in seeds:
+        if groups and f - groups[-1][0] < 0.5 * esprit.BAND_HALF_HZ:
+            groups[-1].append(f)
+        else:
+            groups.append([f])
+    shift = reference_time - time_origin  # from the start of the decay to the reference
+    bands, rates = [], []
+    for i, group in enumerate(groups):
+        fc = 0.5 * (group[0] + group[-1])
+        # each frequency belongs to the nearest band, within its flat part
+        lo = 0.5 * (groups[i - 1][-1] + group[0]) if i > 0 else -np.inf
+        hi = 0.5 * (group[-1] + groups[i + 1][0]) if i + 1 < len(groups) else np.inf
+        lo, hi = max(lo, fc - esprit.BAND_HALF_HZ), min(hi, fc + esprit.BAND_HALF_HZ)
+        band = esprit.cut_band(spectrum, fc=fc, rate=rate, nfft=nfft, n=n,
+                               noise_var=float(np.interp(fc, grid, noise_var)))
+        s = esprit.band_poles(band)
+        f = s.imag / (2 * np.pi)
+        s = s[(f >= lo) & (f < hi) & (f >= min_frequency) & (f < rate / 2)]
+        bands.append(band)
+        rates.append(s)
+    # amplitudes twice: first each band alone, then with every other band's components'
+    # leakage (their start-up steps) taken out
+    amps = [esprit.band_amplitudes(b, s) if s.size else s for b, s in zip(bands, rates)]
+    slow = [np.abs(s.real) < esprit.FASTEST_RATE for s in rates]
+    for _ in range(2):
+        every_s = np.concatenate([s[k] for s, k in zip(rates, slow)] + [np.zeros(0, complex)])
+        every_c = np.concatenate([c[k] for c, k in zip(amps, slow)] + [np.zeros(0, complex)])
+        owner = np.concatenate([np.full(int(k.sum()), i) for i, k in enumerate(slow)]
+                               + [np.zeros(0, int)])
+        amps = [esprit.band_amplitudes(b, s, others=(every_s[owner != i], every_c[owner != i]))
+                if s.size else s for i, (b, s) in enumerate(zip(bands, rates))]
+    found: list[esprit.Component] = []
+    for b, s, c in zip(bands, rates, amps):
+        found += [comp for comp in esprit.components(b, s, c)
+                  if comp.decay_rate < esprit.FASTEST_RATE]
+    if not found:
+        return ()
+    parts = [_partial(c, shift) for c in found]
+    parts = _merge_glides(parts, found, y=y, rate=rate, shift=shift)
+    top = max(p.amplitude for p in parts)
+    kept = []
+    for p in parts:
+        level = 20 * math.log10(p.amplitude / top)
+        if level >= floor_db:
+            kept.append(Partial(**{**p.__dict__, "level_db": level}))
+    if max_partials is not None:
+        kept = sorted(kept, key=lambda p: -p.amplitude)[:max_partials]
+    return tuple(sorted(kept, key=lambda p: p.frequency))
+
+
+def _partial(c: esprit.Component, shift: float) -> Partial:
+    """A band component as a partial, its amplitude carried to the reference time."""
+    flags = []
+    if c.decay_rate <= 0:
+        flags.append("steady")
+    elif LN1000 / c.decay_rate < esprit.FAST_T60_S:
+        flags.append("fast")
+    return Partial(frequency=c.frequency, amplitude=c.amplitude * math.exp(-c.decay_rate * shift),
+                   decay_rate=c.decay_rate, flags=tuple(flags))
+
+
+def _merge_glides(parts, comps, *, y, rate, shift) -> list[Partial]:
+    """Replace the comb of components along each gliding partial by that one partial."""
+    top = max(p.amplitude for p in parts)
+    order = sorted(range(len(parts)), key=lambda i: -parts[i].amplitude)
+    used: set[int] = set()
+    out: list[Partial] = []
+    t_ref = max(shift, 0.0)
+    for i in order:
+        if i in used:
+            continue
+        p = parts[i]
+        if p.amplitude < top * 10 ** (GLIDE_TRACK_DB / 20) or p.t60 is None or \
+                p.t60 < GLIDE_MIN_T60_S:
+            continue
+        # anchor where the partial has fallen 15 dB: late enough to have settled
+        anchor = min(15.0 / 60.0 * p.t60, 0.6 * y.size / rate)
+        tr = track(y, frequency=p.frequency, rate=rate, t_from=t_ref, anchor_s=anchor)
+        if tr is None or not tr.is_glide:
+            continue
+        lo = float(tr.frequencies.min()) - 1.5
+        hi = float(tr.frequencies.max()) + 1.5
+        members = [j for j in range(len(parts)) if j not in used and lo <= parts[j].frequency <= hi]
+        if len(members) < 1:
+            continue
+        used.update(members)
+        out.append(_glide_partial([comps[j] for j in members], tr, shift))
+    out += [p for j, p in enumerate(parts) if j not in used]
+    return out
+
+
+def _glide_partial(comps, tr: Track, shift: float) -> Partial:
+    """One partial from the comb that fits a glide: the comb's sum at the reference time."""
+    s = np.array([-c.decay_rate + 2j * np.pi * c.frequency for c in comps])
+    a = np.array([c.amplitude * np.exp(1j * c.phase) for c in comps])
+    amplitude = float(abs(np.sum(a * np.exp(s * shift))))
+    # decay rate from the track's envelope: a log-linear fit over the tracked windows
+    slope = np.polyfit(tr.times, np.log(np.maximum(tr.amplitudes, 1e-300)), 1)[0]
+    rate = max(float(-slope), 1e-6)
+    return Partial(frequency=tr.initial, amplitude=amplitude, decay_rate=rate,
+                   glide_cents=tr.cents, settled_frequency=tr.settled, flags=("glide",))
+
+
+def decay_spectrum(recording: Recording, analysis: Analysis) -> tuple[np.ndarray, np.ndarray]:
+    """Spectrum of the analysed decay, for pictures.
+
+    The window is the falling half of a Hann window (full weight at the start of the decay,
+    zero at its end), so that a partial that dies fast shows as strongly as it sounded,
+    rather than being faded out as a symmetric window would.
+
+    Returns
+    -------
+    frequencies : numpy.ndarray
+        [Hz]
+    level_db : numpy.ndarray
+        Power in dB relative to the highest peak.
+    """
+    i0 = int(round(analysis.start_time * recording.rate))
+    i1 = int(round(analysis.end_time * recording.rate))
+    y = recording.samples[i0:i1]
+    if y.size < 2:
+        y = recording.samples
+    y = y - np.mean(y)
+    window = np.cos(0.5 * np.pi * np.arange(y.size) / y.size) ** 2
+    nfft = scipy.fft.next_fast_len(4 * y.size, real=True)
+    power = np.abs(scipy.fft.rfft(y * window, nfft)) ** 2
+    level = 10 * np.log10(power / max(power.max(), 1e-300) + 1e-30)
+    return np.arange(power.size) * recording.rate / nfft, level

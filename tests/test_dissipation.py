@@ -1,0 +1,181 @@
+"""Losses besides radiation, each checked alone against its source (membrane/physics/dissipation.py)."""
+
+import math
+
+import numpy as np
+import pytest
+
+from membrane.drum import Air, Body, Drum, Head
+from membrane.losses import Losses
+from membrane.physics import dissipation as dz
+from membrane.physics.cavity import duct_terms
+from membrane.physics.coupled import full_modes
+from membrane.solver import solve
+
+AIR = Air.from_conditions(temperature=293.15)
+NO_LOSS = Losses(tension_loss_factor=0.0, film_loss_factor=0.0, boundary_layers=False, edge_mobility=0.0)
+
+
+def test_sutherland_viscosity_of_air_at_20_degc():
+    # from memory: air at 20 degC has mu = 1.81e-5 Pa s (Kaye & Laby tables)
+    assert dz.air_viscosity(293.15) == pytest.approx(1.81e-5, rel=0.005)
+    assert dz.air_temperature(AIR.sound_speed) == pytest.approx(293.15, rel=1e-12)
+
+
+def test_layer_admittances_against_the_published_numbers():
+    # Bruneau, Herzog, Kergomard & Polack (1989), as reproduced in J. Kemp's thesis (Edinburgh
+    # 2002, eq. 2.54; SECONDARY): for air at standard conditions the specific wall admittances
+    # are eps_v = (1+i) 2.03e-5 sqrt(f) (viscous, grazing flow) and eps_t = (1+i) 0.95e-5 sqrt(f)
+    mu = dz.air_viscosity(293.15)
+    rho, c = AIR.density, AIR.sound_speed
+    for f in (100.0, 1000.0):
+        omega = 2 * math.pi * f
+        zv = dz.viscous_layer_impedance(omega, density=rho, viscosity=mu)
+        yt = dz.thermal_layer_admittance(omega, density=rho, sound_speed=c, viscosity=mu)
+        # a grazing plane wave has u_t = p / (rho c): specific admittance z_v / (rho c)
+        assert zv.real / (rho * c) == pytest.approx(2.03e-5 * math.sqrt(f), rel=0.03)
+        assert (yt * rho * c).real == pytest.approx(0.95e-5 * math.sqrt(f), rel=0.03)
+        assert zv.imag == pytest.approx(zv.real) and yt.imag == pytest.approx(yt.real)
+
+
+def _piston_on_tube(radius, length, mass, stiffness, *, lossy_line=False):
+    """Complex root of a rigid piston (mass, spring) closing a rigid tube: the plane mode only.
+
+    With lossy_line, the tube is the textbook lossy transmission line instead of the lossless
+    duct plus the boundary-layer term of dissipation.py."""
+    rho, c = AIR.density, AIR.sound_speed
+    mu = dz.air_viscosity(293.15)
+    nu = mu / rho
+    area = math.pi * radius**2
+    gamma, norms = np.zeros(1), np.array([0.5 * radius**2])
+    v = 0.5 * radius**2  # <1, psi_0> over the radius
+
+    def z(omega):
+        k = omega / c
+        if lossy_line:
+            # Kirchhoff's wide-tube line (Keefe, JASA 75, 58 (1984), first order; Pierce,
+            # Acoustics, 1981, sec. 10-5): series impedance i w rho (1 + eps_v), shunt admittance
+            # i w / (rho c^2) (1 + eps_t), eps_v = (1 - i) delta_v / a,
+            # eps_t = (gamma - 1)(1 - i) delta_t / a
+            dv = np.sqrt(2 * nu / omega)
+            dt = dv / np.sqrt(dz.PRANDTL_AIR)
+            ev = (1 - 1j) * dv / radius
+            et = (1.4 - 1) * (1 - 1j) * dt / radius
+            kc = k * np.sqrt((1 + ev) * (1 + et))
+            zc = rho * c * np.sqrt((1 + ev) / (1 + et))
+            air = omega * area * zc / np.tan(kc * length)
+        else:
+            fcot, _ = duct_terms(np.array([k]), gamma, length)
+            air = rho * omega**2 * 2 * math.pi * fcot[0, 0] * v * v / norms[0]
+            pi, ups = dz.duct_wall_forms(np.array([k]), gamma=gamma, norms=norms, radius=radius,
+                                         depth=length, m=0, faces=False)
+            zv = dz.viscous_layer_impedance(omega, density=rho, viscosity=mu)
+            yt = dz.thermal_layer_admittance(omega, density=rho, sound_speed=c, viscosity=mu)
+            w = v / norms[0]
+            air = air + w * w * (1j * omega**3 * rho**2 * yt * pi[0, 0, 0] + 1j * omega * zv * ups[0, 0, 0])
+        return stiffness - omega**2 * mass + air
+
+    w0, w1 = math.sqrt(stiffness / mass) * (1 + 0j), math.sqrt(stiffness / mass) * 1.01
+    f0, f1 = z(w0), z(w1)
+    for _ in range(60):
+        w0, w1, f0 = w1, w1 - f1 * (w1 - w0) / (f1 - f0), f1
+        f1 = z(w1)
+        if abs(w1 - w0) < 1e-13 * abs(w1):
+            break
+    return w1
+
+
+@pytest.mark.parametrize("radius, length, f_piston", [(0.05, 0.5, 200.0), (0.02, 0.3, 900.0)])
+def test_tube_wall_losses_match_kirchhoffs_lossy_line(radius, length, f_piston):
+    # the decay a tube's boundary layers give a piston on it: the duct-field term of
+    # dissipation.py against the textbook lossy line (Kirchhoff 1868; Keefe 1984)
+    mass = 0.01
+    stiffness = mass * (2 * math.pi * f_piston) ** 2
+    ours = _piston_on_tube(radius, length, mass, stiffness)
+    book = _piston_on_tube(radius, length, mass, stiffness, lossy_line=True)
+    assert ours.imag > 0
+    assert ours.imag == pytest.approx(book.imag, rel=0.01)
+    assert ours.real == pytest.approx(book.real, rel=1e-5)
+
+
+def test_side_wall_integrals_of_a_plane_wave():
+    # the closed forms of duct_wall_forms against direct integrals of p = cos(k u) over a
+    # tube's side wall: int p^2 dS and int (dp/du)^2 dS (elementary calculus)
+    a, L = 0.05, 0.5
+    k = 1.3 * math.pi / L  # any k: the forms are integrals of e_1 = cos(k u)/(k sin kL)
+    pi, ups = dz.duct_wall_forms(np.array([k + 0j]), gamma=np.zeros(1), norms=np.array([a * a / 2]),
+                                 radius=a, depth=L, m=0, faces=False)
+    scale = (k * math.sin(k * L)) ** 2  # undo the 1/(k sin kL) of e_1
+    p2 = (2 * math.pi * a) * (L / 2 + math.sin(2 * k * L) / (4 * k))  # int cos^2(k u) over the wall
+    g2 = (2 * math.pi * a) * k * k * (L / 2 - math.sin(2 * k * L) / (4 * k))  # int (d/du cos)^2
+    assert (pi[0, 0, 0] * scale).real == pytest.approx(p2, rel=1e-10)
+    assert (ups[0, 0, 0] * scale).real == pytest.approx(g2, rel=1e-10)
+
+
+def test_complex_tension_gives_q_of_one_over_eta():
+    # complex-modulus result (Ross, Ungar & Kerwin 1959): a pure-tension membrane with tension
+    # T (1 + i eta) has omega^2 = (1 + i eta) omega_0^2, Q = 1/eta in every mode
+    eta = 4e-3
+    head = Head(radius=0.33, tension=4000.0, areal_density=0.26)
+    thin_air = Air(density=1e-9, sound_speed=343.24)  # radiation negligible
+    drum = Drum(head=head, air=thin_air, losses=Losses(tension_loss_factor=eta, film_loss_factor=0.0,
+                                                        boundary_layers=False))
+    for mode in solve(drum, "full", m_max=3, n_max=2, losses="all"):
+        w2 = mode.omega**2
+        assert w2.imag / w2.real == pytest.approx(eta, rel=1e-4), mode.label
+
+
+def test_complex_modulus_damps_by_the_bending_energy_fraction():
+    # modal strain energy method (Ungar & Kerwin, JASA 34, 954 (1962)): with E (1 + i eta) only,
+    # a mode's loss factor is eta times the bending share of its strain energy, which is
+    # (D / omega^2) d(omega^2)/dD at fixed tension (here from the in-vacuum stiff roots)
+    eta = 0.02
+    base = dict(radius=0.1, tension=300.0, areal_density=1.39, thickness=1e-3, youngs_modulus=4.5e9)
+    thin_air = Air(density=1e-9, sound_speed=343.24)
+    drum = Drum(head=Head(**base), air=thin_air,
+                losses=Losses(tension_loss_factor=0.0, film_loss_factor=eta, boundary_layers=False))
+    full = {(mo.m, mo.n): mo for mo in solve(drum, "full", m_max=2, n_max=2)}
+    h = 1e-4
+    up = {(mo.m, mo.n): mo.frequency for mo in solve(
+        Drum(head=Head(**{**base, "youngs_modulus": 4.5e9 * (1 + h)})), "stiff", m_max=2, n_max=2)}
+    dn = {(mo.m, mo.n): mo.frequency for mo in solve(
+        Drum(head=Head(**{**base, "youngs_modulus": 4.5e9 * (1 - h)})), "stiff", m_max=2, n_max=2)}
+    for key, mo in full.items():
+        share = (up[key] ** 2 - dn[key] ** 2) / (2 * h) / (mo.omega.real / (2 * math.pi)) ** 2
+        assert 0.05 < share < 0.95  # a head where both parts matter
+        w2 = mo.omega**2
+        assert w2.imag / w2.real == pytest.approx(eta * share, rel=2e-3), key
+
+
+def test_resistive_rim_damps_every_ideal_mode_alike():
+    # derived from the mobility power formula P = Re(Y) |F|^2 / 2 (Cremer, Heckl & Petersson,
+    # Structure-Borne Sound, 2005) with the edge force F = T w'(a) of an ideal membrane mode:
+    # Im omega = Y T / a, the same for every mode
+    a, tension, y = 0.2, 2000.0, 2e-6
+    drum = Drum(head=Head(radius=a, tension=tension, areal_density=0.2), air=Air(density=1e-9, sound_speed=343.24),
+                losses=Losses(tension_loss_factor=0.0, film_loss_factor=0.0, boundary_layers=False,
+                              edge_mobility=y))
+    for mode in solve(drum, "full", m_max=3, n_max=2):
+        assert mode.omega.imag == pytest.approx(y * tension / a, rel=2e-3), mode.label
+
+
+def test_radiation_only_is_the_lossless_operator_bit_for_bit():
+    # --losses radiation must leave the earlier solver untouched
+    drum = Drum(head=Head(radius=0.33, tension=4000.0, areal_density=0.26, thickness=1.9e-4,
+                          youngs_modulus=4.5e9), body=Body("kettle", volume=0.17))
+    old = full_modes(drum, m_max=2, n_max=1)
+    new = solve(drum, "full", m_max=2, n_max=1, losses="radiation")
+    by = {(mo.m, mo.n): mo.omega for mo in new}
+    assert all(by[(mo.m, mo.n)] == mo.omega for mo in old)
+    lossy = {(mo.m, mo.n): mo.omega for mo in solve(drum, "full", m_max=2, n_max=1)}
+    assert all(lossy[k].imag > by[k].imag for k in by)
+    assert all(abs(lossy[k].real / by[k].real - 1) < 2e-3 for k in by)  # losses barely move pitch
+
+
+def test_no_losses_adds_nothing():
+    drum = Drum(head=Head(radius=0.33, tension=4000.0, areal_density=0.26), body=Body("kettle", volume=0.17),
+                losses=NO_LOSS)
+    a = {(mo.m, mo.n): mo.omega for mo in solve(drum, "full", m_max=1, n_max=1, losses="all")}
+    b = {(mo.m, mo.n): mo.omega for mo in solve(drum, "full", m_max=1, n_max=1, losses="radiation")}
+    for key in a:
+        assert a[key] == pytest.approx(b[key], rel=1e-9)
