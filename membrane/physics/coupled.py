@@ -527,13 +527,15 @@ class RootSet:
         return Keff, Meff
 
     def order_operator(self, i, omega, *, outer: float = 1.0, body: float = 1.0,
-                       head: bool = True, skip_ducts: int = 0, only_ducts: int | None = None):
+                       head: bool = True, skip_ducts: int = 0, only_ducts: int | None = None,
+                       duct_weights=None):
         r"""Z(omega) of order i, N/m: (len omega, size, size) complex.
 
         ``outer`` and ``body`` scale the outside and inside air (0 switches them off);
         ``head`` False leaves out K - omega^2 M (with outer 0: the body's S alone);
         ``skip_ducts`` leaves out the lowest duct modes (the contour solve gives them
-        unknowns of their own, spectrum.py); ``only_ducts`` keeps only the lowest ones.
+        unknowns of their own, spectrum.py); ``only_ducts`` keeps only the lowest ones;
+        ``duct_weights`` scales each duct mode's term.
         """
         d, order = self.data[i], self.orders[i]
         w = np.atleast_1d(np.asarray(omega, dtype=complex))
@@ -559,6 +561,9 @@ class RootSet:
             if only_ducts is not None:
                 fcot[:, only_ducts:] = 0.0
                 fcsc[:, only_ducts:] = 0.0
+            if duct_weights is not None:  # (P, Q) or (Q,): each duct mode's term scaled
+                fcot = fcot * duct_weights
+                fcsc = fcsc * duct_weights
             V, off = d["V"], d["offsets"]
             for a_ in range(len(V)):
                 for b_ in range(len(V)):
@@ -933,15 +938,32 @@ def _mode_energy(order, vectors) -> np.ndarray:
     return e / np.where(total > 0, total, 1.0)[:, None, None]
 
 
+def _mode_amplitudes(order, vectors, n_max: int):
+    """Mass-weighted amplitudes of in-vacuum modes 1..n_max on the two heads, each (R, n_max)."""
+    out = []
+    for h, head in enumerate(order.heads):
+        lo = sum(x.size for x in order.heads[:h])
+        coef = np.array([head.unit.to_basis(v[lo: lo + head.size])[:n_max] for v in vectors])
+        mass = head.head.areal_density * head.radius**2 * head.unit.basis.modal_mass[:n_max]
+        out.append(coef * np.sqrt(mass)[None, :])
+    return out[0], out[1]
+
+
 def _covered(order, omega, vectors, frac, top: float, n_max: int) -> bool:
     """Whether the roots found below angular frequency ``top`` hold each head's first n_max
     in-vacuum modes (their energy shares, weighted by head fraction, add up to 0.6 or more
     over the roots) with room above the highest (a factor 1.25)."""
     e = _mode_energy(order, vectors)[:, :, :n_max] * frac[:, None, None]
-    if not np.all(e.sum(axis=0) >= 0.6):
-        return False
-    best = np.argmax(e, axis=0)  # the root holding most of each mode
-    return bool(top >= 1.25 * np.max(omega[best].real))
+    if np.all(e.sum(axis=0) >= 0.6):
+        best = np.argmax(e, axis=0)  # the root holding most of each mode
+        if top >= 1.25 * np.max(omega[best].real):
+            return True
+    # a body that reshapes the modes (a very stiff air spring) spreads each in-vacuum mode
+    # over many roots: then enough head-like roots, with room above, is the test
+    need = n_max * len(order.heads)
+    head_like = np.sort(omega[frac >= 0.5].real)
+    return bool(np.sum(frac) >= need + 0.5 and len(head_like) >= need
+                and top >= 1.25 * head_like[need - 1])
 
 
 def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) -> list:
@@ -962,12 +984,37 @@ def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) 
         return labels
     e = _mode_energy(order, vectors)[:, :, :n_max] * frac[:, None, None]
     heads = len(order.heads)
-    score = e.reshape(R, heads * n_max)
-    rows, cols = linear_sum_assignment(-score)
     top = -np.inf
-    for r, f in zip(rows, cols):
-        labels[r] = ("head", int(f // n_max), int(f % n_max) + 1)
-        top = max(top, omega[r].real)
+    if heads == 1:
+        rows, cols = linear_sum_assignment(-e[:, 0, :])
+        # the chosen roots take n in order of frequency (a body that reshapes the modes
+        # spreads each in-vacuum mode over several roots; the order is what stays)
+        for n, (_, r) in enumerate(sorted((omega[r].real, r) for r in rows)):
+            labels[r] = ("head", 0, n + 1)
+            top = max(top, omega[r].real)
+    else:
+        # two heads of one shell: (m,n) is a pair of roots, the two holding most of the
+        # heads' mode n together (so nearly equal heads, whose roots share both heads,
+        # approach the identical pair continuously); each root is named after the head
+        # that holds more of it
+        pair = e.sum(axis=1)
+        # one in-phase and one opposed member per pair, as the symmetric solve of identical
+        # heads has: s = 2 Re(a b*) / (|a|^2 + |b|^2) over the mode's two coefficients
+        # (mass-weighted) is +1 in phase, -1 opposed, 0 where one head holds the root
+        a, b = _mode_amplitudes(order, vectors, n_max)
+        s = 2.0 * np.real(a * np.conj(b)) / np.maximum(np.abs(a) ** 2 + np.abs(b) ** 2, 1e-300)
+        score = np.empty((R, 2 * n_max))
+        score[:, 0::2] = pair * 0.5 * (1.0 + s)
+        score[:, 1::2] = pair * 0.5 * (1.0 - s)
+        rows, cols = linear_sum_assignment(-score)
+        members = {}
+        for r, c in zip(rows, cols):
+            members.setdefault(int(c // 2), []).append(r)
+            top = max(top, omega[r].real)
+        for n, rs_ in members.items():
+            share = [e[r, 0, n] / max(pair[r, n], 1e-300) for r in rs_]
+            for k, r in enumerate(sorted(rs_, key=lambda r: -share[rs_.index(r)])):
+                labels[r] = ("head", min(k, 1), n + 1)
     if order.depth is not None:
         air = [r for r in range(R) if labels[r] is None and frac[r] < 0.5 and omega[r].real <= top]
         if air:
@@ -994,15 +1041,18 @@ def _families(drum, *, m_max: int, n_max: int, settings: Settings):
 
 
 def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
-               losses=None) -> list:
+               losses=None, only=None) -> list:
     """Every root of every order of a drum, weighed and labelled: a list of OrderRoots.
 
     Roots come from the contour solve of spectrum.py in a window that grows until each
     order's n_max head modes (per head) are inside; nothing is continued from a guess.
+    ``only`` (an m) solves that order alone.
     """
     from . import spectrum
 
     orders = _families(drum, m_max=m_max, n_max=n_max, settings=settings)
+    if only is not None:
+        orders = [o for o in orders if o.m == only]
     air = (drum.air.density, drum.air.sound_speed)
     k_max = [1.6 * max(h.omega[n_max] for h in o.heads) / air[1] for o in orders]
     rs = RootSet(orders, np.arange(len(orders)), air=air, settings=settings, k_max=k_max,

@@ -306,37 +306,54 @@ def _dedupe(z, v):
     return z[keep], v[keep]
 
 
+def body_weights(k, gamma, depth: float) -> np.ndarray:
+    r"""How much of each duct mode's energy counts as the body's own air, 0..1, (R, Q).
+
+    A duct mode that propagates at wavenumber k fills the body: weight 1. A cut-off one
+    decays away from the head like :math:`\cosh\mu(L - z)`, :math:`\mu^2 = \gamma^2 - k^2`;
+    its weight is twice the share of that field's energy in the far half of the depth,
+    :math:`(y + \sinh y)/(2y + \sinh 2y)` with y = μL: 1 at cut-on (where the body's
+    cross-wise resonances sit, filling the whole depth), about :math:`2e^{-y}` for a field
+    held near the head (which is the head's added mass, not the body's air).
+    """
+    k = np.real(np.atleast_1d(k))[:, None]
+    mu2 = gamma[None, :] ** 2 - k * k
+    y = np.sqrt(np.maximum(mu2, 0.0)) * depth
+    e1, e2 = np.exp(-y), np.exp(-2.0 * y)
+    num = y * e2 + 0.5 * (e1 - e1 * e2)  # (y + sinh y) e^{-2y}
+    den = 2.0 * y * e2 + 0.5 * (1.0 - e2 * e2)  # (2y + sinh 2y) e^{-2y}
+    with np.errstate(divide="ignore", invalid="ignore"):
+        w = np.where(y > 1e-8, 2.0 * num / den, 1.0)
+    return np.where(mu2 <= 0, 1.0, np.clip(w, 0.0, 1.0))
+
+
 def head_fractions(rs, i: int, omega, vecs) -> np.ndarray:
     r"""Share of each root's vibrational energy in the head(s), 0..1.
 
     For a lossless system the energy stored at a resonance is :math:`-\tfrac{\omega}{4}
-    x^H Z'(\omega) x` (the reactance theorem). The body's air resonances hold theirs in the
-    duct modes that propagate at the root's frequency; that part comes from their S'. The
-    fraction is :math:`1 - x^T S_p' x / x^T Z' x` (bilinear forms: Z is complex symmetric),
-    its real part clipped to [0, 1]. The air that only moves with a head, outside it and in
-    the cut-off duct modes inside (its added mass), is counted with the head.
+    x^H Z'(\omega) x` (the reactance theorem); the body's air holds the part that comes from
+    its S', each duct mode weighted by :func:`body_weights` (the air that only moves with a
+    head, outside it and in the cut-off field next to it, is the head's added mass and
+    counts with the head). The fraction is :math:`1 - x^T S_w' x / x^T Z' x` (bilinear
+    forms: Z is complex symmetric), its real part clipped to [0, 1].
     """
     omega = np.asarray(omega, dtype=complex)
     out = np.ones(len(omega))
-    if rs.orders[i].depth is None or not len(omega):
+    order = rs.orders[i]
+    if order.depth is None or not len(omega):
         return out
     gamma = rs.data[i]["gamma"]
-    q1 = np.sum(gamma[None, :] < (omega.real / rs.c)[:, None], axis=1)
-    for q in np.unique(q1[q1 > 0]):
-        sel = np.nonzero(q1 == q)[0]
-        w = omega[sel]
-        h = 1e-6 * np.abs(w)
-        pts = np.concatenate([w + h, w - h])
-        z = rs.order_operator(i, pts)
-        sp = rs.order_operator(i, pts, outer=0.0, head=False, only_ducts=int(q))
-        x = vecs[sel]
-        R = len(sel)
-        dz = np.einsum("rn,rnk,rk->r", x, z[:R] - z[R:], x)
-        ds = np.einsum("rn,rnk,rk->r", x, sp[:R] - sp[R:], x)
-        with np.errstate(divide="ignore", invalid="ignore"):
-            frac = 1.0 - np.real(ds / dz)
-        out[sel] = np.clip(np.where(np.isfinite(frac), frac, 0.0), 0.0, 1.0)
-    return out
+    wts = body_weights(omega / rs.c, gamma, order.depth)
+    h = 1e-6 * np.abs(omega)
+    pts = np.concatenate([omega + h, omega - h])
+    R = len(omega)
+    z = rs.order_operator(i, pts)
+    sp = rs.order_operator(i, pts, outer=0.0, head=False, duct_weights=np.vstack([wts, wts]))
+    dz = np.einsum("rn,rnk,rk->r", vecs, z[:R] - z[R:], vecs)
+    ds = np.einsum("rn,rnk,rk->r", vecs, sp[:R] - sp[R:], vecs)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        frac = 1.0 - np.real(ds / dz)
+    return np.clip(np.where(np.isfinite(frac), frac, 0.0), 0.0, 1.0)
 
 
 def scan_order(rs, i: int, *, covered, lowest: float, tol: float, rounds: int,
