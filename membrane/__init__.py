@@ -21,6 +21,7 @@ _WHERE = {
     "InputError": "errors", "MembraneError": "errors", "RecordingError": "errors", "SolverError": "errors",
     "HarmonicFit": "modes", "Mode": "modes", "ModeSet": "modes", "harmonic_fit": "modes",
     "solve": "solver",
+    "estimate_lugs": "lugs", "prescribe_turns": "lugs", "split_table": "lugs",
 }
 __all__ = sorted(_WHERE)
 __version__ = "0.1.0"

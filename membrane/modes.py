@@ -17,6 +17,11 @@ from .units import cents, note_name
 
 PHYSICS = ("ideal", "stiff", "full")
 
+HEAD_NOTE = ("', struck head' or ', resonant head' after a mode names the head it grows from, the one "
+             "that moves most in it; in-phase: both heads move outward from the shell together, "
+             "opposed: one moves out as the other moves in (identical heads share every mode alike, "
+             "so their modes carry no head word)")
+
 # The harmonic-series fit takes the lowest fitted mode as harmonic 1 up to this
 # number and keeps the best; two fits within TIE_CENTS rms keep the higher f0.
 MAX_LOWEST_HARMONIC = 4
@@ -80,8 +85,12 @@ class Mode:
 
     @property
     def label(self) -> str:
-        """``"(m,n)"``, with the branch and, for the resonant head's family, which head."""
-        words = [w for w in (self.branch, "resonant head" if self.head == "resonant" else None) if w]
+        """``"(m,n)"``, with the branch and, on a shell with two different heads, which head.
+
+        ``"(0,1) in-phase, resonant head"``: the head named is the one the mode grows
+        from (its in-vacuum origin, the head that moves most); see :data:`HEAD_NOTE`.
+        """
+        words = [w for w in (self.branch, f"{self.head} head" if self.head else None) if w]
         return f"({self.m},{self.n})" + (" " + ", ".join(words) if words else "")
 
     def radial_shape(self, r, *, resonant: bool = False) -> np.ndarray:
@@ -211,13 +220,17 @@ class ModeSet:
     def __len__(self):
         return len(self.modes)
 
-    def find(self, m: int, n: int, branch: str | None = None) -> Mode:
+    def find(self, m: int, n: int, branch: str | None = None, head: str | None = None) -> Mode:
         """The mode (m, n), of the given branch for a shell (default: the lower one).
 
-        Where both heads of a shell have an (m, n) family, the struck head's is preferred.
+        Where both heads of a shell have an (m, n) family, the struck head's is preferred
+        unless ``head`` (``"struck"`` or ``"resonant"``) names one.
         """
         found = [mo for mo in self.modes if mo.m == m and mo.n == n and
                  (branch is None or mo.branch == branch)]
+        if head is not None and self.drum is not None and getattr(self.drum, "resonant_head", None) is not None:
+            if any(mo.head for mo in found):
+                found = [mo for mo in found if mo.head == head]
         if found:
             struck = [mo for mo in found if mo.head != "resonant"]
             return (struck or found)[0]
@@ -227,6 +240,11 @@ class ModeSet:
         raise InputError("mode", f"{m},{n}" + (f" {branch}" if branch else ""),
                          f"this drum's solved modes have {have}")
 
+    def reference_mode(self, reference=None) -> Mode:
+        """The mode a reference names: (m, n), or (m, n, head) on a two-headed drum; default the principal."""
+        reference = tuple(reference or self.principal)
+        return self.find(*reference[:2], head=reference[2] if len(reference) > 2 else None)
+
     @property
     def principal(self) -> tuple[int, int]:
         """The default reference mode: (1,1) for a drum with a kettle, else (0,1)."""
@@ -234,7 +252,7 @@ class ModeSet:
 
     def ratios(self, reference: tuple[int, int] | None = None) -> np.ndarray:
         """Frequency of every mode divided by the reference mode's (default :attr:`principal`)."""
-        ref = self.find(*(reference or self.principal)).frequency
+        ref = self.reference_mode(reference).frequency
         return np.array([mode.frequency / ref for mode in self.modes])
 
     def harmonic_fit(self, fit_modes=None) -> HarmonicFit | None:

@@ -114,6 +114,10 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3,
             notes.append("the default loss parameters are those of polyester heads; for other "
                          "films give the drum file a losses table (docs/losses.md)")
     notes.extend(material_notes(drum))
+    if drum.resonant_head is not None:
+        from .modes import HEAD_NOTE
+
+        notes.append(HEAD_NOTE)
     return ModeSet(modes=sort_modes(modes), physics=physics, drum=drum, notes=tuple(notes),
                    losses=losses)
 

@@ -379,7 +379,7 @@ def pressure_across_radius(modeset: ModeSet, *, at, contact_time: float = MALLET
 
 def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS[DEFAULT_MALLET],
                        listener: Listener = Listener(), angle: float = 0.0,
-                       search: tuple[float, float] = SEARCH_RANGE) -> StrikeAdvice:
+                       search: tuple[float, float] = SEARCH_RANGE, head: str | None = None) -> StrikeAdvice:
     r"""Strike-point advice: the radius that favours the chosen modes over the rest.
 
     The objective is the contrast
@@ -406,6 +406,8 @@ def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS
         Strike angle in rad (matters only with a listener azimuth of its own).
     search : (float, float)
         Range of strike radii searched, fractions of the radius.
+    head : {None, "struck", "resonant"}
+        On a two-headed drum, whose (m, n) the chosen modes are (default the struck head's).
 
     Returns
     -------
@@ -415,7 +417,7 @@ def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS
     chosen = tuple(dict.fromkeys((int(m), int(n)) for m, n in modes))
     if not chosen:
         raise InputError("best-for", "", "name at least one mode M,N to favour")
-    picked = {id(modeset.find(m, n)) for m, n in chosen}  # find() names a missing mode
+    picked = {id(modeset.find(m, n, head=head)) for m, n in chosen}  # find() names a missing mode
     mask = np.array([id(mode) in picked for mode in modeset])
     if mask.all():
         raise InputError("best-for", " ".join(f"{m},{n}" for m, n in chosen),

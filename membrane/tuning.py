@@ -41,6 +41,11 @@ from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 # A suggestion above this fraction of the film's yield stress gets a caution: a
 # safety factor of 2 on yield, as for static loads on ductile materials.
 SAFE_STRESS_FRACTION = 0.5  # common practice, no source
+# A head stretched by less than this strain (T / (E h), one part in 5000) wrinkles and
+# does not hold a pitch: the practical minimum tension of a head.
+MIN_HOLDING_STRAIN = 2e-4  # common practice, no source
+MIN_RULE = ("rule of thumb (common practice, no source): a head stretched by less than about "
+            "0.02 % (one part in 5000) wrinkles and does not hold a pitch")
 # Targets count as met together when every residual is within this many cents.
 TOGETHER_CENTS = 1.0
 # The root is polished until the mode is within this many cents of its target.
@@ -76,6 +81,28 @@ def slack_tension(head: Head) -> float:
     return head.bending_stiffness * k11 * k11
 
 
+def practical_minimum(head: Head) -> float | None:
+    """Lowest tension (N/m) at which the head holds a pitch, by :data:`MIN_RULE`; None if unknown.
+
+    T_min = MIN_HOLDING_STRAIN * E * plies * h, the tension that stretches the film by
+    that strain (E Young's modulus in Pa, h ply thickness in m).
+    """
+    if head.youngs_modulus is None or head.thickness is None:
+        return None
+    return MIN_HOLDING_STRAIN * head.youngs_modulus * head.plies * head.thickness
+
+
+def below_minimum(head: Head, tension: float) -> str | None:
+    """The warning for a tension below the practical minimum, in a maker's words, or None."""
+    t_min = practical_minimum(head)
+    if t_min is None or tension >= t_min:
+        return None
+    strain = tension / (head.youngs_modulus * head.plies * head.thickness)
+    return (f"{tension:.3g} N/m is below the practical minimum of about {t_min:.0f} N/m for this head: "
+            f"the film would be stretched by only {100 * strain:.2g} %, so it would wrinkle and not hold "
+            f"a pitch ({MIN_RULE})")
+
+
 def stress(head: Head, tension: float) -> float | None:
     """Film stress T / (plies h) in Pa at a tension in N/m, or None without a thickness."""
     return None if head.thickness is None else tension / (head.plies * head.thickness)
@@ -103,6 +130,9 @@ def safety_warnings(head: Head, tension: float) -> list[str]:
         warnings.append(f"{tension:.0f} N/m puts the film at {s / 1e6:.1f} MPa, "
                         f"{100 * s / limit:.0f} % of its {what}, above the "
                         f"{100 * SAFE_STRESS_FRACTION:.0f} % taken here as a safe limit")
+    low = below_minimum(head, tension)
+    if low:
+        warnings.append(low)
     slack = slack_tension(head)
     if tension < slack:
         warnings.append(f"{tension:.3g} N/m is below the slack limit {slack:.3g} N/m, where bending "

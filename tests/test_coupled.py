@@ -71,8 +71,8 @@ def test_decay_ordering_on_the_kettledrum():
 
 
 def test_kettle_stiffens_and_air_lowers():
-    # DESIGN.md 3.4: the enclosed air raises (0,1); Rossing (SOURCES.md, READ in abstracts): the
-    # bowl raises the lowest axisymmetric mode, and air loading lowers the (m,1) modes
+    # Raichel 2006, Eq. 6.28: the enclosed air spring raises (0,1); Rossing (SOURCES.md, READ in
+    # abstracts): the bowl raises the lowest axisymmetric mode, air loading lowers the (m,1) modes
     open_, kettle = kettledrum("none"), kettledrum("kettle", 0.17)
     assert kettle[(0, 1)].frequency > 1.3 * open_[(0, 1)].frequency
     for m in range(1, 5):
@@ -126,7 +126,8 @@ def test_identical_heads_split_into_symmetric_and_antisymmetric_pairs():
         assert set(p) == {"in-phase", "opposed"}
         assert np.allclose(p["in-phase"].resonant_coefficients, p["in-phase"].coefficients)
         assert np.allclose(p["opposed"].resonant_coefficients, -p["opposed"].coefficients)
-    # DESIGN.md section 6: for (0,n) the in-phase branch changes the volume, so it is stiffer
+    # in-phase (both heads out together, DESIGN.md section 6's definition) changes the volume, so
+    # the air spring stiffens it (Raichel Eq. 6.28; test_coupled_published.py checks the split)
     assert pairs[(0, 1)]["in-phase"].frequency > 1.2 * pairs[(0, 1)]["opposed"].frequency
 
 

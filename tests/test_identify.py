@@ -99,7 +99,7 @@ def test_a_nominal_tension_far_off_still_finds_the_head(kettle, nominal):
 
 
 def test_full_physics_where_sqrt_t_fails(kettle):
-    # with air loading and the kettle, f is not proportional to sqrt(T) (DESIGN.md 3.7), so
+    # with air loading and the kettle, f is not proportional to sqrt(T) (Rossing 1982, SOURCES.md), so
     # this exercises the fit that re-solves the model; the partials are the full model's own
     # modes at 4400 N/m (a self-consistency check: the fit must return the tension used)
     from membrane.solver import solve

@@ -26,7 +26,7 @@ def head(a, t, s, **kw):
 @settings(max_examples=40, deadline=None)
 @given(radius, tension, sigma, factor)
 def test_frequency_goes_as_square_root_of_tension(a, t, s, k):
-    # f = j_mn sqrt(T/sigma)/(2 pi a) (DESIGN.md 3.1; any membrane text)
+    # f = j_mn sqrt(T/sigma)/(2 pi a) (Kinsler et al., Fundamentals of Acoustics, 4th ed., ch. 4)
     np.testing.assert_allclose(freqs(Drum(head(a, t * k, s))), freqs(Drum(head(a, t, s))) * np.sqrt(k),
                                rtol=1e-12)
 
@@ -55,7 +55,8 @@ def test_ideal_ratios_do_not_depend_on_tension(a, t, s, k):
 @settings(max_examples=30, deadline=None)
 @given(radius, tension, st.floats(5e-5, 5e-4), st.sampled_from(["clamped", "hinged"]))
 def test_stiffness_never_lowers_a_frequency(a, t, h, edge):
-    # Adding D nabla^4 to the membrane operator adds positive energy (DESIGN.md 3.2)
+    # Adding D nabla^4 to the membrane operator adds positive energy, so no eigenvalue can fall
+    # (Rayleigh's principle / Courant-Fischer min-max)
     base = head(a, t, 1390.0 * h, thickness=h, youngs_modulus=4.5e9, poisson_ratio=0.38, edge=edge)
     stiff = freqs(Drum(base), "stiff")
     ideal = freqs(Drum(dataclasses.replace(base, youngs_modulus=None)), "ideal")

@@ -150,3 +150,24 @@ def test_cli_bad_input_is_one_line():
     assert r.exit_code == 2 and "--lug-tensions" in r.output
     r = _invoke(*FLAGS, "--lug-tensions", "4000,4000,4000", "--lug-pitches", "D3,D3,D3,D3")
     assert r.exit_code == 2 and "--lug-pitches" in r.output
+
+
+def test_cli_recording_alone_gives_harmonic_sizes(tap):
+    path, rim, _, _ = tap
+    r = _invoke(*FLAGS, "--recording", str(path), "--lugs", "8", "--format", "json")
+    assert r.exit_code == 0, r.output
+    data = json.loads(r.stdout)
+    assert "splits" not in data and data["harmonics"]
+    assert data["harmonics"]["2"] == pytest.approx(abs(rim.relative(2)), rel=0.10)
+    assert any("phase" in u for u in data["unseen"])
+    r = _invoke(*FLAGS, "--recording", str(path))
+    assert r.exit_code == 2 and "--lugs" in r.output
+
+
+def test_cli_csv_has_both_tables():
+    r = _invoke(*FLAGS, "--m-max", "2", "--n-max", "1", "--format", "csv",
+                "--lug-pitches", "D3,D3+6c,D3-4c,D3+12c,D3+2c,D3-9c,D3+3c,D3+1c", "--cents-per-turn", "45")
+    assert r.exit_code == 0, r.output
+    head, _, lugs = r.stdout.partition("\n\n")
+    assert head.splitlines()[0].startswith("mode,low_hz,high_hz")
+    assert lugs.splitlines()[0].startswith("lug,angle_deg") and len(lugs.strip().splitlines()) == 9

@@ -334,7 +334,7 @@ def test_a_shell_shows_both_heads_moving_as_the_branch_says():
             assert z_top == 0 and z_bottom < 0
             # centre displacement, drawn upward-positive; outward is down for the resonant head
             up_top, up_bottom = w_top[0], w_bottom[0]
-            # DESIGN.md section 6: "in-phase" = the heads' outward displacements share a sign
+            # by definition (DESIGN.md section 6): "in-phase" = the outward displacements share a sign
             same_way_up = np.sign(up_top) == np.sign(up_bottom)
             assert same_way_up == (mode.branch == "opposed"), mode.label
         finally:

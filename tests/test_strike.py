@@ -123,8 +123,9 @@ def test_far_field_matches_a_direct_rayleigh_integral(ideal):
 
 def test_effective_mass_with_a_kettle_is_the_residue_of_the_dynamic_stiffness():
     """One ideal (0,1) shape on a kettle, no other air: Z(w) = K + S(w) - w^2 M with the duct's
-    uniform-pressure term S = w^2 rho cot(kL) W^2 / (k pi a^2) (DESIGN.md 3.4, written out
-    here again, W by quadrature); the effective mass must be -Z'/(2w) at the root (central
+    uniform-pressure term S = w^2 rho cot(kL) W^2 / (k pi a^2) (the plane wave in a rigid-ended
+    tube, input impedance -i rho c cot kL: Kinsler et al., Fundamentals of Acoustics, 4th ed.,
+    ch. 10; written out here again, W by quadrature); the effective mass must be -Z'/(2w) at the root (central
     differences), and the root must sit between the in-vacuum and the lumped-kettle limit."""
     from membrane.physics.vacuum import ideal_basis
     from membrane.modes import Mode
@@ -212,10 +213,25 @@ def full():
 
 
 def test_best_strike_radius_of_the_kettledrum_for_the_m1_modes(full):
-    # the trade strikes a kettledrum about a quarter of the way in from the rim (r/a ~ 0.75)
-    # to favour the (m,1) modes  # common practice, no source
+    # What the physics predicts: a strike at r0 excites each mode in proportion to its shape
+    # there, and the loudest unwanted partials of a mallet stroke are the (1,n) and (2,n), n >= 2
+    # (they radiate well and lie in the mallet's band). Their excitation vanishes on their nodal
+    # circles, in vacuum at r/a = j_{m,k}/j_{m,n} (A&S Table 9.5): the outermost ones are (1,2)
+    # 0.546, (2,2) 0.610, (1,3) 0.690, (2,3) 0.724. The contrast is best between them, where
+    # all four are weak together. The model (full physics) puts it at r/a = 0.650.
+    # The trade strikes about a quarter of the way in from the rim, r/a ~ 0.75  # common
+    # practice, no source. The model disagrees by 0.1 of the radius: it does not reproduce the
+    # rule of thumb, and this test does not widen its band to pretend it does.
     advice = best_strike_radius(full, modes=[(1, 1), (2, 1), (3, 1), (4, 1)])
-    assert 0.6 <= advice.at <= 0.9, advice
+    circles = [scipy.special.jn_zeros(m, n)[n - 2] / scipy.special.jn_zeros(m, n)[n - 1]
+               for m, n in ((1, 2), (2, 2), (1, 3), (2, 3))]
+    assert min(circles) < advice.at < max(circles), (advice, circles)
+    # at the advice each of those four is well below its own strongest excitation
+    levels = {at: {(p.mode.m, p.mode.n): abs(p.pressure) for p in strike_partials(full, strike=Strike(at=at))}
+              for at in np.linspace(0.05, 0.95, 19)}
+    here = {(p.mode.m, p.mode.n): abs(p.pressure) for p in advice.partials}
+    for mode in ((1, 2), (2, 2), (1, 3), (2, 3)):
+        assert here[mode] < 0.5 * max(lv[mode] for lv in levels.values()), mode
 
 
 # ----------------------------------------------------------------------------- the preview
@@ -385,7 +401,8 @@ def test_cli_plot_of_levels_against_strike_radius(tmp_path):
 
 def test_effective_mass_of_a_shell_mode_is_the_residue_of_the_two_head_dynamic_stiffness():
     """Two ideal (0,1) shapes, one per head of a shell, coupled only by the duct's plane wave
-    (DESIGN.md 3.4: cot(kL) self and csc(kL) cross terms, outward displacements): a 2 x 2
+    (plane waves in the closed tube between the heads: cot(kL) self and csc(kL) transfer
+    impedances, Kinsler et al. ch. 10; outward displacements): a 2 x 2
     Z(w); at its lower root the effective mass must be -c^T Z' c / (2 w), c the null vector."""
     from membrane.modes import Mode
     from membrane.physics.vacuum import ideal_basis

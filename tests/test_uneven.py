@@ -231,3 +231,17 @@ def test_ritz_basis_is_converged():
     big = exact_splits(HEAD, rim, m_max=6, n_max=3, m_basis=18, n_basis=10)
     for a, b in zip(small, big):
         assert abs(a.low_hz / b.low_hz - 1) < 1e-4 and abs(a.high_hz / b.high_hz - 1) < 1e-4
+
+
+def test_hoop_model_splits_only_what_the_lug_count_allows():
+    # Symmetry (group theory of a body with N-fold symmetry, from memory): N equal point
+    # pulls leave a ripple of harmonic N, which splits at first order exactly the pairs with
+    # 2m a multiple of N. For 8 lugs: (4,n) splits, (1,n), (2,n), (3,n) do not.
+    rim = rim_tension(np.full(8, T0), spread="hoop", hoop_stiffness=1e-3)
+    first = {(s.m, s.n): s for s in first_order_splits(HEAD, rim, m_max=5, n_max=1)}
+    assert first[(4, 1)].relative > 1e-4
+    for m in (1, 2, 3, 5):
+        assert first[(m, 1)].relative == 0.0
+    # a stiffer hoop spreads the pulls more evenly: a smaller ripple
+    stiffer = rim_tension(np.full(8, T0), spread="hoop", hoop_stiffness=1e-1)
+    assert abs(stiffer.harmonic(8)) < abs(rim.harmonic(8)) / 50

@@ -61,7 +61,8 @@ def test_vanishing_stiffness_gives_the_ideal_membrane(edge):
 
 
 def test_stiff_membrane_roots_against_mpmath_determinant():
-    # The clamped determinant k2 J_m(k1 a) I_m'(k2 a) - k1 I_m(k2 a) J_m'(k1 a) = 0 (DESIGN.md 3.2),
+    # The clamped determinant k2 J_m(k1 a) I_m'(k2 a) - k1 I_m(k2 a) J_m'(k1 a) = 0 (separating the
+    # stiff-membrane equation; at T = 0 it is Leissa 1969's clamped-plate frequency equation),
     # solved with mpmath at 30 digits from the ideal root, for a taut stiff head
     s, m = 50.0, 2  # T a^2 / D
     ours = stiff_roots("clamped", m, 3, s, 0.38)

@@ -83,16 +83,33 @@ def parse_mode(text: str, *, key: str = "--mode") -> tuple[int, int]:
 
 
 REFERENCE_HELP = ("Mode the ratios are taken to, M,N (default: the drum's principal, (1,1) for a drum "
-                  "with a kettle, else (0,1)).")
+                  "with a kettle, else (0,1)); on a two-headed drum HEAD:M,N names the head, e.g. "
+                  "resonant:0,1 (or use --head).")
+HEAD_HELP = "Which head of a two-headed drum the named mode belongs to: struck or resonant."
 
 
-def parse_reference(text: str | None, drum) -> tuple[int, int]:
-    """``--reference``: the mode named, or the drum's principal when none is given."""
+def parse_reference(text: str | None, drum, head: str | None = None) -> tuple:
+    """``--reference``: the mode named, or the drum's principal when none is given.
+
+    ``HEAD:M,N`` (``resonant:0,1``) or ``head`` (from ``--head``) picks which head's mode
+    on a two-headed drum; the result is then (m, n, head).
+    """
     if text is None:
         from ..modes import principal_mode
 
-        return principal_mode(drum)
-    return parse_mode(text, key="--reference")
+        ref = principal_mode(drum)
+    else:
+        if ":" in text:
+            head, text = text.split(":", 1)
+            head = head.strip().lower()
+            if head not in ("struck", "resonant"):
+                fail("--reference", f"{head}:{text}", "the head before ':' must be struck or resonant")
+        ref = parse_mode(text, key="--reference")
+    if head is None:
+        return ref
+    if head == "resonant" and getattr(drum, "resonant_head", None) is None:
+        fail("--head", head, "this drum has no resonant head (only a shell has two heads)")
+    return (*ref, head)
 
 
 # ------------------------------------------------------------------ the drum from file + flags

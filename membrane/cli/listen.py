@@ -273,79 +273,12 @@ def shown_partials(analysis):
 
 
 def _draw(path: Path, spectrum, analysis, ident, name: str) -> None:
-    """Two panels on one frequency axis.
-
-    Top: the measured spectrum, the partials found (dots) and the matched model modes
-    (dashed, labelled). Bottom: each partial's level at the strike, coloured by its T60.
-    """
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-    import numpy as np
-    from matplotlib.colors import LogNorm
+    """The spectrum picture (:func:`membrane.render.spectrum.spectrum_figure`) to a PNG."""
+    from ..render.spectrum import spectrum_figure
 
     freqs, level = spectrum
-    parts = shown_partials(analysis)
-    f_found = np.array([p.frequency for p in parts])
-    span = f_found.max() * 1.15 + 20
-    keep = freqs <= span
-    fig, (ax, bx) = plt.subplots(2, 1, figsize=(11, 7.5), dpi=110, sharex=True,
-                                 gridspec_kw={"height_ratios": [3, 2]}, layout="constrained")
-    ax.plot(freqs[keep], level[keep], color="0.35", lw=0.7,
-            label="measured spectrum (falling half-Hann window from the strike)")
-    ax.plot(f_found, np.interp(f_found, freqs, level), "o", ms=4.5, color="tab:red",
-            label="partials found (damped-sinusoid fit)")
-    if ident is not None:
-        seen, last, row = set(), -np.inf, 0
-        for mt in ident.matches:
-            if (mt.m, mt.n) in seen:
-                continue  # the other half of a split: one line, one label
-            seen.add((mt.m, mt.n))
-            for axis in (ax, bx):
-                axis.axvline(mt.model_frequency, color="tab:blue", lw=0.7, ls="--",
-                             label="model modes at the fitted tension"
-                             if len(seen) == 1 and axis is ax else None)
-            # labels closer than 2 % of the axis take turns on three rows
-            row = (row + 1) % 3 if mt.model_frequency - last < 0.02 * span else 0
-            last = mt.model_frequency
-            ax.annotate(f"({mt.m},{mt.n})", (mt.model_frequency, 3.0 + 7.0 * row), fontsize=7,
-                        ha="center", va="bottom", color="tab:blue",
-                        bbox=dict(boxstyle="round,pad=0.1", fc="white", ec="none", alpha=0.8))
-        for sp in ident.splits:
-            bx.annotate(f"({sp.m},{sp.n}) split, beat {sp.beat_hz:.2f} Hz",
-                        (sp.high.frequency, sp.high.level_db), xytext=(6, 6),
-                        textcoords="offset points", fontsize=8, color="tab:red")
-        title = (f"{name}: fitted tension {ident.tension:.0f} N/m, {len(ident.matches)} partials "
-                 f"labelled, rms {ident.rms_cents:.1f} cents")
-    else:
-        title = f"{name}: {len(parts)} partials"
-    ax.set_ylim(max(level[keep].min(), -100.0), 26)
-    ax.set_ylabel("spectrum (dB re highest peak)")
-    ax.set_title(title)
-    ax.legend(loc="lower right", fontsize=8, framealpha=0.9)
-    ax.grid(alpha=0.3)
-    t60 = np.array([p.t60 if p.t60 is not None else np.nan for p in parts])
-    levels = np.array([p.level_db for p in parts])
-    finite = np.isfinite(t60)
-    bx.vlines(f_found, min(levels.min(), -10) - 5, levels, color="0.6", lw=1.0)
-    norm = LogNorm(vmin=max(np.nanmin(t60), 1e-2), vmax=max(np.nanmax(t60), 2e-2)) if finite.any() else None
-    dots = bx.scatter(f_found[finite], levels[finite], c=t60[finite], cmap="viridis", norm=norm,
-                      s=28, zorder=3)
-    if (~finite).any():
-        bx.scatter(f_found[~finite], levels[~finite], marker="s", color="k", s=20, zorder=3,
-                   label="no decay")
-        bx.legend(loc="lower right", fontsize=8)
-    if finite.any():
-        fig.colorbar(dots, ax=[ax, bx], pad=0.01, shrink=0.4, anchor=(0.0, 0.0),
-                     label="T60 (s) of the partials below")
-    bx.set_ylim(min(levels.min(), -10) - 5, 5)
-    bx.set_xlim(0, span)
-    bx.set_xlabel("frequency (Hz)")
-    bx.set_ylabel("level at the strike (dB)")
-    bx.grid(alpha=0.3)
+    fig = spectrum_figure(freqs, level, shown_partials(analysis), ident=ident, name=name)
     fig.savefig(path, format="png")
-    plt.close(fig)
 
 
 __all__ = ["listen", "parse_channel"]

@@ -58,6 +58,10 @@ def lugs(
         help="Calibration: tap-pitch change near a lug for one full turn, in cents.")] = None,
     turns_per_newton: Annotated[Optional[float], typer.Option(
         help="Calibration: turns of a lug per newton of its pull.")] = None,
+    hoop_stiffness: Annotated[Optional[float], typer.Option(
+        help="Model the hoop as a ring bending on the film, with this stiffness ratio EI/(a^4 k_f) "
+             "(> 0): each lug a point pull, spread by the hoop. Default: the smooth spread (rim "
+             "tension interpolated through the lug values).")] = None,
     method: Annotated[str, typer.Option(
         help="exact (Ritz solve, all orders coupled) or first-order (perturbation).")] = "exact",
     drum_flags: dict = None,
@@ -86,6 +90,8 @@ def lugs(
     from ..tuning import CAUTIONS, LUG_RULE
     from .tune import parse_lug_pitches
 
+    if hoop_stiffness is not None and not (math.isfinite(hoop_stiffness) and hoop_stiffness > 0):
+        fail("--hoop-stiffness", hoop_stiffness, "must be a positive number (EI / (a^4 k_f))")
     if method not in lugmod.METHODS:
         fail("--method", method, "exact or first-order")
     if cents_per_turn is not None and turns_per_newton is not None:
@@ -136,13 +142,14 @@ def lugs(
                "measured_splits": [vars(s) | {"beat_hz": s.high_hz - s.low_hz} for s in measured]}
     split_rows, lug_rows, turns, table = [], [], None, None
     if estimate.tensions is not None:
-        rim = rim_tension(estimate.tensions)
+        spread = {} if hoop_stiffness is None else {"spread": "hoop", "hoop_stiffness": hoop_stiffness}
+        rim = rim_tension(estimate.tensions, **spread)
         table = lugmod.split_table(drum, rim, physics=physics.value, method=method, m_max=m_max, n_max=n_max)
         notes.extend(table.notes)
         turns = lugmod.prescribe_turns(drum, estimate.tensions, cents_per_turn=cents_per_turn,
                                        turns_per_newton=turns_per_newton,
                                        physics="ideal" if physics.value == "ideal" else "stiff")
-        after = lugmod.split_table(drum, rim_tension(lugmod.apply_turns(estimate.tensions, turns)),
+        after = lugmod.split_table(drum, rim_tension(lugmod.apply_turns(estimate.tensions, turns), **spread),
                                    physics="ideal" if physics.value == "ideal" else "stiff",
                                    method=method, m_max=1, n_max=1).find(1, 1)
         for s in table.splits:
@@ -165,6 +172,10 @@ def lugs(
             "calibration": {"cents_per_turn": cents_per_turn, "turns_per_newton": turns_per_newton},
             "after_turns_beat_11_hz": after.beat_hz,
         })
+        if hoop_stiffness is not None:
+            notes.append(f"hoop model: each lug a point pull spread by a hoop bending on the film "
+                         f"(EI / (a^4 k_f) = {hoop_stiffness:g}); equal lugs still leave a ripple of "
+                         f"harmonic {n_lugs}, which no turn removes")
         if pitches is not None:
             notes.append(LUG_RULE)
         if turns.turns is None:
@@ -186,7 +197,8 @@ def lugs(
         from ..render.lugs import lug_map
         from ..render.stills import save
 
-        fig = lug_map(drum, estimate.tensions, turns=turns, split=table.find(1, 1), physics=physics.value)
+        fig = lug_map(drum, estimate.tensions, turns=turns, split=table.find(1, 1), physics=physics.value,
+                      rim=rim)
         write_atomic(plot, lambda tmp: save(fig, tmp), force=force, key="--plot")
 
     if format is Format.json:
@@ -200,8 +212,7 @@ def lugs(
         return
     emit(format, payload=payload, rows=split_rows, columns=SPLIT_COLUMNS,
          title=f"Split pairs of {drum.name} ({physics.value} physics, {method})")
-    if format is Format.csv:
-        sys.stdout.write("\n")
+    sys.stdout.write("\n")  # a blank line between the two tables, in every text format
     emit(format, payload=payload, rows=lug_rows, columns=LUG_COLUMNS,
          title=f"Lugs: mean {estimate.mean_tension:.1f} N/m; even them at {turns.target_tension:.1f} N/m "
                f"(keeps the (1,1) pitch); (1,1) beat after: {payload['after_turns_beat_11_hz']:.4f} Hz",

@@ -6,8 +6,9 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from .common import (REFERENCE_HELP, DrumFile, Format, LossChoice, LossesOpt, Physics, decay_words,
-                     drum_from, emit, num, parse_mode, parse_reference, signed, t60, with_drum_flags)
+from .common import (HEAD_HELP, REFERENCE_HELP, DrumFile, Format, LossChoice, LossesOpt, Physics,
+                     decay_words, drum_from, emit, fail, num, parse_mode, parse_reference, signed, t60,
+                     with_drum_flags)
 
 COLUMNS = [
     ("mode", "mode", str),
@@ -33,6 +34,7 @@ def modes(
     m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters (0-50).")] = 6,
     n_max: Annotated[int, typer.Option(help="Highest number of nodal circles, counting the rim (1-50).")] = 3,
     reference: Annotated[Optional[str], typer.Option(help=REFERENCE_HELP, show_default=False)] = None,
+    head: Annotated[Optional[str], typer.Option(help=HEAD_HELP, show_default=False)] = None,
     fit: Annotated[Optional[List[str]], typer.Option(
         help="Mode to include in the harmonic-series fit, M,N; repeat, at least 3 modes. "
              "Default (1,1)...(5,1) as far as solved.")] = None,
@@ -42,10 +44,12 @@ def modes(
     from ..solver import solve
 
     drum = drum_from(drum_file, **drum_flags)
-    ref = parse_reference(reference, drum)
+    if head is not None and head not in ("struck", "resonant"):
+        fail("--head", head, "must be struck or resonant")
+    ref = parse_reference(reference, drum, head)
     fit_modes = [parse_mode(f, key="--fit") for f in fit] if fit else None
     result = solve(drum, physics.value, m_max=m_max, n_max=n_max, losses=losses.value)
-    result.find(*ref)  # a clear error if the reference mode was not solved
+    ref_mode = result.find(*ref[:2], head=ref[2] if len(ref) > 2 else None)  # a clear error if not solved
     rows = result.table(reference=ref, fit_modes=fit_modes)
     harmonic = result.harmonic_fit(fit_modes)
     for row, mode in zip(rows, result.modes):
@@ -55,7 +59,7 @@ def modes(
         "drum": drum.name,
         "physics": physics.value,
         "losses": losses.value,
-        "reference": {"m": ref[0], "n": ref[1]},
+        "reference": {"m": ref[0], "n": ref[1], **({"head": ref_mode.head} if ref_mode.head else {})},
         "harmonic_fit": None if harmonic is None else {
             "fundamental_hz": harmonic.fundamental,
             "rms_cents": harmonic.rms_cents,
@@ -65,7 +69,7 @@ def modes(
         "modes": [{k: v for k, v in row.items() if k not in ("mode", "fit_mark")} for row in rows],
     }
     title = (f"{drum.name}: {physics.value} physics{decay_words(physics.value, losses.value)}; "
-             f"ratios to ({ref[0]},{ref[1]})")
+             f"ratios to ({ref[0]},{ref[1]})" + (f" of the {ref_mode.head} head" if ref_mode.head else ""))
     if harmonic is None:
         title += "; no harmonic fit (fewer than 3 modes solved)"
         fit_note = []

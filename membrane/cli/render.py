@@ -12,7 +12,7 @@ from typing import Annotated, Optional
 
 import typer
 
-from .common import (REFERENCE_HELP, DrumFile, LossChoice, LossesOpt, Physics, drum_from, fail,
+from .common import (HEAD_HELP, REFERENCE_HELP, DrumFile, LossChoice, LossesOpt, Physics, drum_from, fail,
                      parse_mode, parse_reference,
                      with_drum_flags, write_atomic)
 
@@ -82,10 +82,10 @@ def _solve(drum, physics: str, m_max: int, n_max: int, need=(0, 1), losses: str 
     return solve(drum, physics, m_max=max(m_max, m), n_max=max(n_max, n), losses=losses)
 
 
-def _find(modeset, m: int, n: int, branch: str | None):
-    """The mode (m, n) of the given branch, whichever head it is counted on."""
-    if branch is None:
-        return modeset.find(m, n)
+def _find(modeset, m: int, n: int, branch: str | None, head: str | None = None):
+    """The mode (m, n) of the given branch and head (default: the struck head's, the lower one)."""
+    if branch is None or head is not None:
+        return modeset.find(m, n, branch, head=head)
     for mode in modeset:
         if (mode.m, mode.n, mode.branch) == (m, n, branch):
             return mode
@@ -108,6 +108,7 @@ def render(
     snapshot: Annotated[bool, typer.Option("--snapshot", help="With --mode and .png: a 3D still instead of "
                                            "the nodal diagram.")] = False,
     branch: Annotated[Optional[str], typer.Option(help="For a shell: in-phase or opposed (default the lower).")] = None,
+    head: Annotated[Optional[str], typer.Option(help=HEAD_HELP + " For --mode.", show_default=False)] = None,
     count: Count = 12,
     frames: Annotated[int, typer.Option(help="Frames in one period of the animation.")] = 48,
     size: Annotated[str, typer.Option(help="Animation size in pixels, N or WIDTHxHEIGHT.")] = "480",
@@ -135,6 +136,8 @@ def render(
         fail("picture", " and ".join(chosen) or "none", "choose exactly one of --mode M,N, --grid, --ratio-chart")
     if branch is not None and branch not in ("in-phase", "opposed"):
         fail("--branch", branch, "must be in-phase or opposed")
+    if head is not None and head not in ("struck", "resonant"):
+        fail("--head", head, "must be struck or resonant")
     if mode is not None:
         fmt = _suffix(out, ANIMATIONS + ("png",), "a single mode", force)
     else:
@@ -154,7 +157,9 @@ def render(
         modeset = _solve(drum, physics.value, m_max, n_max, need=(m, n), losses=losses.value)
         if branch is not None and not any(x.branch for x in modeset):
             fail("--branch", branch, "only a shell's two heads solved together (--physics full) have branches")
-        the_mode = _find(modeset, m, n, branch)
+        if head == "resonant" and drum.resonant_head is None:
+            fail("--head", head, "this drum has no resonant head (only a shell has two heads)")
+        the_mode = _find(modeset, m, n, branch, head)
         if fmt in ANIMATIONS or snapshot:
             from ..render.animate import render_mode
 
@@ -216,7 +221,7 @@ def handout(
     else:
         others = [p for p in _physics_list(compare, "--compare") if p != physics.value]
     modeset = _solve(drum, physics.value, m_max, n_max, losses=losses.value)
-    modeset.find(*ref)  # a clear error if the reference mode was not solved
+    modeset.reference_mode(ref)  # a clear error if the reference mode was not solved
     compared = [_solve(drum, name, m_max, n_max, losses=losses.value) for name in others]
     from ..render.handout import write_handout
 

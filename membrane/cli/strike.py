@@ -73,7 +73,7 @@ def _parse_best_for(values: list[str] | None, drum_file: str | None,
     return modes, drum_file
 
 
-def _plot(path, result, *, at, t_c, listener, theta0, chosen, advice, title) -> None:
+def _plot(path, result, *, at, t_c, listener, theta0, chosen, advice, title, head=None) -> None:
     """Level of each partial against the strike radius (and the search's contrast), as a PNG."""
     import matplotlib
 
@@ -88,14 +88,16 @@ def _plot(path, result, *, at, t_c, listener, theta0, chosen, advice, title) -> 
                                             angle=theta0))
     with np.errstate(divide="ignore"):
         db = np.maximum(20 * np.log10(p / p.max()), -60.0)
-    picked = [j for j, mo in enumerate(result.modes) if (mo.m, mo.n) in chosen]
+    # the same modes the advice weighs (find(): the struck head's member unless --head names one)
+    ids = {id(result.find(m, n, head=head)) for m, n in chosen}
+    picked = [j for j, mo in enumerate(result.modes) if id(mo) in ids]
     loudest = picked + [j for j in np.argsort(-db.max(axis=1)) if j not in picked][:max(0, 10 - len(picked))]
     fig, axes = plt.subplots(2 if advice else 1, 1, figsize=(9.0, 6.5 if advice else 4.5),
                              sharex=True, squeeze=False)
     ax = axes[0, 0]
     for j in loudest:
         mo = result.modes[j]
-        strong = (mo.m, mo.n) in chosen
+        strong = id(mo) in ids
         ax.plot(radii, db[j], lw=2.2 if strong else 1.0, ls="-" if strong or not chosen else "--",
                 label=f"{mo.label} {mo.frequency:.0f} Hz")
     ax.axvline(at, color="k", lw=0.8)
@@ -106,7 +108,7 @@ def _plot(path, result, *, at, t_c, listener, theta0, chosen, advice, title) -> 
     if advice:
         with np.errstate(divide="ignore"):
             power = p ** 2
-            mask = np.array([(mo.m, mo.n) in chosen for mo in result])
+            mask = np.array([id(mo) in ids for mo in result])
             c = 10 * np.log10(power[mask].sum(0)) - 10 * np.log10(power[~mask].sum(0))
         axes[1, 0].plot(radii, c, color="k")
         axes[1, 0].axvline(advice.at, color="k", lw=0.8)
@@ -141,6 +143,9 @@ def strike(
         help="Listener's azimuth, degrees, on the strike angle's scale; default the strike's.")] = None,
     best_for: Annotated[Optional[List[str]], typer.Option(
         help="Find the strike radius favouring these modes, e.g. --best-for 1,1 2,1 3,1 4,1.")] = None,
+    head: Annotated[Optional[str], typer.Option(
+        help="Which head of a two-headed drum the --best-for modes belong to: struck or resonant.",
+        show_default=False)] = None,
     out: Annotated[Optional[str], typer.Option(help="Write a sound preview to this WAV file.")] = None,
     rate: Annotated[int, typer.Option(help="Sample rate of the WAV, Hz.")] = 44100,
     seconds: Annotated[float, typer.Option(help="Length of the WAV, s.")] = 4.0,
@@ -208,8 +213,12 @@ def strike(
     theta0 = math.radians(angle)
     advice = None
     if chosen:
+        if head is not None and head not in ("struck", "resonant"):
+            fail("--head", head, "must be struck or resonant")
+        if head == "resonant" and drum.resonant_head is None:
+            fail("--head", head, "this drum has no resonant head (only a shell has two heads)")
         advice = model.best_strike_radius(result, modes=chosen, contact_time=t_c,
-                                          listener=listener, angle=theta0)
+                                          listener=listener, angle=theta0, head=head)
         partials, at = advice.partials, advice.at
     else:
         partials = model.strike_partials(result, strike=model.Strike(at=at, contact_time=t_c, angle=theta0),
@@ -234,7 +243,8 @@ def strike(
     title = (f"{drum.name}: {physics.value} physics{decay_words(physics.value, losses.value)}; strike at r/a = {at:.3f}, {how}; listener "
              f"{listener_angle:g} deg off the axis at {distance:g} m")
     if advice is not None:
-        title += (f"; best for {' '.join(f'({m},{n})' for m, n in advice.chosen)}: r/a = {advice.at:.3f}, "
+        title += (f"; best for {' '.join(f'({m},{n})' for m, n in advice.chosen)}"
+                  f"{' of the ' + head + ' head' if head else ''}: r/a = {advice.at:.3f}, "
                   f"contrast {advice.contrast_db:+.1f} dB")
     payload = {
         "drum": drum.name, "physics": physics.value, "losses": losses.value,
@@ -245,7 +255,8 @@ def strike(
         "notes": notes,
     }
     if advice is not None:
-        payload["best_for"] = {"modes": [{"m": m, "n": n} for m, n in advice.chosen],
+        payload["best_for"] = {"modes": [{"m": m, "n": n, **({"head": head} if head else {})}
+                                         for m, n in advice.chosen],
                                "at": advice.at, "contrast_db": advice.contrast_db,
                                "search_range": list(presets.SEARCH_RANGE)}
     if wav is not None:
@@ -253,7 +264,7 @@ def strike(
     if plot is not None:
         write_atomic(plot, lambda path: _plot(path, result, at=at, t_c=t_c, listener=listener,
                                               theta0=theta0, chosen=chosen, advice=advice,
-                                              title=title), force=force, key="--plot")
+                                              title=title, head=head), force=force, key="--plot")
         payload["plot"] = str(plot)
     columns = COLUMNS if format is not Format.csv else \
         [("m", "m", str), ("n", "n", str)] + [c for c in COLUMNS if c[0] != "mode"] + \

@@ -10,12 +10,29 @@ import typer
 
 from ..errors import InputError
 from ..units import note_name, parse_pitch
+from .tune_heads import INTERVAL_HELP
 from .common import (DrumFile, Format, Physics, drum_from, emit, fail, num, parse_mode, t60,
                      with_drum_flags)
 
+SLACK_SHOWN = 10.0  # the slack limit is shown when the suggestion is within this factor of it
 TARGET_HELP = ("Target pitch: Hz ('87.3', '87.3 Hz'), a note ('F2', 'F#2', 'Bb2') or either with cents "
                "('F2+15c', 'D3 -8 cents'). With --mode give one bare PITCH; for several modes give "
-               "M,N=PITCH and repeat: --target 1,1=F2 --target 2,1=C3.")
+               "M,N=PITCH and repeat: --target 1,1=F2 --target 2,1=C3. On a two-headed drum name the "
+               "head: --target struck:1,1=A2 --target resonant:0,1=C3.")
+
+
+class Head(str, Enum):
+    """Which head of a two-headed drum."""
+
+    struck = "struck"
+    resonant = "resonant"
+
+
+class OtherHead(str, Enum):
+    """How the other head is treated when tuning one head of a shell."""
+
+    free = "free"
+    damped = "damped"
 
 
 class Free(str, Enum):
@@ -83,6 +100,15 @@ def tune(
              "taken as proportional to sqrt(local tension).")] = None,
     cents_per_turn: Annotated[Optional[float], typer.Option(
         help="Calibration: pitch change in cents for one full turn of a lug; gives turns in 1/8.")] = None,
+    head: Annotated[Head, typer.Option(
+        help="Which head a target without a HEAD: prefix is for (a shell has a struck and a resonant head).")
+    ] = Head.struck,
+    interval: Annotated[Optional[List[str]], typer.Option(
+        help=INTERVAL_HELP, metavar="HEAD:M,N=HEAD:M,N+AMOUNT")] = None,
+    other_head: Annotated[OtherHead, typer.Option(
+        help="With two heads: free (both heads coupled through the shell's air) or damped (each head "
+             "with the other held still, as when a maker taps one head with the other muted).")
+    ] = OtherHead.free,
     drum_flags: dict = None,
     physics: Annotated[Physics, typer.Option(
         help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
@@ -102,6 +128,20 @@ def tune(
     from .. import tuning
 
     drum = drum_from(drum_file, **drum_flags)
+    named = any(":" in t for t in target or []) or head is not Head.struck
+    if interval or named or other_head is not OtherHead.free:
+        from . import tune_heads
+
+        if lug_pitches or free is not None:
+            fail("--interval" if interval else "--head", (interval or [head.value])[0],
+                 "targets on named heads and intervals go without --free and --lug-pitches")
+        heads_targets = tune_heads.parse_head_targets(target or [], mode, head.value)
+        intervals = [tune_heads.parse_interval(text, head.value) for text in interval or []]
+        if not heads_targets and not intervals:
+            fail("--target", None, "give a target (--target HEAD:M,N=PITCH) or an interval (--interval)")
+        tune_heads.run(drum, targets=heads_targets, intervals=intervals, physics=physics.value,
+                       other=other_head.value, m_max=m_max, n_max=n_max, fmt=format)
+        return
     targets = parse_targets(target or [], mode)
     if mode is not None and not targets:
         fail("--mode", mode, "needs a --target PITCH")
@@ -186,6 +226,7 @@ def _result_payload(result: tuning.Tuning) -> dict:
         "stress_fraction_of_yield": None if s is None or head.yield_stress is None else s / head.yield_stress,
         "safe_stress_fraction": tuning.SAFE_STRESS_FRACTION,
         "slack_tension_n_per_m": tuning.slack_tension(head),
+        "practical_minimum_n_per_m": tuning.practical_minimum(head),
         "reference": {"m": ref[0], "n": ref[1]},
         "modes": result.modes.table(reference=ref),
         "warnings": list(result.warnings),
@@ -199,8 +240,14 @@ def _statement(result: tuning.Tuning) -> str:
     from .. import tuning
 
     if result.together:
-        return (f"all {len(result.targets)} targets met within {tuning.TOGETHER_CENTS:g} cent"
-                if len(result.targets) > 1 else "target met")
+        met = (f"all {len(result.targets)} targets met within {tuning.TOGETHER_CENTS:g} cent"
+               if len(result.targets) > 1 else "target met")
+        t_min = tuning.practical_minimum(result.drum.head)
+        if t_min is not None and result.tension < t_min:
+            return (f"{met} in the model, but not on a real head: {result.tension:.3g} N/m is below the "
+                    f"practical minimum of about {t_min:.0f} N/m, where the head wrinkles and does not hold "
+                    "a pitch; choose a higher target (or a thinner, lighter head)")
+        return met
     worst = max(result.targets, key=lambda t: abs(t.residual_cents))
     hint = "" if result.free else " To change the modes' ratios, free the head's mass (--free areal-density) " \
         "or, for a kettle, its volume (--free volume)."
@@ -231,7 +278,14 @@ def _print_human(fmt: Format, drum, payload: dict, result) -> None:
             head_rows.append({"what": "film stress T/(plies h)", "value": f"{payload['stress_pa'] / 1e6:.1f} MPa"
                               + (f" ({100 * frac:.0f} % of yield {payload['yield_stress_pa'] / 1e6:.0f} MPa)"
                                  if frac is not None else "")})
-        head_rows.append({"what": "slack limit", "value": f"{payload['slack_tension_n_per_m']:.3g} N/m"})
+        if payload["tension_n_per_m"] < SLACK_SHOWN * payload["slack_tension_n_per_m"]:
+            # only near it does the slack limit matter to the suggestion
+            head_rows.append({"what": "slack limit", "value": f"{payload['slack_tension_n_per_m']:.3g} N/m "
+                              "(below it the film's bending stiffness, not its tension, sets the pitch)"})
+        if payload.get("practical_minimum_n_per_m") and \
+                payload["tension_n_per_m"] < payload["practical_minimum_n_per_m"]:
+            head_rows.append({"what": "practical minimum", "value": f"{payload['practical_minimum_n_per_m']:.0f} N/m "
+                              "(below it the head wrinkles and does not hold a pitch)"})
         emit(fmt, payload=payload, rows=head_rows, columns=[("what", "", str), ("value", "", str)],
              title=f"{drum.name}: tune with {payload['physics']} physics")
         gap()

@@ -333,7 +333,9 @@ def _table_page(modeset, size, reference, fit):
                       f"f0 = {fit.fundamental:.2f} Hz each is taken as, and its distance from it in cents "
                       "(100 cents = one semitone). Other modes are not part of the fit.")
     if any(mode.decay is not None for mode in modeset.modes):
-        legend.append(f"T60: time for the mode to die away by 60 dB, from sound radiation alone; values "
+        source = "sound radiation alone" if getattr(modeset, "losses", "all") == "radiation" else \
+            "sound radiation and the modelled losses in the film, the air and the rim"
+        legend.append(f"T60: time for the mode to die away by 60 dB, from {source}; values "
                       f"beyond {T60_SHOWN_MAX:g} s show as \"> {T60_SHOWN_MAX:g}\".")
     if len(cells) > rows:
         legend.insert(0, f"The lowest {rows} of {len(cells)} solved modes (membrane modes lists them all).")

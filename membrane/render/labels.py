@@ -36,7 +36,7 @@ def _overlap(a, b) -> float:
 
 
 def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 7.0, colors=None,
-                 obstacles=(), gid_prefix: str = "label"):
+                 obstacles=(), gid_prefix: str = "label", background: bool = False):
     """Annotate ``points`` (data coordinates) with ``texts``, avoiding overlaps.
 
     Parameters
@@ -55,6 +55,8 @@ def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 
         One colour per label (default black).
     obstacles : sequence of (float, float)
         More points (data coordinates) that labels must not cover.
+    background : bool
+        Put each label on a white patch (over lines drawn through it).
 
     Returns
     -------
@@ -96,7 +98,9 @@ def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 
                           color=color, ha="right" if dx < 0 else "left" if dx > 0 else "center",
                           va="top" if dy < 0 else "bottom" if dy > 0 else "center",
                           arrowprops=dict(arrowstyle="-", color="0.55", lw=0.6, shrinkA=0, shrinkB=3)
-                          if far else None, annotation_clip=False, gid=f"{gid_prefix} {text}")
+                          if far else None, annotation_clip=False, gid=f"{gid_prefix} {text}",
+                          bbox=dict(boxstyle="round,pad=0.1", fc="white", ec="none", alpha=0.85)
+                          if background else None)
         ann.set_in_layout(False)  # placed after the layout: must not move it
         blocked.append(cand)
         placed.append(ann)

@@ -18,7 +18,7 @@ SLACK = "#2471a3"
 BAND_HALF_WIDTH = 0.12  # the band's largest excursion, in head radii
 
 
-def lug_map(drum, tensions, *, turns=None, split=None, physics: str = "", size: float = 6.4):
+def lug_map(drum, tensions, *, turns=None, split=None, physics: str = "", rim=None, size: float = 6.4):
     """Figure: rim tension band, lug dials with turns, (1,1) nodal lines.
 
     Parameters
@@ -34,6 +34,8 @@ def lug_map(drum, tensions, *, turns=None, split=None, physics: str = "", size: 
         The (1,1) pair.
     physics : str
         Physics words for the caption.
+    rim : RimTension or None
+        The rim tension to draw; default the smooth spread through ``tensions``.
     size : float
         Figure width in inches.
 
@@ -47,7 +49,7 @@ def lug_map(drum, tensions, *, turns=None, split=None, physics: str = "", size: 
     from ..physics.prestress import lug_angles, rim_tension
 
     t = np.asarray(tensions, dtype=float)
-    rim = rim_tension(t)
+    rim = rim_tension(t) if rim is None else rim
     fig = Figure(figsize=(size, size * 1.08), layout="constrained")
     ax = fig.add_subplot()
     ax.set_aspect("equal")
@@ -58,11 +60,17 @@ def lug_map(drum, tensions, *, turns=None, split=None, physics: str = "", size: 
     gain = BAND_HALF_WIDTH / top
     outer = 1.0 + gain * dev
     ax.add_patch(Circle((0, 0), 1.0, facecolor="0.96", edgecolor="0.15", lw=1.2, zorder=1))
-    for sign, colour in ((1, TIGHT), (-1, SLACK)):
-        band = np.where(sign * dev > 0, outer, 1.0)
-        xs = np.concatenate([np.cos(theta) * band, np.cos(theta[::-1])])
-        ys = np.concatenate([np.sin(theta) * band, np.sin(theta[::-1])])
-        ax.fill(xs, ys, color=colour, alpha=0.35, lw=0, zorder=2)
+    # one polygon per stretch of rim that is all tighter or all slacker than the mean
+    sign = np.sign(dev)
+    cuts = np.flatnonzero(sign[1:] != sign[:-1]) + 1
+    for seg in np.split(np.arange(theta.size), cuts):
+        if sign[seg[0]] == 0:
+            continue
+        seg = np.concatenate([[max(seg[0] - 1, 0)], seg, [min(seg[-1] + 1, theta.size - 1)]])
+        th = theta[seg]
+        xs = np.concatenate([np.cos(th) * outer[seg], np.cos(th[::-1])])
+        ys = np.concatenate([np.sin(th) * outer[seg], np.sin(th[::-1])])
+        ax.fill(xs, ys, color=TIGHT if sign[seg[1]] > 0 else SLACK, alpha=0.35, lw=0, zorder=2)
     ax.plot(np.cos(theta) * outer, np.sin(theta) * outer, color="0.3", lw=0.8, zorder=3)
 
     angles = lug_angles(t.size)
@@ -108,7 +116,8 @@ def lug_map(drum, tensions, *, turns=None, split=None, physics: str = "", size: 
     dial = "dial: turn to make, full circle = 1 turn (or more)" if unit == "turn" else \
         "dial: tap-pitch change to make, full circle = 50 cents"
     fig.text(0.5, 0.01,
-             f"band: rim tension off its mean {rim.mean:.0f} N/m, drawn {gain:.1f}x (red tighter, blue slacker); "
-             f"{dial}\nred wedge tighten (clockwise), blue loosen; lines: nodal diameters of the (1,1) pair "
-             f"(solid higher, dashed lower); {physics} physics", ha="center", va="bottom", fontsize=7)
+             f"band: rim tension off its mean {rim.mean:.0f} N/m, drawn {gain:.1f}x (red tighter, blue slacker)\n"
+             f"{dial}; red wedge: tighten (grows clockwise), blue: loosen\n"
+             f"lines: nodal diameters of the (1,1) pair (solid higher, dashed lower); {physics} physics",
+             ha="center", va="bottom", fontsize=7)
     return fig

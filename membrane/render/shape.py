@@ -170,7 +170,7 @@ def wrap_title(text: str, width_in: float, fontsize: float) -> str:
 def ratio_to(modeset, mode, reference: tuple[int, int]) -> float | None:
     """Frequency ratio of ``mode`` to the reference mode, or None if that was not solved."""
     try:
-        ref = modeset.find(*reference)
+        ref = modeset.reference_mode(reference)
     except ValueError:
         return None
     return mode.frequency / ref.frequency

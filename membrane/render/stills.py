@@ -198,7 +198,7 @@ def grid_caption(modeset, mode, reference) -> str:
     if head and "head" not in label:
         label = f"{label}\n{head}"
     elif head:  # the label names the resonant head already
-        label = label.replace(", resonant head", "\nresonant head")
+        label = label.replace(", resonant head", "\nresonant head").replace(", struck head", "\nstruck head")
     return f"{label}\n{rest.replace('  ', '   ')}"
 
 
