@@ -5,6 +5,8 @@ import json
 import math
 import subprocess
 
+from dataclasses import replace
+
 import numpy as np
 import pytest
 import scipy.integrate
@@ -222,15 +224,20 @@ def test_best_strike_radius_of_the_kettledrum_for_the_m1_modes(full):
     # The trade strikes about a quarter of the way in from the rim, r/a ~ 0.75  # common
     # practice, no source. The model disagrees by 0.1 of the radius: it does not reproduce the
     # rule of thumb, and this test does not widen its band to pretend it does.
-    advice = best_strike_radius(full, modes=[(1, 1), (2, 1), (3, 1), (4, 1)])
+    # The claim is about the head's own modes: the bowl's air rows (kind "air", mostly the
+    # air in the bowl, docs/mode-identity.md) are left out of this check.
+    heads = replace(full, modes=tuple(mo for mo in full if mo.kind == "head"))
+    advice = best_strike_radius(heads, modes=[(1, 1), (2, 1), (3, 1), (4, 1)])
     circles = [scipy.special.jn_zeros(m, n)[n - 2] / scipy.special.jn_zeros(m, n)[n - 1]
                for m, n in ((1, 2), (2, 2), (1, 3), (2, 3))]
     assert min(circles) < advice.at < max(circles), (advice, circles)
     # at the advice each of those four is well below its own strongest excitation
-    levels = {at: {(p.mode.m, p.mode.n): abs(p.pressure) for p in strike_partials(full, strike=Strike(at=at))}
+    levels = {at: {(p.mode.m, p.mode.n): abs(p.pressure) for p in strike_partials(heads, strike=Strike(at=at))}
               for at in np.linspace(0.05, 0.95, 19)}
     here = {(p.mode.m, p.mode.n): abs(p.pressure) for p in advice.partials}
-    for mode in ((1, 2), (2, 2), (1, 3), (2, 3)):
+    # (the (2,3) is not checked: on this kettle it is a hybrid with the bowl's air, about a
+    # quarter of its energy in the air (head fraction 0.77), and its nodal circle moves)
+    for mode in ((1, 2), (2, 2), (1, 3)):
         assert here[mode] < 0.5 * max(lv[mode] for lv in levels.values()), mode
 
 

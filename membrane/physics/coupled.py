@@ -1083,7 +1083,7 @@ def decay_time(omega: complex) -> float:
 
 
 def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
-               losses=None) -> list:
+               losses=None, air: bool = False) -> list:
     """Modes of a drum with air on its faces and in its body (``--physics full``).
 
     Parameters
@@ -1103,7 +1103,8 @@ def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
     list of membrane.modes.Mode
         (m, n) is the root that is most the in-vacuum mode (m, n) (see :func:`label_roots`);
         for a shell each (m, n) appears once per branch, ``"in-phase"`` or ``"opposed"``.
-        Decay is T60 from radiation damping only.
+        Decay is T60 from radiation damping only. With ``air``, the roots that are mostly
+        the body's air are rows of their own (kind "air", n = 0).
     """
     from ..modes import Mode
 
@@ -1118,9 +1119,13 @@ def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
         if m not in bases:
             bases[m] = h1.basis()
         for r, lab in enumerate(od.labels):
-            if lab is None or lab[0] != "head":
+            if lab is None or (lab[0] == "air" and not air):
                 continue
-            _, hidx, n = lab
+            kind, air_mode = "head", None
+            if lab[0] == "air":
+                kind, air_mode, hidx, n = "air", (lab[1], lab[2]), 0, 0
+            else:
+                _, hidx, n = lab
             x = od.vectors[r]
             coef = h1.unit.to_basis(x[: h1.size])
             res_coef = res_basis = None
@@ -1133,8 +1138,9 @@ def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
                 else:
                     h2 = order.heads[1]
                     res_coef = h2.unit.to_basis(x[h1.size:])
-                    head = "struck" if hidx == 0 else "resonant"
-                    pair.setdefault((m, n), []).append(len(out))
+                    if kind == "head":
+                        head = "struck" if hidx == 0 else "resonant"
+                        pair.setdefault((m, n), []).append(len(out))
                     res_basis = h2.basis()
             scale = np.max(np.abs(coef)) if res_coef is None else max(np.max(np.abs(coef)),
                                                                       np.max(np.abs(res_coef)))
@@ -1143,7 +1149,8 @@ def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
                             multiplicity=1 if m == 0 else 2, omega=w,
                             coefficients=coef / scale, basis=bases[m], branch=branch, head=head,
                             resonant_coefficients=None if res_coef is None else res_coef / scale,
-                            resonant_basis=res_basis))
+                            resonant_basis=res_basis, kind=kind,
+                            head_fraction=float(od.head_fraction[r]), air_mode=air_mode))
     for (m, n), (i, j) in pair.items():  # unequal heads: label the pair's branches
         s = [_phase_score(out[k], n) for k in (i, j)]
         hi, lo = (i, j) if s[0] >= s[1] else (j, i)
