@@ -72,7 +72,7 @@ class Mode:
         The same for the resonant head of a shell, else None.
     kind : {"head", "air"}
         ``"air"``: a root that is mostly the body's own air (docs/mode-identity.md); its
-        n is 0 and ``air_mode`` (q, p) names the body's rigid-walled resonance it is
+        n is -1, -2, ... (up the order m) and ``air_mode`` (q, p) names the body's rigid-walled resonance it is
         nearest: q nodal circles across, p half-waves along the depth.
     head_fraction : float
         Share of the root's vibrational energy in the head(s), 0..1 (1 without a body).

@@ -1104,7 +1104,8 @@ def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
         (m, n) is the root that is most the in-vacuum mode (m, n) (see :func:`label_roots`);
         for a shell each (m, n) appears once per branch, ``"in-phase"`` or ``"opposed"``.
         Decay is T60 from radiation damping only. With ``air``, the roots that are mostly
-        the body's air are rows of their own (kind "air", n = 0).
+        the body's air are rows of their own (kind "air", n = -1, -2, ... in order of
+        frequency within their m, a key no head mode has).
     """
     from ..modes import Mode
 
@@ -1122,8 +1123,9 @@ def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
             if lab is None or (lab[0] == "air" and not air):
                 continue
             kind, air_mode = "head", None
-            if lab[0] == "air":
-                kind, air_mode, hidx, n = "air", (lab[1], lab[2]), 0, 0
+            if lab[0] == "air":  # n = -1, -2, ... up the order: a key of its own, never a head's
+                n_air = sum(1 for lb in od.labels[:r + 1] if lb is not None and lb[0] == "air")
+                kind, air_mode, hidx, n = "air", (lab[1], lab[2]), 0, -n_air
             else:
                 _, hidx, n = lab
             x = od.vectors[r]
