@@ -157,18 +157,26 @@ class Air:
 
 @dataclass(frozen=True)
 class Lugs:
-    """Tap pitches measured near each tension lug, for equalisation.
+    """What is known of the tension lugs: tap pitches near each, and/or their tensions.
 
     Attributes
     ----------
-    pitches : tuple of float
+    pitches : tuple of float or None
         Tap pitch near each lug in Hz, in order around the rim.
     cents_per_turn : float or None
         Measured pitch change for one full turn of a lug's rod, in cents.
+    tensions : tuple of float or None
+        Tension at each lug in N/m, in order around the rim (equally spaced lugs).
     """
 
-    pitches: tuple[float, ...]
+    pitches: tuple[float, ...] | None = None
     cents_per_turn: float | None = None
+    tensions: tuple[float, ...] | None = None
+
+    @property
+    def count(self) -> int:
+        """Number of lugs."""
+        return len(self.pitches if self.pitches is not None else self.tensions)
 
 
 @dataclass(frozen=True)
@@ -213,7 +221,7 @@ _HEAD_KEYS = {"diameter", "radius", "film", "thickness", "plies", "density", "ar
               "tensile_strength"}
 _BODY_KEYS = {"kind", "volume", "depth"}
 _AIR_KEYS = {"temperature", "pressure", "density", "sound_speed"}
-_LUG_KEYS = {"pitches", "cents_per_turn"}
+_LUG_KEYS = {"pitches", "cents_per_turn", "tensions"}
 _TOP_KEYS = {"name", "description", "head", "body", "resonant_head", "air", "lugs", "losses"}
 
 
@@ -322,15 +330,30 @@ def _parse_air(table: dict) -> Air:
 
 def _parse_lugs(table: dict) -> Lugs:
     _check_keys(table, _LUG_KEYS, "lugs")
-    pitches = table.get("pitches")
-    if not isinstance(pitches, list) or len(pitches) < 3:
-        raise InputError("lugs.pitches", pitches, "must be a list of at least 3 tap pitches, one per lug")
-    hz = tuple(parse_pitch(p, key=f"lugs.pitches[{i}]") for i, p in enumerate(pitches))
+    if "pitches" not in table and "tensions" not in table:
+        raise InputError("lugs", sorted(table), "give pitches (tap pitch near each lug) and/or tensions")
+    hz = None
+    if "pitches" in table:
+        pitches = table["pitches"]
+        if not isinstance(pitches, list) or len(pitches) < 3:
+            raise InputError("lugs.pitches", pitches, "must be a list of at least 3 tap pitches, one per lug")
+        hz = tuple(parse_pitch(p, key=f"lugs.pitches[{i}]") for i, p in enumerate(pitches))
+    tensions = None
+    if "tensions" in table:
+        values = table["tensions"]
+        if not isinstance(values, list) or len(values) < 3:
+            raise InputError("lugs.tensions", values, "must be a list of at least 3 tensions, one per lug")
+        tensions = tuple(to_si(v, "tension", key=f"lugs.tensions[{i}]") for i, v in enumerate(values))
+        for i, (v, t) in enumerate(zip(values, tensions)):
+            if not 0 < t <= 1e5:
+                raise InputError(f"lugs.tensions[{i}]", v, "must be > 0 and <= 100000 N/m")
+        if hz is not None and len(hz) != len(tensions):
+            raise InputError("lugs.tensions", values, f"must have one tension per lug ({len(hz)} pitches given)")
     per_turn = table.get("cents_per_turn")
     if per_turn is not None and (isinstance(per_turn, bool) or not isinstance(per_turn, (int, float))
                                  or not 0 < per_turn <= 1200):
         raise InputError("lugs.cents_per_turn", per_turn, "must be a number of cents > 0 and <= 1200")
-    return Lugs(pitches=hz, cents_per_turn=None if per_turn is None else float(per_turn))
+    return Lugs(pitches=hz, cents_per_turn=None if per_turn is None else float(per_turn), tensions=tensions)
 
 
 def parse_drum(table: dict) -> Drum:

@@ -7,12 +7,12 @@ struck head too). All targets are met together in the least-squares sense in cen
 on one of two models of the drum:
 
 * ``other="free"`` (the coupled model): both heads on the shell, coupled through
-  the enclosed air. A mode belongs to the head it grows from (its in-vacuum origin,
-  the head that moves most). On a shell the air spring pushes the two heads' (0,n)
-  modes far apart (an in-phase / opposed pair about an octave apart on a tom), so
-  an interval between the heads' (0,1) modes is mostly set by the shell, not by the
-  tensions; a target the model cannot reach is reported as such, with the nearest
-  it can get.
+  the enclosed air. A head's (m, n) is the member of the in-phase / opposed pair
+  that head moves most in, in the drum as given; the search follows that member
+  (branch) while the tensions change. On a shell the air spring pushes the two
+  heads' (0,n) modes far apart (about an octave on a tom), so an interval between
+  the heads' (0,1) modes is mostly set by the shell, not by the tensions. A target
+  the model cannot reach is reported as such, with the nearest it can get.
 * ``other="damped"``: each head's modes with the other head held still, the way a
   maker taps one head with the other muted. The held head is taken as a rigid end
   of the shell (the shell is then a closed cylinder, as a kettle of the shell's
@@ -91,7 +91,7 @@ class HeadsTuning:
     other: str
     together: bool
     solves: int
-    branches: dict = None  # (head, m, n) -> the pair branch followed (coupled shell), else None
+    branches: dict = None  # (head, m, n) -> its pair member in the drum as given (coupled shell)
 
     @property
     def rms_cents(self) -> float:
@@ -162,19 +162,23 @@ class _Model:
         self.n_max = max(n_max, max(n for _, _, n in self.wanted))
         self.cache = {}
         self.solves = 0
-        self.branch = None  # (head, m, n) -> branch of the pair, fixed at the drum as given
+        self.branch = None  # (head, m, n) -> its pair member (in-phase/opposed) in the drum as given
 
     def _pick(self, result: ModeSet, head: str, m: int, n: int) -> float:
-        """A head's mode, followed by its pair branch from the drum as given.
+        """A head's mode, followed along its pair branch from the drum as given.
 
         On a shell the two heads' (m, n) modes are one in-phase / opposed pair whose
-        members never cross; which head a member "grows from" flips where the heads'
-        own tunings cross, but the branch does not. So a mode keeps the branch it had
-        in the drum as given, and the search follows that branch (smooth in tension).
+        members never cross. Which head moves most in a member (the head the solver's
+        row names) flips where the heads' own tunings cross, and a search on that label
+        would meet a jump it cannot cross; the branch does not flip. So a named mode
+        keeps the branch it had in the drum as given, and the search follows that
+        branch, smooth in the tensions (the output says when the row's head word has
+        changed at the suggestion).
         """
-        if self.branch is None or result.drum.resonant_head is None:
+        branch = (self.branch or {}).get((head, m, n))
+        if branch is None or result.drum.resonant_head is None:
             return find_mode(result, head, m, n).frequency
-        return result.find(m, n, self.branch[(head, m, n)]).frequency
+        return result.find(m, n, branch).frequency
 
     def variant(self, tensions: dict) -> Drum:
         drum = self.drum
@@ -198,6 +202,7 @@ class _Model:
                 self.solves += 1
                 out = {(h, m, n): self._pick(result, h, m, n) for h, m, n in self.wanted}
                 if self.branch is None and drum.resonant_head is not None and drum.body.kind == "shell":
+                    # the pair member each named mode is in the drum as given, for the output
                     self.branch = {(h, m, n): find_mode(result, h, m, n).branch for h, m, n in self.wanted}
             self.cache[key] = out
         return self.cache[key]
@@ -319,49 +324,60 @@ def tune_heads(drum: Drum, *, targets=(), intervals=(), physics: str = "full", o
                        branches=dict(model.branch or {}))
 
 
-def _newton(residuals, x0, lo, hi, *, tol_cents: float = 1e-4, max_iter: int = 40):
+FD_STEP = 1e-2  # ln T step of the finite-difference Jacobian
+
+
+def _newton(residuals, x0, lo, hi, *, tol_cents: float = 1e-3, max_iter: int = 30):
     """Root of as many residuals (cents) as unknowns (ln T per free head), within bounds.
 
-    Newton's method with a finite-difference Jacobian at the start and Broyden's
-    updates after (each residual evaluation is a model solve, so the count matters).
+    Newton's method with a finite-difference Jacobian, updated by Broyden's rule after
+    each accepted step (each residual evaluation is a model solve, so the count matters).
     In ln T a mode moves about 600 cents per unit (f ~ sqrt(T)), nearly linearly, so a
-    few steps suffice. A step is limited to a factor e^0.5 in tension and kept inside
-    the bounds; when the residual stops shrinking (a target the model cannot reach)
-    the best point found is returned, and the caller reports how far off it is.
+    few steps suffice. A step is limited to a factor e^0.5 in tension, kept inside the
+    bounds, and halved until it reduces the largest residual; a label passing to the
+    other member of a pair makes a jump no step can cross, and when no step helps even
+    with a fresh Jacobian the best point found is returned (the caller reports how far
+    off it is).
     """
+    def jacobian(x, r):
+        # a step of 1 % in tension moves a mode by a few cents, far above the solver's own
+        # convergence (about 1e-5 relative, 0.02 cent), so the slopes are not noise
+        jac = np.empty((r.size, x.size))
+        for j in range(x.size):
+            dx = np.zeros_like(x)
+            dx[j] = FD_STEP if x[j] + FD_STEP <= hi[j] else -FD_STEP
+            jac[:, j] = (residuals(x + dx) - r) / dx[j]
+        return jac
+
     x = np.clip(x0, lo, hi)
     r = residuals(x)
-    step = 1e-4
-    jac = np.empty((r.size, x.size))
-    for j in range(x.size):
-        dx = np.zeros_like(x)
-        dx[j] = step if x[j] + step <= hi[j] else -step
-        jac[:, j] = (residuals(x + dx) - r) / dx[j]
-    best = (float(np.max(np.abs(r))), x.copy())
-    stalled = 0
+    jac, fresh = jacobian(x, r), True
     for _ in range(max_iter):
-        if best[0] < tol_cents:
+        size = float(np.max(np.abs(r)))
+        if size < tol_cents:
             break
         try:
-            dx = np.linalg.solve(jac, -r)
+            step = np.linalg.solve(jac, -r)
         except np.linalg.LinAlgError:
-            dx = np.linalg.lstsq(jac, -r, rcond=None)[0]
-        dx = dx * min(1.0, 0.5 / max(np.max(np.abs(dx)), 1e-300))
-        x_new = np.clip(x + dx, lo, hi)
-        dx = x_new - x
-        if not np.any(dx):
-            break  # pinned at a bound, pushing outward: unreachable
-        r_new = residuals(x_new)
-        jac += np.outer((r_new - r) - jac @ dx, dx) / float(dx @ dx)
-        x, r = x_new, r_new
-        size = float(np.max(np.abs(r)))
-        if size < best[0] * 0.999:
-            best, stalled = (size, x.copy()), 0
-        else:
-            stalled += 1
-            if stalled >= 4:
+            step = np.linalg.lstsq(jac, -r, rcond=None)[0]
+        step = step * min(1.0, 0.5 / max(float(np.max(np.abs(step))), 1e-300))
+        accepted = False
+        for _halving in range(4):
+            x_new = np.clip(x + step, lo, hi)
+            dx = x_new - x
+            if not np.any(dx):
+                break  # pinned at a bound, pushing outward
+            r_new = residuals(x_new)
+            if float(np.max(np.abs(r_new))) < size:
+                jac += np.outer((r_new - r) - jac @ dx, dx) / float(dx @ dx)
+                x, r, accepted, fresh = x_new, r_new, True, False
                 break
-    return best[1]
+            step = 0.5 * step
+        if not accepted:
+            if fresh:
+                break  # no step helps even with a fresh Jacobian: unreachable from here
+            jac, fresh = jacobian(x, r), True
+    return x
 
 
 def interval_words(cents: float) -> str:

@@ -12,6 +12,21 @@ mode with nodal diameters (m >= 1) is a degenerate pair (cos and sin) that uneve
 splits into two partials beating at their difference frequency. They are labelled with
 the same mode and reported as a split pair.
 
+Partials count by weight: strong, long-ringing partials most (a level and a sustain
+factor, :func:`weights`); partials flagged steady (hum) are left out, and a gliding
+partial is fitted at its settled frequency (the head's small-amplitude tension, which the
+model describes). A split pair is claimed only for two steady components, each with its
+own decay, never for a glide.
+
+The search: a global start over tension with the stiff model (cheap), every pairing of a
+strong partial with a low mode proposing a tension; with ``physics="full"`` the stiff
+result is then refined with the full model (a few solves at the paired orders only).
+
+The result carries the matched count, the rms cents, the tension's uncertainty (the
+weighted scatter of the pairs over the root of their count, through the slope of
+ln f against ln T) and a verdict: fewer than :data:`MIN_MATCHED` matched partials is "not
+identified"; a film stress past the film's yield is "implausible".
+
 Approximations: the model's frequencies at a trial tension come from sqrt(T) scaling
 only to find the starting point (exact for the ideal membrane); every refinement solves
 the model at the trial tension, so stiffness and air loading (which break the sqrt(T)
@@ -40,9 +55,12 @@ MISSING_MODE_COST = 0.3  # a model mode without a partial, in units of MAX_CENTS
 MAX_TENSION_FACTOR = 25.0  # search within this factor of the drum's nominal tension
 # model modes up to this ratio to the ideal (0,1) mode: the table grows as its square, and a
 # full-physics solve takes about 0.1 s a mode, so the full model gets the smaller range
-MAX_RANGE = {"ideal": 10.0, "stiff": 10.0, "full": 6.0}
-_SECANT_TOL = 1e-6  # in ln T: 1e-4 %, far below the 1 % the fit can promise
+MAX_RANGE = {"ideal": 10.0, "stiff": 10.0, "full": 4.5}
+_SECANT_TOL = 1e-4  # in ln T: 0.01 %, far below the 1 % the fit can promise
 _MAX_ROUNDS = 6  # assignment / tension rounds
+MIN_MATCHED = 3  # fewer matched partials than this: the drum is not identified
+MAX_FIT_PARTIALS = 24  # the heaviest partials fitted (bounded work; the rest are labelled)
+SPLIT_MIN_T60_S = 0.3  # both halves of a split ring at least this long
 
 
 @dataclass(frozen=True)
@@ -129,11 +147,54 @@ class Identification:
     splits: tuple[SplitPair, ...]
     modes: ModeSet
     beyond: tuple[Partial, ...] = ()
+    uncertainty: float = math.nan
+    physics: str = "stiff"
 
     @property
     def rms_cents(self) -> float:
         """Root-mean-square residual of the matches [cents]."""
         return float(np.sqrt(np.mean([mt.cents**2 for mt in self.matches]))) if self.matches else math.nan
+
+    @property
+    def stress(self) -> float | None:
+        """Film stress at the fitted tension [Pa], None without a thickness."""
+        return self.drum.head.stress
+
+    @property
+    def verdict(self) -> str:
+        """``"identified"``, ``"not identified: ..."`` or ``"implausible: ..."``."""
+        head = self.drum.head
+        if len(self.matches) < MIN_MATCHED:
+            return (f"not identified: {len(self.matches)} partials matched, at least "
+                    f"{MIN_MATCHED} needed")
+        if self.stress is not None and head.yield_stress is not None and \
+                self.stress > head.yield_stress:
+            return (f"implausible: film stress {self.stress / 1e6:.0f} MPa at this tension is "
+                    f"past the film's yield stress {head.yield_stress / 1e6:.0f} MPa")
+        return "identified"
+
+    @property
+    def fit(self) -> dict:
+        """The fit in one record (JSON ``fit``)."""
+        return {"tension_n_per_m": self.tension,
+                "uncertainty_n_per_m": None if not math.isfinite(self.uncertainty) else self.uncertainty,
+                "matched": len(self.matches), "rms_cents": self.rms_cents if self.matches else None,
+                "verdict": self.verdict, "physics": self.physics}
+
+
+def weights(partials) -> np.ndarray:
+    """How much each partial counts in the fit (0..1): level times sustain.
+
+    The level factor falls from 1 at the strongest partial to 0.1 at 40 dB below it; the
+    sustain factor from 1 at T60 >= 1 s to 0.1 at 0.1 s (common practice, no source: the
+    strong, long-ringing partials are the head's modes, the weak and short ones are as often
+    the mallet, the stand or the room).
+    """
+    level = np.array([p.level_db for p in partials], dtype=float)
+    t60 = np.array([p.t60 if p.t60 is not None else 0.0 for p in partials], dtype=float)
+    w_level = np.clip(1.0 + level / 40.0 * 0.9, 0.1, 1.0)
+    w_sustain = np.clip(t60, 0.1, 1.0)
+    return w_level * w_sustain
 
 
 def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float = MAX_CENTS,
@@ -158,11 +219,13 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
     Returns
     -------
     Identification
+        Check its ``verdict``: a result with fewer than :data:`MIN_MATCHED` matches is
+        returned, marked "not identified".
 
     Raises
     ------
     InputError
-        If there are fewer than two partials or the options are out of range.
+        If there are fewer than two usable partials or the options are out of range.
     SolverError
         If no tension explains at least two partials.
     """
@@ -170,57 +233,183 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
         raise InputError("max_cents", max_cents, "between 0 and 600 cents")
     if not 0 <= split_cents < max_cents:
         raise InputError("split_cents", split_cents, f"between 0 and max_cents ({max_cents})")
-    parts = sorted(partials, key=lambda p: p.frequency)
-    if len(parts) < 2:
-        raise InputError("partials", len(parts), "need at least two partials to fit a tension")
-    # the table reaches 1.6 times the partials' span (the lowest partial may be the (1,1),
-    # 1.59 times the (0,1), when the (0,1) is missed), at most MAX_RANGE times the (0,1)
-    limit = MAX_RANGE.get(physics, 6.0)
-    fp = np.array([p.frequency for p in parts])
+    usable = sorted((p for p in partials if "steady" not in p.flags), key=lambda p: p.settled)
+    if len(usable) < 2:
+        raise InputError("partials", len(usable), "need at least two partials that decay (not "
+                         "flagged steady) to fit a tension")
+    heavy = np.argsort(-weights(usable), kind="stable")[:MAX_FIT_PARTIALS]
+    parts = [usable[i] for i in sorted(heavy)]
+    fp = np.array([p.settled for p in parts])
+    w = weights(parts)
+    split_ok = _splittable(parts)
     t0 = drum.head.tension
     say = progress or (lambda message: None)
-    m_max, n_max = _orders(fp.max() / fp.min() * 1.6, limit)
-    say(f"solving the {physics} model, m <= {m_max}, n <= {n_max}, at the drum file's tension")
-    base = solve(drum, physics, m_max=m_max, n_max=n_max)
+    # the global search runs on the stiff model (or the ideal one, if asked for): cheap
+    # solves; the full model refines the result
+    search = "stiff" if physics == "full" else physics
+    # the table reaches 1.6 times the partials' span (the lowest partial may be the (1,1),
+    # 1.59 times the (0,1), when the (0,1) is missed), at most MAX_RANGE times the (0,1)
+    m_max, n_max = _orders(fp.max() / fp.min() * 1.6, MAX_RANGE.get(search, 6.0))
+    say(f"searching tensions with the {search} model, m <= {m_max}, n <= {n_max}")
+    base = solve(drum, search, m_max=m_max, n_max=n_max)
     labels = [(md.m, md.n, md.branch, md.head) for md in base.modes]
-    # every mode below the table's (m_max, 1) and (0, n_max) is in it; partials above that
-    # cannot be told from the modes left out, so they stay unpaired
     edge = [k for k, lb in enumerate(labels) if lb[:2] in ((m_max, 1), (0, n_max))]
     double = np.array([md.multiplicity == 2 for md in base.modes])
     f_base = np.array([md.frequency for md in base.modes])
 
     # start: every pairing of a strong partial with a low mode proposes a tension (sqrt law)
-    strong = np.argsort([-p.amplitude for p in parts])[:6]
-    best = None
-    for i in strong:
-        for k in range(min(12, f_base.size)):
-            t = t0 * (fp[i] / f_base[k]) ** 2
-            if not 1 / MAX_TENSION_FACTOR <= t / t0 <= MAX_TENSION_FACTOR:
-                continue
-            g = f_base * math.sqrt(t / t0)
-            cost, pairs = _assign(fp, g, double, max_cents, split_cents, cover=np.nanmin(g[edge]))
-            if best is None or cost < best[0] - 1e-9:
-                best = (cost, t, pairs)
+    best = _start(fp, w, split_ok, f_base, t0, double, edge, max_cents, split_cents,
+                  MAX_TENSION_FACTOR)
     if best is None or len(best[2]) < 2:
         raise SolverError("no tension within a factor of 25 of the drum's puts two of its modes "
                           "on the partials; check the drum file (diameter, film)")
     _, tension, pairs = best
+    scale = 1.0
+    tension, pairs, modes = _refine(drum, search, fp, w, split_ok, pairs, labels, tension,
+                                    m_max, n_max, double, max_cents, split_cents, say,
+                                    known=None)
+    if physics == "full":
+        m_max, n_max = _orders(fp.max() / fp.min() * 1.6, MAX_RANGE["full"])
+        say(f"refining with the full model at {tension:.0f} N/m, m <= {m_max}, n <= {n_max}")
+        modes = solve(drum.with_tension(tension), "full", m_max=m_max, n_max=n_max)
+        labels = [(md.m, md.n, md.branch, md.head) for md in modes.modes]
+        edge = [k for k, lb in enumerate(labels) if lb[:2] in ((m_max, 1), (0, n_max))]
+        double = np.array([md.multiplicity == 2 for md in modes.modes])
+        g = _by_label(modes, labels)
+        # the same global start on the full model's own modes, near the stiff tension: air
+        # loading moves the low modes by more than a match's width
+        found = _start(fp, w, split_ok, g, tension, double, edge, max_cents, split_cents, 2.0)
+        pairs = found[2] if found is not None and len(found[2]) >= 2 else \
+            _assign(fp, g, double, max_cents, split_cents, cover=np.nanmin(g[edge]),
+                    weight=w, split_ok=split_ok)[1]
+        t_tab, pairs, modes, last, scale = _refine_full(
+            drum, fp, w, split_ok, pairs, modes, labels, tension, m_max, n_max, double, edge,
+            max_cents, split_cents, say)
+        tension = t_tab * math.exp(last)
+    g = _by_label(modes, labels) * scale  # the table carried to the fitted tension
+    cover = np.nanmin(g[edge])
+    # every usable partial labelled at the fitted tension (the fit used the heaviest)
+    fa = np.array([p.settled for p in usable])
+    all_pairs = _assign(fa, g, double, max_cents, split_cents, cover=cover,
+                        weight=weights(usable), split_ok=_splittable(usable))[1]
+    sigma = _uncertainty(fp, w, pairs, g, tension)
+    return _result(drum, tension, t0, usable, all_pairs, labels, g, modes, cover=cover,
+                   uncertainty=sigma, physics=physics, split_cents=split_cents)
 
-    # refine: tension for the pairs (model solved at each trial), then pair again
-    modes = base
-    for round_ in range(_MAX_ROUNDS):
+
+def _start(fp, w, split_ok, f_base, t_base, double, edge, max_cents, split_cents, factor):
+    """The best (cost, tension, pairs) over tensions that put a strong partial on a low mode.
+
+    ``f_base`` are the model's modes at ``t_base`` [N/m], scaled by sqrt(T / t_base) to each
+    trial; trials are limited to within ``factor`` of ``t_base``.
+    """
+    best = None
+    for i in np.argsort(-w)[:6]:
+        for k in range(min(12, f_base.size)):
+            if not np.isfinite(f_base[k]):
+                continue
+            t = t_base * (fp[i] / f_base[k]) ** 2
+            if not 1 / factor <= t / t_base <= factor:
+                continue
+            g = f_base * math.sqrt(t / t_base)
+            cost, pairs = _assign(fp, g, double, max_cents, split_cents,
+                                  cover=np.nanmin(g[edge]), weight=w, split_ok=split_ok)
+            if best is None or cost < best[0] - 1e-9:
+                best = (cost, t, pairs)
+    return best
+
+
+def _splittable(parts) -> np.ndarray:
+    """Partials that may be half of a split pair: steady frequency, a decay of their own."""
+    return np.array([("glide" not in p.flags) and (p.t60 or 0.0) >= SPLIT_MIN_T60_S
+                     for p in parts])
+
+
+def _refine(drum, physics, fp, w, split_ok, pairs, labels, tension, m_max, n_max, double,
+            max_cents, split_cents, say, *, known, rounds=_MAX_ROUNDS):
+    """Alternate: tension for the pairs (the model solved at each trial), then pair again."""
+    modes = known
+    edge = [k for k, lb in enumerate(labels) if lb[:2] in ((m_max, 1), (0, n_max))]
+    for round_ in range(rounds):
         say(f"round {round_ + 1}: fitting the tension to {len(pairs)} paired partials")
-        tension = _fit_tension(drum, physics, fp, pairs, labels, tension,
-                               known=None if round_ == 0 else _by_label(modes, labels))
+        tension = _fit_tension(drum, physics, fp, pairs, labels, tension, weight=w,
+                               known=None if modes is None else _by_label(modes, labels))
         say(f"round {round_ + 1}: pairing again at {tension:.1f} N/m")
         modes = solve(drum.with_tension(tension), physics, m_max=m_max, n_max=n_max)
         g = _by_label(modes, labels)
-        new_pairs = _assign(fp, g, double, max_cents, split_cents, cover=np.nanmin(g[edge]))[1]
+        new_pairs = _assign(fp, g, double, max_cents, split_cents, cover=np.nanmin(g[edge]),
+                            weight=w, split_ok=split_ok)[1]
         if new_pairs == pairs:
             break
         pairs = new_pairs
-    g = _by_label(modes, labels)
-    return _result(drum, tension, t0, parts, pairs, labels, g, modes, cover=np.nanmin(g[edge]))
+    return tension, pairs, modes
+
+
+FULL_SOLVES = 4  # full-model tables solved in the refinement, at most
+FULL_STEP = 2.5e-3  # in ln T: a step this small from the latest table is taken by the sqrt law
+
+
+def _refine_full(drum, fp, w, split_ok, pairs, modes, labels, tension, m_max, n_max, double,
+                 edge, max_cents, split_cents, say):
+    """The tension on the full model in a few solves (each takes a second or more).
+
+    From the latest table (solved at T_tab) the pairs give the tension by the slope of
+    ln f against ln T, T = T_tab exp(mean_w ln(f_partial / f_mode) / slope); the model is solved there, the partials
+    paired again, and so on until the step is below :data:`FULL_STEP` or
+    :data:`FULL_SOLVES` tables have been solved. That last small step is taken by the
+    slope of ln f against ln T that the last two tables show (the sqrt law's 1/2 before
+    there are two): over 0.25 % of tension the model's frequencies follow that slope to far
+    less than a hundredth of a cent.
+
+    Returns the last table's tension [N/m], the pairs, the table, the last step in ln T
+    and the factor it moves the table's frequencies by.
+    """
+    t_tab = tension
+    slope, before = 0.5, None  # d ln f / d ln T: the sqrt law, then the tables' own secant
+    for count in range(1, FULL_SOLVES + 1):
+        g = _by_label(modes, labels)
+        i = np.array([a for a, _ in pairs])
+        ln_g = np.log(g[[k for _, k in pairs]])
+        ok = np.isfinite(ln_g)
+        if not ok.any():
+            raise SolverError("the paired modes vanished from the full model's table")
+        mean_g = float(np.sum(w[i][ok] * ln_g[ok]) / np.sum(w[i][ok]))
+        mean_f = float(np.sum(w[i][ok] * np.log(fp[i][ok])) / np.sum(w[i][ok]))
+        if before is not None and before[0] != math.log(t_tab) and before[2] == pairs:
+            slope = min(max((mean_g - before[1]) / (math.log(t_tab) - before[0]), 0.2), 1.0)
+        step = (mean_f - mean_g) / slope
+        if abs(step) < FULL_STEP or count == FULL_SOLVES:
+            return t_tab, pairs, modes, step, math.exp(slope * step)
+        before = (math.log(t_tab), mean_g, pairs)
+        t_tab = t_tab * math.exp(step)
+        say(f"full model at {t_tab:.1f} N/m ({count + 1} of at most {FULL_SOLVES} solves)")
+        modes = solve(drum.with_tension(t_tab), "full", m_max=m_max, n_max=n_max)
+        g = _by_label(modes, labels)
+        pairs = _assign(fp, g, double, max_cents, split_cents, cover=np.nanmin(g[edge]),
+                        weight=w, split_ok=split_ok)[1]
+    return t_tab, pairs, modes, 0.0, 1.0
+
+
+def _uncertainty(fp, w, pairs, g, tension) -> float:
+    """Standard error of the tension [N/m] from the weighted scatter of the pairs.
+
+    ln f goes as ln T / 2 (exactly for the ideal membrane, nearly so for the others), so
+    sigma(ln T) = 2 s / sqrt(N_eff - 1), with s the weighted standard deviation of the
+    pairs' ln(f_partial / f_mode) and N_eff = (sum w)^2 / sum w^2 the pairs' effective count.
+    """
+    if len(pairs) < 3:
+        return math.nan
+    i = np.array([a for a, _ in pairs])
+    r = np.log(fp[i] / g[[k for _, k in pairs]])
+    ww = w[i]
+    ok = np.isfinite(r)
+    r, ww = r[ok], ww[ok]
+    if r.size < 3:
+        return math.nan
+    mean = np.sum(ww * r) / np.sum(ww)
+    spread = math.sqrt(float(np.sum(ww * (r - mean) ** 2) / np.sum(ww)))
+    n_eff = float(np.sum(ww) ** 2 / np.sum(ww**2))
+    return float(tension * 2.0 * spread / math.sqrt(max(n_eff - 1.0, 1.0)))
 
 
 def _orders(ratio: float, limit: float) -> tuple[int, int]:
@@ -235,7 +424,8 @@ def _orders(ratio: float, limit: float) -> tuple[int, int]:
 
 
 def _assign(f: np.ndarray, g: np.ndarray, double: np.ndarray, max_cents: float,
-            split_cents: float, cover: float) -> tuple[float, list[tuple[int, int]]]:
+            split_cents: float, cover: float, weight: np.ndarray | None = None,
+            split_ok: np.ndarray | None = None) -> tuple[float, list[tuple[int, int]]]:
     """Pair partials ``f`` with modes ``g`` (both Hz) at least cost; returns cost and pairs.
 
     A pair costs its distance in cents (no pair beyond ``max_cents``). An unpaired partial
@@ -244,23 +434,30 @@ def _assign(f: np.ndarray, g: np.ndarray, double: np.ndarray, max_cents: float,
     model far too dense must not win by pairing everything). A degenerate mode
     (``double``) has a second place, for the other half of a split, within ``split_cents``.
     Partials above ``cover`` [Hz], where the table is no longer complete, stay unpaired.
+    Each partial's costs are scaled by its ``weight`` (a strong, long partial left unpaired
+    or paired far off costs most); only partials in ``split_ok`` may take a second place.
     """
+    w = np.ones(f.size) if weight is None else np.asarray(weight, dtype=float)
     cents = np.abs(1200.0 * np.log2(f[:, None] / g[None, :]))
     big = 1e6
     n_f, n_g = cents.shape
     second = np.nonzero(double)[0]
-    cost = np.concatenate([np.where(cents <= max_cents, cents, big),
-                           np.where(cents[:, second] <= split_cents, cents[:, second] + 1e-3, big)],
+    second_ok = np.ones(f.size, bool) if split_ok is None else np.asarray(split_ok, bool)
+    cost = np.concatenate([np.where(cents <= max_cents, cents * w[:, None], big),
+                           np.where((cents[:, second] <= split_cents) & second_ok[:, None],
+                                    cents[:, second] * w[:, None] + 1e-3, big)],
                           axis=1)
     cols = np.concatenate([np.arange(n_g), second])
     n_c = cols.size
     in_range = (g >= f.min() * 2 ** (-max_cents / 1200)) & (g <= f.max() * 2 ** (max_cents / 1200))
-    missing = np.concatenate([np.where(in_range, MISSING_MODE_COST * max_cents, 0.0),
+    # a missing mode costs as much as a partial of average weight left out would, scaled
+    missing = np.concatenate([np.where(in_range, MISSING_MODE_COST * max_cents * float(np.mean(w)),
+                                       0.0),
                               np.zeros(second.size)])
     full = np.full((n_f + n_c, n_c + n_f), big)
     cost[f > cover, :] = big
     full[:n_f, :n_c] = cost
-    full[np.arange(n_f), n_c + np.arange(n_f)] = max_cents  # partial left unpaired
+    full[np.arange(n_f), n_c + np.arange(n_f)] = max_cents * w  # partial left unpaired
     full[n_f + np.arange(n_c), np.arange(n_c)] = missing
     full[n_f:, n_c:] = 0.0
     rows, picked = linear_sum_assignment(full)
@@ -275,7 +472,7 @@ def _by_label(modes: ModeSet, labels) -> np.ndarray:
     return np.array([table.get(lb, math.nan) for lb in labels])
 
 
-def _fit_tension(drum, physics, fp, pairs, labels, tension, *, known=None) -> float:
+def _fit_tension(drum, physics, fp, pairs, labels, tension, *, weight=None, known=None) -> float:
     """The tension at which the paired partials sit on their modes on average.
 
     The root in ln T of the mean of ln(f_partial / f_model(T)) over the pairs: the
@@ -286,6 +483,7 @@ def _fit_tension(drum, physics, fp, pairs, labels, tension, *, known=None) -> fl
     """
     idx_f = np.array([i for i, _ in pairs])
     wanted = [labels[k] for _, k in pairs]
+    wp = np.ones(idx_f.size) if weight is None else np.asarray(weight, float)[idx_f]
     # solve only the orders the pairs need: each m is a separate problem, and the basis
     # the full model uses does not depend on the table's size beyond 1e-7 relative
     m_max = max(lb[0] for lb in wanted)
@@ -295,9 +493,10 @@ def _fit_tension(drum, physics, fp, pairs, labels, tension, *, known=None) -> fl
         # a mode of a two-headed drum may change branch label as the tension moves (the
         # branches veer); such a pair drops out of the mean rather than spoiling it
         r = np.log(fp[idx_f] / g)
-        if not np.isfinite(r).any():
+        ok = np.isfinite(r)
+        if not ok.any():
             raise SolverError("the paired modes vanished from the model's table while fitting")
-        return float(np.nanmean(r))
+        return float(np.sum(wp[ok] * r[ok]) / np.sum(wp[ok]))
 
     def h(x):
         modes = solve(drum.with_tension(math.exp(x)), physics, m_max=m_max, n_max=n_max)
@@ -319,23 +518,31 @@ def _fit_tension(drum, physics, fp, pairs, labels, tension, *, known=None) -> fl
     raise SolverError("the tension fit did not settle in 30 model solves")
 
 
-def _result(drum, tension, t0, parts, pairs, labels, freqs, modes, cover) -> Identification:
+def _result(drum, tension, t0, parts, pairs, labels, freqs, modes, cover, uncertainty=math.nan,
+            physics="stiff", split_cents=SPLIT_CENTS) -> Identification:
     matches, splits, by_mode = [], [], {}
     for i, k in pairs:
         m, n, branch, head = labels[k]
         matches.append(Match(partial=parts[i], m=m, n=n, model_frequency=float(freqs[k]),
-                             cents=float(1200.0 * math.log2(parts[i].frequency / freqs[k])),
+                             cents=float(1200.0 * math.log2(parts[i].settled / freqs[k])),
                              branch=branch, head=head))
         by_mode.setdefault(k, []).append(parts[i])
     for k, group in by_mode.items():
         if len(group) == 2:
             low, high = sorted(group, key=lambda p: p.frequency)
             splits.append(SplitPair(m=labels[k][0], n=labels[k][1], low=low, high=high))
-    paired = {i for i, _ in pairs}
+    # a split is two partials close to each other, not merely each close to the mode
+    kept = [sp for sp in splits if sp.cents <= split_cents]
+    dropped = {id(sp.high if sp.high.amplitude < sp.low.amplitude else sp.low)
+               for sp in splits if sp.cents > split_cents}
+    splits = kept
+    matches = [mt for mt in matches if id(mt.partial) not in dropped]
+    paired = {i for i, _ in pairs if id(parts[i]) not in dropped}
     return Identification(drum=drum.with_tension(tension), tension=float(tension),
                           nominal_tension=float(t0),
                           matches=tuple(sorted(matches, key=lambda mt: mt.partial.frequency)),
                           unmatched=tuple(p for i, p in enumerate(parts)
-                                          if i not in paired and p.frequency <= cover),
+                                          if i not in paired and p.settled <= cover),
                           splits=tuple(sorted(splits, key=lambda sp: sp.low.frequency)),
-                          modes=modes, beyond=tuple(p for p in parts if p.frequency > cover))
+                          modes=modes, beyond=tuple(p for p in parts if p.settled > cover),
+                          uncertainty=uncertainty, physics=physics)

@@ -104,7 +104,6 @@ def test_existing_pdf_is_kept_without_force(tmp_path):
 @pytest.fixture(scope="module")
 def full(tmp_path_factory):
     # m up to 6: the (5,1) and (6,1) modes radiate so little that their T60 runs past 100 s
-    # (radiation only: with all losses they ring a few seconds)
     out = tmp_path_factory.mktemp("handout") / "full.pdf"
     # radiation-only decay: with all losses no mode rings past 100 s, and this checks the "> 100" cells
     result = runner.invoke(app, ["handout", "kettledrum", "--m-max", "6", "--n-max", "1", "--count", "6",
@@ -150,8 +149,19 @@ def text_runs(page):
     return runs
 
 
-def test_every_page_keeps_its_text_inside_the_page(a4, full):
-    for reader in (a4, full):
+@pytest.fixture(scope="module")
+def two_heads(tmp_path_factory):
+    # many modes with long labels (branch and head): the table must stop where the page does
+    out = tmp_path_factory.mktemp("handout") / "snare.pdf"
+    result = runner.invoke(app, ["handout", "snare", "--physics", "stiff", "--m-max", "6", "--n-max", "3",
+                                 "--paper", "letter", "--out", str(out)])
+    assert result.exit_code == 0, result.output
+    return PdfReader(out)
+
+
+def test_every_page_keeps_its_text_inside_the_page(a4, full, two_heads):
+    assert "resonant head" in words(two_heads.pages[2])  # the grid says which head each disc shows
+    for reader in (a4, full, two_heads):
         for number, page in enumerate(reader.pages, 1):
             box = page.mediabox
             w, h = float(box.width), float(box.height)

@@ -44,7 +44,7 @@ def test_resonant_interval_above_struck_lands_within_a_tenth_of_a_cent(tom_tuned
     again = solve(replace(tom, head=replace(tom.head, tension=result.tension["struck"]),
                           resonant_head=replace(tom.resonant_head, tension=result.tension["resonant"])),
                   "full", m_max=0, n_max=1)
-    # each head's (0,1) is the pair member it was in the drum as given
+    # each head's (0,1) is the pair member it was in the drum as given, followed by the search
     assert result.branches == {("struck", 0, 1): "opposed", ("resonant", 0, 1): "in-phase"}
     struck = again.find(0, 1, "opposed")
     resonant = again.find(0, 1, "in-phase")
@@ -61,7 +61,6 @@ def test_the_shell_pairs_move_as_the_physics_says(tom_tuned):
     modes = result.modes
     assert pair_spread(modes, 0, 1) > 900  # in-phase above opposed by most of an octave
     assert abs(pair_spread(modes, 1, 1)) < 0.5 * pair_spread(modes, 0, 1)
-    # the pair keeps its order: the member followed as the resonant head's is the in-phase one
     assert modes.find(0, 1, "in-phase").frequency > modes.find(0, 1, "opposed").frequency
 
 
@@ -82,6 +81,23 @@ def test_bass_drum_pairs_follow_the_published_pattern():
         assert abs(cents(f[(m, "in-phase")], f[(m, "opposed")])) < 20
     # the (m,1) series above (1,1): 136 : 182 Hz, a ratio of 1.34; the model's within 5 %
     assert f[(3, "in-phase")] / f[(2, "in-phase")] == pytest.approx(182 / 136, rel=0.05)
+
+
+def test_heads_without_coupling_are_tuned_independently():
+    # in vacuum (ideal physics) each head's modes depend on its own tension alone:
+    # f = j_mn sqrt(T / sigma) / (2 pi a), so each target has its own exact answer
+    from membrane.bessel import jn_zeros
+
+    tom = load_drum("tom")
+    c4 = parse_pitch("C4")
+    result = tune_heads(tom, physics="ideal", targets=[HeadTarget("resonant", 0, 1, c4),
+                                                         HeadTarget("struck", 1, 1, c4)], table=False)
+    assert result.together
+    for head, (m, n) in (("resonant", (0, 1)), ("struck", (1, 1))):
+        h = tom.resonant_head if head == "resonant" else tom.head
+        j = float(jn_zeros(m, n)[-1])
+        exact = h.areal_density * (2 * math.pi * h.radius * c4 / j) ** 2
+        assert result.tension[head] == pytest.approx(exact, rel=1e-6)
 
 
 def test_a_minor_third_between_the_coupled_01_modes_is_refused_honestly():
@@ -168,3 +184,14 @@ def test_head_picks_the_mode_in_strike_and_render(tmp_path):
     bad = runner.invoke(app, ["render", "kettledrum", "--mode", "1,1", "--head", "resonant", "--physics",
                               "ideal", "--out", str(tmp_path / "k.png")])
     assert bad.exit_code == 2 and "--head" in bad.output
+
+
+def test_slack_limit_only_where_it_matters_and_minimum_in_words():
+    runner = CliRunner()
+    small = ["--m-max", "1", "--n-max", "1"]
+    usual = runner.invoke(app, ["tune", "kettledrum", "--mode", "1,1", "--target", "C3", *small]).stdout
+    assert "slack limit" not in usual and "practical minimum" not in usual
+    low = runner.invoke(app, ["tune", "kettledrum", "--mode", "1,1", "--target", "10", *small]).stdout
+    # 14 N/m is 35x the slack limit (0.4 N/m): not shown; the practical minimum is, in words
+    assert "slack limit" not in low
+    assert "does not hold a pitch" in low and "common practice" in low and "target met\n" not in low

@@ -2,7 +2,7 @@
 
 Two kinds of reference: partial sets built from the Bessel zeros (11 digits computed with
 mpmath, SOURCES.md; Abramowitz & Stegun Table 9.5 prints them to 5 decimals) with the formula
-f_mn = j_mn / (2 pi a) sqrt(T / sigma) (DESIGN.md 3.1), so the answer does not come from
+f_mn = j_mn / (2 pi a) sqrt(T / sigma) (Kinsler et al., Fundamentals of Acoustics, ch. 4), so the answer does not come from
 the solver under test; and a recording synthesised from the drum model at a known
 tension through the strike module, analysed like any recording.
 """

@@ -171,3 +171,27 @@ def test_cli_csv_has_both_tables():
     head, _, lugs = r.stdout.partition("\n\n")
     assert head.splitlines()[0].startswith("mode,low_hz,high_hz")
     assert lugs.splitlines()[0].startswith("lug,angle_deg") and len(lugs.strip().splitlines()) == 9
+
+
+def test_drum_file_lugs_table(tmp_path):
+    # a [lugs] table with tensions (DESIGN section 7) feeds the command; bad values name their key
+    text = """name = "invented test head"
+[head]
+diameter = "26 in"
+tension = "4000 N/m"
+areal_density = "0.2641 kg/m^2"
+[lugs]
+tensions = ["4400 N/m", 4000, 4000, 4000, 4000, 4000, 4000, 4000]
+cents_per_turn = 40
+"""
+    path = tmp_path / "drum.toml"
+    path.write_text(text)
+    drum = membrane.load_drum(path)
+    assert drum.lugs.tensions[0] == pytest.approx(4400.0) and drum.lugs.pitches is None
+    r = _invoke(str(path), "--physics", "ideal", "--m-max", "2", "--n-max", "1", "--format", "json")
+    assert r.exit_code == 0, r.output
+    data = json.loads(r.stdout)
+    assert data["lug_tensions_n_per_m"][0] == pytest.approx(4400.0) and data["turns"][0] < 0
+    path.write_text(text.replace('"4400 N/m"', '"-4 N/m"'))
+    r = _invoke(str(path), "--physics", "ideal")
+    assert r.exit_code == 2 and "lugs.tensions[0]" in r.output

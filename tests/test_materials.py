@@ -97,3 +97,15 @@ def test_a_skin_head_loads_with_no_stress_data():
                                 "tension": "1500 N/m"}})
     assert drum.head.film == "goatskin" and drum.head.yield_stress is None
     assert drum.head.areal_density == pytest.approx(1200.0 * 0.45e-3)
+
+
+def test_examples_lists_the_films_with_their_sources():
+    from typer.testing import CliRunner
+
+    from membrane.cli import app
+
+    out = CliRunner().invoke(app, ["examples", "--films"])
+    assert out.exit_code == 0
+    for name in materials.film_names():
+        assert f"{name}:" in out.stdout
+    assert "7.5 mil" in out.stdout and "humidity" in out.stdout and "source, density" in out.stdout

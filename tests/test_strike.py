@@ -231,14 +231,15 @@ def test_best_strike_radius_of_the_kettledrum_for_the_m1_modes(full):
     circles = [scipy.special.jn_zeros(m, n)[n - 2] / scipy.special.jn_zeros(m, n)[n - 1]
                for m, n in ((1, 2), (2, 2), (1, 3), (2, 3))]
     assert min(circles) < advice.at < max(circles), (advice, circles)
-    # at the advice each of those four is well below its own strongest excitation
-    levels = {at: {(p.mode.m, p.mode.n): abs(p.pressure) for p in strike_partials(heads, strike=Strike(at=at))}
-              for at in np.linspace(0.05, 0.95, 19)}
-    here = {(p.mode.m, p.mode.n): abs(p.pressure) for p in advice.partials}
-    # (the (2,3) is not checked: on this kettle it is a hybrid with the bowl's air, about a
-    # quarter of its energy in the air (head fraction 0.77), and its nodal circle moves)
-    for mode in ((1, 2), (2, 2), (1, 3)):
-        assert here[mode] < 0.5 * max(lv[mode] for lv in levels.values()), mode
+    # and there those four together are weak: their summed squared pressure is more than 10 dB
+    # below its largest over strike radii 0.05..0.95 (the model gives -12 dB)
+    four = ((1, 2), (2, 2), (1, 3), (2, 3))
+
+    def power(partials):
+        return sum(abs(p.pressure) ** 2 for p in partials if (p.mode.m, p.mode.n) in four)
+
+    most = max(power(strike_partials(heads, strike=Strike(at=at))) for at in np.linspace(0.05, 0.95, 19))
+    assert power(advice.partials) < 0.1 * most
 
 
 # ----------------------------------------------------------------------------- the preview

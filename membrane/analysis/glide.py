@@ -22,7 +22,7 @@ import scipy.fft
 
 WINDOW_S = 0.1  # frequency measured in frames this long [s], a quarter frame apart
 GLIDE_MIN_CENTS = 20.0  # a drift smaller than this is not called a glide (beats wobble less)
-MONOTONE_SHARE = 0.7  # share of window-to-window steps that go the glide's way
+WOBBLE_FACTOR = 4.0  # a glide's fall is this many times the settled scatter (plus 0.5 Hz)
 TRACK_DB = 30.0  # the track follows the partial down this far below its loudest
 STEP_FRACTION = 0.04  # a step of the ridge from one frame to the next, at most
 
@@ -47,14 +47,20 @@ class Track:
 
     @property
     def initial(self) -> float:
-        """Frequency in the first window [Hz]."""
+        """Frequency in the first frame [Hz]."""
         return float(self.frequencies[0])
 
     @property
     def settled(self) -> float:
-        """Median frequency over the last third of the track [Hz]."""
-        tail = self.frequencies[-max(1, self.frequencies.size // 3):]
-        return float(np.median(tail))
+        """Median frequency over the second half of the track [Hz]."""
+        return float(np.median(self.frequencies[self.frequencies.size // 2:]))
+
+    @property
+    def wobble(self) -> float:
+        """Scatter of the settled half about its median [Hz] (1.4826 x the median absolute
+        deviation: the standard deviation, were it normal); beating makes it."""
+        half = self.frequencies[self.frequencies.size // 2:]
+        return float(1.4826 * np.median(np.abs(half - np.median(half))))
 
     @property
     def cents(self) -> float:
@@ -63,18 +69,71 @@ class Track:
 
     @property
     def is_glide(self) -> bool:
-        """A steady drift of at least :data:`GLIDE_MIN_CENTS` in one direction."""
-        if self.frequencies.size < 4 or abs(self.cents) < GLIDE_MIN_CENTS:
+        """A fall of at least :data:`GLIDE_MIN_CENTS`, well beyond the settled wobble.
+
+        Only a fall: the tension a large swing adds goes as the motion dies, so a head's
+        partials settle downwards; a rise is beating or a neighbour taking over the ridge.
+        """
+        if self.frequencies.size < 4 or self.cents > -GLIDE_MIN_CENTS:
             return False
-        steps = np.diff(self.frequencies)
-        return float(np.mean(np.sign(steps) == np.sign(self.cents))) >= MONOTONE_SHARE
+        return self.initial - self.settled > WOBBLE_FACTOR * self.wobble + 0.5
+
+
+@dataclass(frozen=True)
+class Frames:
+    """A short-time spectrum of a decay, shared by the tracks of all its partials.
+
+    Attributes
+    ----------
+    level : numpy.ndarray
+        Power [dB] per frame (rows) and bin (columns), bins from 0 Hz.
+    starts : numpy.ndarray
+        First sample of each frame.
+    df : float
+        Bin width [Hz].
+    win : int
+        Frame length [samples].
+    first : int
+        First sample of the first frame.
+    floor : numpy.ndarray
+        Each frame's noise [dB]: the median over its bins up to 4 kHz (most hold none).
+    """
+
+    level: np.ndarray
+    starts: np.ndarray
+    df: float
+    win: int
+    first: int
+    floor: np.ndarray
+
+
+def frames(y: np.ndarray, *, rate: float, t_from: float, f_max: float) -> Frames | None:
+    """Hann frames of :data:`WINDOW_S`, zero-padded fourfold, a quarter frame apart, from
+    ``t_from`` [s]; bins up to ``f_max`` [Hz] kept."""
+    win = int(WINDOW_S * rate)
+    hop = max(1, win // 4)
+    first = int(max(t_from, 0.0) * rate)
+    if y.size - first < 2 * win:
+        return None
+    nfft = scipy.fft.next_fast_len(4 * win, real=True)
+    starts = np.arange(first, y.size - win + 1, hop)
+    hann = np.hanning(win)
+    df = rate / nfft
+    top = min(nfft // 2 + 1, int(f_max / df) + 2)
+    idx = starts[:, None] + np.arange(win)[None, :]
+    spec = scipy.fft.rfft(y[idx] * hann, nfft, axis=1)
+    wide = min(spec.shape[1], max(top, int(4000.0 / df)))
+    floor = 10 * np.log10(np.median(np.abs(spec[:, 1:wide]) ** 2, axis=1) + 1e-300)
+    power = np.abs(spec[:, :top]) ** 2
+    return Frames(level=10 * np.log10(power + 1e-300), starts=starts, df=df, win=win,
+                  first=first, floor=floor)
 
 
 def track(y: np.ndarray, *, frequency: float, rate: float, t_from: float = 0.0,
-          anchor_s: float | None = None) -> Track | None:
+          anchor_s: float | None = None, shared: Frames | None = None) -> Track | None:
     """The frequency of the partial near ``frequency`` frame by frame (a spectral ridge).
 
-    Hann frames of :data:`WINDOW_S`, zero-padded eightfold, every quarter frame; in each the
+    Hann frames of :data:`WINDOW_S`, zero-padded fourfold, every quarter frame; in each the
     peak nearest the ridge is taken with parabolic interpolation of its log power. The ridge
     is followed from an anchor frame (where the partial is, by default a third into the
     decay) back to ``t_from`` and on until the peak sinks :data:`TRACK_DB` below the
@@ -93,37 +152,41 @@ def track(y: np.ndarray, *, frequency: float, rate: float, t_from: float = 0.0,
         First frame starts here, from the start of the decay [s].
     anchor_s : float or None
         Start of the anchor frame [s].
+    shared : Frames or None
+        The decay's short-time spectrum, when the caller has it (from ``t_from``).
 
     Returns
     -------
     Track or None
         None when fewer than four frames follow the partial.
     """
-    win = int(WINDOW_S * rate)
-    hop = max(1, win // 4)
-    first = int(max(t_from, 0.0) * rate)
-    if y.size - first < 2 * win:
+    fr = shared or frames(y, rate=rate, t_from=t_from, f_max=1.6 * frequency + 10.0)
+    if fr is None:
         return None
-    nfft = scipy.fft.next_fast_len(8 * win, real=True)
-    hann = np.hanning(win)
-    starts = np.arange(first, y.size - win + 1, hop)
-    df = rate / nfft
-    reach = int(np.ceil((frequency * 1.6 + 10.0) / df))
+    starts, df, win, first = fr.starts, fr.df, fr.win, fr.first
+    hop = max(1, win // 4)
+    reach = min(fr.level.shape[1], int(np.ceil((frequency * 1.6 + 10.0) / df)))
     lo_bin = max(1, int((frequency * 0.6 - 10.0) / df))
-    frames = np.stack([y[s:s + win] * hann for s in starts])
-    power = np.abs(scipy.fft.rfft(frames, nfft, axis=1)[:, lo_bin:reach]) ** 2
-    level = 10 * np.log10(power + 1e-300)
-    floor = np.median(level, axis=1)  # a frame's own noise: most of its bins hold none
+    level = fr.level[:, lo_bin:reach]
+    hann_sum = 0.5 * win
+    floor = fr.floor
     anchor = int(np.clip(round(((anchor_s if anchor_s is not None else (y.size / rate) / 3)
                                  * rate - first) / hop), 0, starts.size - 1))
     step = max(2.0, STEP_FRACTION * frequency) / df
 
     def peak(k, guess):
+        # the local maximum nearest the ridge's last place: a ridge is followed, not
+        # abandoned for a louder neighbour
         a, b = int(max(1, guess - step)), int(min(level.shape[1] - 2, guess + step))
         if b <= a:
             return None
-        j = a + int(np.argmax(level[k, a:b + 1]))
-        l0, l1, l2 = level[k, j - 1], level[k, j], level[k, j + 1]
+        row = level[k]
+        seg = row[a:b + 1]
+        mids = np.nonzero((seg >= row[a - 1:b]) & (seg >= row[a + 1:b + 2]))[0] + a
+        if mids.size == 0:
+            return None
+        j = int(mids[np.argmin(np.abs(mids - guess))])
+        l0, l1, l2 = row[j - 1], row[j], row[j + 1]
         den = l0 - 2 * l1 + l2
         d = 0.5 * (l0 - l2) / den if den < 0 else 0.0
         return j + d, l1 - 0.25 * (l0 - l2) * d
@@ -152,5 +215,5 @@ def track(y: np.ndarray, *, frequency: float, rate: float, t_from: float = 0.0,
     # keep the stretch that reaches back to the first frame kept
     times = (starts[keys] - first + win / 2) / rate + max(t_from, 0.0)
     f = (np.array([freq[k] for k in keys]) + lo_bin) * df
-    a = 10 ** (np.array([amp[k] for k in keys]) / 20) * 2.0 / hann.sum()
+    a = 10 ** (np.array([amp[k] for k in keys]) / 20) * 2.0 / hann_sum
     return Track(times=times, frequencies=f, amplitudes=a)

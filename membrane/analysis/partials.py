@@ -30,7 +30,7 @@ from membrane.errors import InputError, RecordingError
 
 from . import esprit
 from .audio import Recording
-from .glide import Track, track
+from .glide import Track, frames, track
 from .onset import find_strike
 from .seeding import seeds as find_seeds
 
@@ -46,6 +46,7 @@ STRIKE_CONTRAST_DB = 6.0  # the loudest 20 ms stands this far above the quietest
 GLIDE_TRACK_DB = -30.0  # partials this strong (re the strongest) are tracked for glide
 GLIDE_MIN_T60_S = 0.2  # and ring at least this long
 NO_PARTIALS = "no drum partials stand above the noise"
+MAX_BANDS = 96  # bands fitted at most (the seeds standing highest): bounded work
 
 
 @dataclass(frozen=True)
@@ -268,7 +269,7 @@ def find_partials(decay: np.ndarray, *, rate: float, floor_db: float = DEFAULT_F
     nfft = scipy.fft.next_fast_len(2 * n, real=True)
     spectrum = scipy.fft.rfft(y, nfft)
     seeds, grid, noise_var = find_seeds(y, rate=rate, floor_db=floor_db,
-                                        min_frequency=min_frequency)
+                                        min_frequency=min_frequency, limit=MAX_BANDS)
     # seeds within half a band of each other share one band
     groups: list[list[float]] = []
     for f in seeds:
@@ -291,17 +292,25 @@ def find_partials(decay: np.ndarray, *, rate: float, floor_db: float = DEFAULT_F
         s = s[(f >= lo) & (f < hi) & (f >= min_frequency) & (f < rate / 2)]
         bands.append(band)
         rates.append(s)
-    # amplitudes twice: first each band alone, then with every other band's components'
-    # leakage (their start-up steps) taken out
+    # amplitudes twice: first each band alone, then with the other bands' components taken
+    # out (the start of the decay is a step for every partial, and a strong partial's step
+    # spills into every band for the filter's start-up): the second fit of a band sees the
+    # residual of the whole model plus its own components.
     amps = [esprit.band_amplitudes(b, s) if s.size else s for b, s in zip(bands, rates)]
     slow = [np.abs(s.real) < esprit.FASTEST_RATE for s in rates]
-    for _ in range(2):
-        every_s = np.concatenate([s[k] for s, k in zip(rates, slow)] + [np.zeros(0, complex)])
-        every_c = np.concatenate([c[k] for c, k in zip(amps, slow)] + [np.zeros(0, complex)])
-        owner = np.concatenate([np.full(int(k.sum()), i) for i, k in enumerate(slow)]
-                               + [np.zeros(0, int)])
-        amps = [esprit.band_amplitudes(b, s, others=(every_s[owner != i], every_c[owner != i]))
-                if s.size else s for i, (b, s) in enumerate(zip(bands, rates))]
+    every_s = np.concatenate([s[k] for s, k in zip(rates, slow)] + [np.zeros(0, complex)])
+    every_c = np.concatenate([c[k] for c, k in zip(amps, slow)] + [np.zeros(0, complex)])
+    residual = scipy.fft.rfft(y - _synthesise(every_s, every_c, n=n, rate=rate), nfft)
+    second = []
+    for b, s, c, k in zip(bands, rates, amps, slow):
+        if not s.size:
+            second.append(s)
+            continue
+        z = esprit.cut_band(residual, fc=b.kc * rate / nfft, rate=rate, nfft=nfft, n=n,
+                            noise_var=0.0).z
+        z = z + esprit.filtered_basis(b, s[k]) @ c[k]
+        second.append(esprit.band_amplitudes(b, s, z=z))
+    amps = second
     found: list[esprit.Component] = []
     for b, s, c in zip(bands, rates, amps):
         found += [comp for comp in esprit.components(b, s, c)
@@ -319,6 +328,22 @@ def find_partials(decay: np.ndarray, *, rate: float, floor_db: float = DEFAULT_F
     if max_partials is not None:
         kept = sorted(kept, key=lambda p: -p.amplitude)[:max_partials]
     return tuple(sorted(kept, key=lambda p: p.frequency))
+
+
+def _synthesise(s: np.ndarray, c: np.ndarray, *, n: int, rate: float,
+                block: int = 4096) -> np.ndarray:
+    """``sum 2 Re(c exp(s t))`` over ``n`` samples: blocks of one table of exponentials,
+    each block's start carried by one complex factor per component (a matrix product)."""
+    out = np.zeros(n)
+    if s.size == 0:
+        return out
+    tau = np.arange(block) / rate
+    table = np.exp(s[:, None] * tau[None, :])
+    for start in range(0, n, block):
+        stop = min(n, start + block)
+        weights = 2.0 * c * np.exp(s * (start / rate))
+        out[start:stop] = np.real(weights @ table[:, : stop - start])
+    return out
 
 
 def _partial(c: esprit.Component, shift: float) -> Partial:
@@ -339,6 +364,13 @@ def _merge_glides(parts, comps, *, y, rate, shift) -> list[Partial]:
     used: set[int] = set()
     out: list[Partial] = []
     t_ref = max(shift, 0.0)
+    tracked = [i for i in order if parts[i].amplitude >= top * 10 ** (GLIDE_TRACK_DB / 20)
+               and parts[i].t60 is not None and parts[i].t60 >= GLIDE_MIN_T60_S]
+    if not tracked:
+        return parts
+    ranges: list[tuple[float, float]] = []
+    shared = frames(y, rate=rate, t_from=t_ref,
+                    f_max=1.6 * max(parts[i].frequency for i in tracked) + 10.0)
     for i in order:
         if i in used:
             continue
@@ -348,15 +380,17 @@ def _merge_glides(parts, comps, *, y, rate, shift) -> list[Partial]:
             continue
         # anchor where the partial has fallen 15 dB: late enough to have settled
         anchor = min(15.0 / 60.0 * p.t60, 0.6 * y.size / rate)
-        tr = track(y, frequency=p.frequency, rate=rate, t_from=t_ref, anchor_s=anchor)
-        if tr is None or not tr.is_glide:
+        tr = track(y, frequency=p.frequency, rate=rate, t_from=t_ref, anchor_s=anchor,
+                   shared=shared)
+        if tr is None or not tr.is_glide or any(lo_ <= tr.settled <= hi_ for lo_, hi_ in ranges):
             continue
-        lo = float(tr.frequencies.min()) - 1.5
-        hi = float(tr.frequencies.max()) + 1.5
+        lo = tr.settled - max(1.5, 3.0 * tr.wobble)
+        hi = float(np.max(tr.frequencies[:2])) + max(1.5, 0.02 * tr.initial)
         members = [j for j in range(len(parts)) if j not in used and lo <= parts[j].frequency <= hi]
         if len(members) < 1:
             continue
         used.update(members)
+        ranges.append((lo, hi))
         out.append(_glide_partial([comps[j] for j in members], tr, shift))
     out += [p for j, p in enumerate(parts) if j not in used]
     return out
@@ -367,9 +401,9 @@ def _glide_partial(comps, tr: Track, shift: float) -> Partial:
     s = np.array([-c.decay_rate + 2j * np.pi * c.frequency for c in comps])
     a = np.array([c.amplitude * np.exp(1j * c.phase) for c in comps])
     amplitude = float(abs(np.sum(a * np.exp(s * shift))))
-    # decay rate from the track's envelope: a log-linear fit over the tracked windows
-    slope = np.polyfit(tr.times, np.log(np.maximum(tr.amplitudes, 1e-300)), 1)[0]
-    rate = max(float(-slope), 1e-6)
+    # decay rate: the comb's, weighted by each component's energy at the reference time
+    weight = np.abs(a * np.exp(s * shift)) ** 2
+    rate = float(np.sum(weight * np.maximum(-s.real, 0.0)) / np.sum(weight))
     return Partial(frequency=tr.initial, amplitude=amplitude, decay_rate=rate,
                    glide_cents=tr.cents, settled_frequency=tr.settled, flags=("glide",))
 

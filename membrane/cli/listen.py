@@ -116,6 +116,10 @@ def listen(
     rows = []
     labels = {id(mt.partial): mt for mt in ident.matches} if ident else {}
     shown = analysis.strongest(max_partials)
+    partners = {}
+    for sp in (ident.splits if ident else ()):
+        partners[id(sp.low)] = (sp.high.frequency, sp.beat_hz)
+        partners[id(sp.high)] = (sp.low.frequency, sp.beat_hz)
     for p in shown:
         note, off = note_name(p.frequency)
         row = {"frequency_hz": p.frequency, "level_db": p.level_db, "decay_s": p.t60,
@@ -126,6 +130,9 @@ def listen(
         if mt is not None:
             row.update(m=mt.m, n=mt.n, mode=f"({mt.m},{mt.n})", model_hz=mt.model_frequency,
                        cents_from_model=mt.cents)
+            pair = partners.get(id(p))
+            if pair is not None:
+                row.update(pair=pair[0], beat_hz=pair[1])
             if mt.branch is not None:
                 row["branch"] = mt.branch
                 row["mode"] += f" {mt.branch}"
@@ -164,6 +171,8 @@ def listen(
     if ident is not None:
         payload.update(_identification_payload(ident, physics.value))
         notes += _identification_notes(ident, physics.value)
+        if physics is Physics.full and ident.matches:
+            _fit_losses(ident, rows, payload, notes)
     tuning_result = None
     if targets:
         tuning_result = _tune(ident.drum, targets, physics.value)
@@ -185,8 +194,49 @@ def listen(
             ([("m", "m", str), ("n", "n", str)] + DRUM_COLUMNS[1:] if ident else [])
     title = f"{recording.name}: {len(rows)} partials ({audio.encoding}, {audio.rate:g} Hz)"
     if ident is not None:
-        title += f"; fitted tension {ident.tension:.0f} N/m"
+        title += f"; fitted tension {ident.tension:.0f} N/m ({ident.verdict.split(':')[0]})"
+        if ident.verdict != "identified":
+            print(f"warning: {ident.verdict}", file=sys.stderr)
     emit(format, payload=payload, rows=rows, columns=columns, title=title, notes=notes)
+
+
+def _fit_losses(ident, rows, payload, notes) -> None:
+    """Loss parameters from the matched partials' decay (loss_fit.py), into the output."""
+    from ..errors import SolverError
+    from ..loss_fit import fit_losses
+
+    m_max = max(mt.m for mt in ident.matches)
+    n_max = max(mt.n for mt in ident.matches)
+    try:
+        lf = fit_losses(ident.drum, ident.matches, m_max=m_max, n_max=n_max)
+    except SolverError as exc:
+        notes.append(f"no loss fit: {' '.join(str(exc).split())}")
+        return
+    payload["loss_fit"] = {
+        "parameters": {k: {"value": v, "uncertainty": u} for k, (v, u) in lf.fitted.items()},
+        "fitted_on": [{"m": m, "n": n, "branch": b} for m, n, b in lf.used],
+        "rms_log_ratio": lf.rms_log_ratio,
+        "partials": [{k: v for k, v in r.items() if k != "head"} for r in lf.rows],
+    }
+    by = {(r["m"], r["n"], r["branch"]): r for r in lf.rows}
+    for row in rows:
+        r = by.get((row.get("m"), row.get("n"), row.get("branch")))
+        if r is not None:
+            row["predicted_decay_s"] = r["predicted_t60_s"]
+            row["dominant_loss"] = r["dominant"]
+    if lf.fitted:
+        said = ", ".join(f"{k.replace('_', ' ')} {v:.3g}" + (f" +- {u:.2g}" if u is not None else "")
+                         for k, (v, u) in lf.fitted.items())
+        notes.append(f"loss fit on {len(lf.used)} partials with T60 > 0.5 s: {said} "
+                     f"(rms {100 * lf.rms_log_ratio:.0f} % in T60); the other loss parameters "
+                     "keep the drum file's values (docs/losses.md)")
+    else:
+        notes.append("no loss fit: too few matched partials with T60 > 0.5 s")
+    dominant = {}
+    for r in lf.rows:
+        dominant.setdefault(r["dominant"], []).append(f"({r['m']},{r['n']})")
+    notes.append("what damps each matched partial most: " +
+                 "; ".join(f"{k}: {' '.join(v)}" for k, v in dominant.items()))
 
 
 def _remarks(p) -> str:
@@ -221,6 +271,7 @@ def _identification_payload(ident, physics: str) -> dict:
         "tension_change_percent": 100.0 * (ident.tension / ident.nominal_tension - 1.0),
         "rms_cents": ident.rms_cents,
         "matched": len(ident.matches),
+        "fit": ident.fit,
         "unmatched": [{"frequency_hz": p.frequency, "level_db": p.level_db} for p in ident.unmatched],
         "beyond_model_range": [{"frequency_hz": p.frequency, "level_db": p.level_db} for p in ident.beyond],
         "splits": [{"m": s.m, "n": s.n, "low_hz": s.low.frequency, "high_hz": s.high.frequency,
@@ -230,14 +281,18 @@ def _identification_payload(ident, physics: str) -> dict:
 
 
 def _identification_notes(ident, physics: str) -> list[str]:
-    out = [f"fitted tension {ident.tension:.1f} N/m ({100 * (ident.tension / ident.nominal_tension - 1):+.1f} % "
+    unc = f" +- {ident.uncertainty:.0f}" if ident.uncertainty == ident.uncertainty else ""
+    out = [f"fitted tension {ident.tension:.1f}{unc} N/m ({100 * (ident.tension / ident.nominal_tension - 1):+.1f} % "
            f"from the drum file's {ident.nominal_tension:.0f} N/m), {physics} physics; "
-           f"{len(ident.matches)} partials matched, rms {ident.rms_cents:.1f} cents"]
+           f"{len(ident.matches)} partials matched, rms {ident.rms_cents:.1f} cents; {ident.verdict}"]
     for s in ident.splits:
         out.append(f"mode ({s.m},{s.n}) is split: {s.low.frequency:.2f} and {s.high.frequency:.2f} Hz, "
                    f"beating at {s.beat_hz:.2f} Hz ({s.cents:.1f} cents) - uneven tension round the rim")
     if ident.unmatched:
-        out.append("no mode within reach: " + ", ".join(f"{p.frequency:.1f} Hz" for p in ident.unmatched))
+        few = sorted(ident.unmatched, key=lambda p: -p.amplitude)[:8]
+        out.append("no mode within reach: " + ", ".join(f"{p.frequency:.1f} Hz" for p in
+                                                        sorted(few, key=lambda p: p.frequency))
+                   + (f" and {len(ident.unmatched) - 8} weaker" if len(ident.unmatched) > 8 else ""))
     if ident.beyond:
         out.append(f"{len(ident.beyond)} partials from {ident.beyond[0].frequency:.0f} Hz up are above "
                    f"the range of the {physics} model's mode table and are not labelled")

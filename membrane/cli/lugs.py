@@ -103,7 +103,9 @@ def lugs(
     tensions = _values(lug_tensions, "--lug-tensions", "tension") if lug_tensions else None
     pitches = list(parse_lug_pitches(lug_pitches)) if lug_pitches else None
     if pitches is None and tensions is None and recording is None and drum.lugs is not None:
-        pitches = list(drum.lugs.pitches)
+        # the drum file's [lugs] table: tap pitches and/or tensions
+        pitches = None if drum.lugs.pitches is None else list(drum.lugs.pitches)
+        tensions = None if drum.lugs.tensions is None else list(drum.lugs.tensions)
         cents_per_turn = cents_per_turn if cents_per_turn is not None or turns_per_newton is not None \
             else drum.lugs.cents_per_turn
     if tensions is None and pitches is None and recording is None:
@@ -127,10 +129,12 @@ def lugs(
         if not recording.is_file():
             fail("--recording", str(recording), "no such file")
         analysis = analyse(read_wav(recording))
-        ident = identify(drum, analysis.partials, physics=physics.value if physics.value != "full" else "stiff")
+        # the full model's fit takes seconds a solve; the splits need only the labels
+        fit_physics = "stiff" if physics.value == "full" else physics.value
+        ident = identify(drum, analysis.partials, physics=fit_physics)
         measured = lugmod.measured_splits(ident)
         drum = ident.drum
-        notes.append(f"tension fitted to the recording: {ident.tension:.1f} N/m (stiff model)")
+        notes.append(f"tension fitted to the recording: {ident.tension:.1f} N/m ({fit_physics} model)")
         if not measured:
             notes.append("the recording shows no split pair")
     estimate = lugmod.estimate_lugs(drum, count=n_lugs, tensions=tensions, pitches=pitches,

@@ -101,11 +101,12 @@ def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max
     notes = []
     if result.modes is not None and result.branches and _distinct(result.drum):
         for t in result.met:
-            followed = result.branches.get((t.head, t.m, t.n))
-            origin = find_mode(result.modes, t.head, t.m, t.n).branch
-            if followed is not None and origin != followed:
-                notes.append(f"at the suggestion the {t.head} head's ({t.m},{t.n}), followed as the pair's "
-                             f"{followed} member from the drum as given, moves the other head more")
+            before = result.branches.get((t.head, t.m, t.n))
+            after = find_mode(result.modes, t.head, t.m, t.n).branch
+            if before is not None and after != before:
+                notes.append(f"the {t.head} head's ({t.m},{t.n}) was followed as the pair's {before} member; at "
+                             f"the suggestion the heads' own tunings have crossed, so the other head moves "
+                             f"most in it and the table names it the {after} member of the {t.head} head")
     statement = _statement(result)
     first = next((t for t in result.met if t.kind == "target"), None)
     spreads = {}
@@ -177,7 +178,7 @@ def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max
 
 OTHER_NOTE = {
     "free": "both heads free, coupled through the air in the shell: a head's (m,n) is the member of the "
-            "in-phase / opposed pair it had in the drum as given",
+            "in-phase / opposed pair it was in the drum as given, followed as the tensions change",
     "damped": "each head tuned with the other held still (as when one head is tapped with the other "
               "muted), the held head taken as a rigid end; the table above is the drum with both heads free",
 }

@@ -238,7 +238,8 @@ def _cot_csc(mu, depth):
     return -1j * (1.0 + e1 * e1) / den, -1j * 2.0 * e1 / den
 
 
-def duct_wall_forms(k, *, gamma, norms, radius: float, depth: float, m: int, faces: bool = True):
+def duct_wall_forms(k, *, gamma, norms, radius: float, depth: float, m: int, faces: bool = True,
+                    heads: int = 2):
     r"""Surface integrals of the interior field over the duct's walls and end faces.
 
     The field is :math:`p = -\omega^2\rho\sum_q \psi_q(r)\cos m\theta\,[w_{1q} e_{1q}(u) +
@@ -261,6 +262,9 @@ def duct_wall_forms(k, *, gamma, norms, radius: float, depth: float, m: int, fac
         Angular order.
     faces : bool
         Include the two end faces (False: the side wall alone).
+    heads : {1, 2}
+        1 for a kettle: the far end is a rigid wall (w_2 = 0), and only the (Q, Q) block of
+        w_1 is returned.
 
     Returns
     -------
@@ -293,16 +297,28 @@ def duct_wall_forms(k, *, gamma, norms, radius: float, depth: float, m: int, fac
     e11, e12 = ccc / bb, xcc / bb
     d11, d12 = css, -xss  # products of the u-derivatives
     jw = special.jv(m, gamma * a)
-    side = a * weight * np.tile(np.outer(jw, jw), (2, 2))[None]
-    pi_side = side * np.block([[e11, e12], [np.swapaxes(e12, 1, 2), e11]])
     tang = (m / a) ** 2
-    ups_side = side * np.block([[tang * e11 + d11, tang * e12 + d12],
-                                [np.swapaxes(tang * e12 + d12, 1, 2), tang * e11 + d11]])
+    if heads == 1:
+        side = a * weight * np.outer(jw, jw)[None]
+        pi_side, ups_side = side * e11, side * (tang * e11 + d11)
+    else:
+        side = a * weight * np.tile(np.outer(jw, jw), (2, 2))[None]
+        pi_side = side * np.block([[e11, e12], [np.swapaxes(e12, 1, 2), e11]])
+        ups_side = side * np.block([[tang * e11 + d11, tang * e12 + d12],
+                                    [np.swapaxes(tang * e12 + d12, 1, 2), tang * e11 + d11]])
     if not faces:
         return pi_side, ups_side
     # end faces: u = L (struck head) has amplitudes w1 cot/b + w2 csc/b, u = 0 the reverse
     fcot, fcsc = cot / b, csc / b
     nq = weight * norms[None, :]
+    if heads == 1:  # faces at u = L (amplitude w1 cot/b) and u = 0 (w1 csc/b): diagonal
+        diag = nq * (fcot * fcot + fcsc * fcsc)
+        idx = np.arange(Q)
+        pi_faces = np.zeros((k.shape[0], Q, Q), complex)
+        pi_faces[:, idx, idx] = diag
+        ups_faces = np.zeros_like(pi_faces)
+        ups_faces[:, idx, idx] = diag * gamma[None, :] ** 2
+        return pi_side + pi_faces, ups_side + ups_faces
     pi_faces = np.zeros((k.shape[0], 2 * Q, 2 * Q), complex)
     idx = np.arange(Q)
     for (u1, u2) in ((fcot, fcsc), (fcsc, fcot)):
@@ -347,15 +363,17 @@ class RootLosses:
                "face": order.faces * _block_diag(face), "duct": None}
         if self.losses.boundary_layers and order.depth is not None:
             Q = len(d["gamma"])
-            amp = np.zeros((2 * Q, n))  # x -> (w_1, w_2)
             off = d["offsets"]
             V = d["V"]
+            heads = 1 if len(V) == 1 and order.cross_sign is None else 2  # a kettle: w_2 = 0
+            amp = np.zeros((heads * Q, n))  # x -> (w_1, w_2)
             amp[:Q, off[0]:off[1]] = (V[0] / d["norms"][None, :]).T
             if len(V) == 2:
                 amp[Q:, off[1]:off[2]] = (V[1] / d["norms"][None, :]).T
             elif order.cross_sign is not None:
                 amp[Q:, :] = order.cross_sign * amp[:Q, :]
-            out["duct"] = (amp, d["gamma"], d["norms"], order.heads[0].radius, order.depth, order.m)
+            out["duct"] = (amp, d["gamma"], d["norms"], order.heads[0].radius, order.depth, order.m,
+                           heads)
         return out
 
     def _layers(self, omega):
@@ -374,9 +392,9 @@ class RootLosses:
             if outer:
                 W = W + outer * (1j * omega * zv)[:, None, None] * o["face"][None]
             if body and o["duct"] is not None:
-                amp, gamma, norms, a, L, m = o["duct"]
+                amp, gamma, norms, a, L, m, heads = o["duct"]
                 pi, ups = duct_wall_forms(omega / self.c, gamma=gamma, norms=norms, radius=a,
-                                          depth=L, m=m)
+                                          depth=L, m=m, heads=heads)
                 form = (1j * omega**3 * self.rho**2 * yt)[:, None, None] * pi + \
                     (1j * omega * zv)[:, None, None] * ups
                 W = W + body * (amp.T[None] @ form @ amp[None])
@@ -395,8 +413,8 @@ class RootLosses:
             xe[sel] = np.einsum("rn,nk,rk->r", xs, o["edge"], xs)
             xm[sel] = np.einsum("rn,nk,rk->r", xs, o["face"], xs)
             if o["duct"] is not None and self.losses.boundary_layers and body:
-                amp, gamma, norms, a, L, m = o["duct"]
-                ducts.append((sel, xs @ amp.T, gamma, norms, a, L, m))
+                amp, gamma, norms, a, L, m, heads = o["duct"]
+                ducts.append((sel, xs @ amp.T, gamma, norms, a, L, m, heads))
         layers = self.losses.boundary_layers
 
         def r(omega):
@@ -406,10 +424,10 @@ class RootLosses:
                 zv, yt = self._layers(omega)
                 if outer:
                     val = val + outer * 1j * omega * zv * xm
-                for sel, w, gamma, norms, a, L, m in ducts:
+                for sel, w, gamma, norms, a, L, m, heads in ducts:
                     om = omega[sel]
                     pi, ups = duct_wall_forms(om / self.c, gamma=gamma, norms=norms, radius=a,
-                                              depth=L, m=m)
+                                              depth=L, m=m, heads=heads)
                     qp = np.einsum("rq,rqp,rp->r", w, pi, w)
                     qu = np.einsum("rq,rqp,rp->r", w, ups, w)
                     val[sel] = val[sel] + body * (1j * om**3 * self.rho**2 * yt[sel] * qp

@@ -34,7 +34,7 @@ FALLBACK_CAUTIONS = (
 TABLE_COLUMNS = ("mode", "f (Hz)", "ratio", "note", "cents\noff note", "harmonic\n(fit)",
                  "cents off\nharmonic", "T60 (s)")
 TABLE_ROWS = 30  # what fits on one page with its legend
-TABLE_WIDTHS = (0.22, 0.11, 0.10, 0.08, 0.11, 0.11, 0.12, 0.10)
+TABLE_WIDTHS = (0.27, 0.10, 0.09, 0.07, 0.10, 0.10, 0.11, 0.09)
 ROW_IN = 0.23  # table row height, inches
 
 
@@ -146,6 +146,11 @@ class _Writer:
                                   fontsize=pt, va="top")
                 self.line(part, pt=pt, x=x + 0.2)
             self.y += 0.04
+
+    def measure(self, items, *, pt=BODY_PT, x=0.0) -> float:
+        """Height in inches that :meth:`bullets` would take for ``items``."""
+        lines = sum(len(textwrap.wrap(item, self.chars(pt, x + 0.2))) for item in items)
+        return lines * pt * 1.4 / 72.0 + 0.04 * len(items)
 
     def box(self, title, items, *, pt=BODY_PT):
         """Bulleted items in a framed box (the cautions)."""
@@ -302,27 +307,10 @@ def _table_page(modeset, size, reference, fit):
     cells = table_cells(modeset, reference=reference)
     columns, widths = list(TABLE_COLUMNS), list(TABLE_WIDTHS)
     columns[2] = f"ratio to\n({reference[0]},{reference[1]})"
+    # a two-headed drum's labels name the head and branch: widen the mode column to fit them
+    widths[0] = max(widths[0], 0.0125 * max((len(c[0]) for c in cells), default=0))
     if all(mode.decay is None for mode in modeset.modes):  # in vacuum: no decay column
         columns, widths, cells = columns[:-1], widths[:-1], [c[:-1] for c in cells]
-    rows = min(len(cells), TABLE_ROWS)
-    ax = page.axes(ROW_IN * (rows + 2))
-    ax.set_axis_off()
-    total = sum(widths)
-    table = ax.table(cellText=cells[:rows], colLabels=columns, colWidths=[w / total for w in widths],
-                     bbox=(0, 0, 1, 1), cellLoc="right", colLoc="right")
-    table.auto_set_font_size(False)
-    table.set_fontsize(9)
-    fitted_rows = {i for i, row in enumerate(modeset.table(reference=reference)[:rows]) if row["fitted"]}
-    for (r, c), cell in table.get_celld().items():
-        cell.set_edgecolor("0.75")
-        cell.set_linewidth(0.5)
-        if r == 0:
-            cell.set_height(cell.get_height() * 2)
-            cell.set_text_props(fontweight="bold")
-            cell.set_facecolor("#eeeeee")
-        elif r - 1 in fitted_rows:
-            cell.set_facecolor("#fbeaea")
-    page.y += 0.15
     legend = [
         f"ratio: the mode's frequency over that of ({reference[0]},{reference[1]}). note: the nearest "
         "equal-tempered note (A4 = 440 Hz), and how many cents the mode lies above (+) or below (\u2212) it.",
@@ -337,11 +325,39 @@ def _table_page(modeset, size, reference, fit):
             "sound radiation and the modelled losses in the film, the air and the rim"
         legend.append(f"T60: time for the mode to die away by 60 dB, from {source}; values "
                       f"beyond {T60_SHOWN_MAX:g} s show as \"> {T60_SHOWN_MAX:g}\".")
+    notes = [sentence(n) for n in modeset.notes]
+    # as many rows as leave room for the legend and the notes below the table
+    below = page.measure(legend + ["The lowest 00 of 000 solved modes (membrane modes lists them all)."], pt=9) \
+        + 0.45 + page.measure(notes, pt=9) + 0.15
+    fit_rows = int((size[1] - MARGIN - page.y - below) / ROW_IN) - 2
+    rows = max(1, min(len(cells), TABLE_ROWS, fit_rows))
+    ax = page.axes(ROW_IN * (rows + 2))
+    ax.set_axis_off()
+    total = sum(widths)
+    table = ax.table(cellText=cells[:rows], colLabels=columns, colWidths=[w / total for w in widths],
+                     bbox=(0, 0, 1, 1), cellLoc="right", colLoc="right")
+    table.auto_set_font_size(False)
+    table.set_fontsize(9)
+    fitted_rows = {i for i, row in enumerate(modeset.table(reference=reference)[:rows]) if row["fitted"]}
+    for (r, c), cell in table.get_celld().items():
+        cell.set_edgecolor("0.75")
+        cell.set_linewidth(0.5)
+        if c == 0:  # mode labels (with branch and head for two heads) read from the left
+            cell._loc = "left"  # matplotlib's table takes one alignment for all cells, else this
+            cell.get_text().set_horizontalalignment("left")
+            cell.PAD = 0.03
+        if r == 0:
+            cell.set_height(cell.get_height() * 2)
+            cell.set_text_props(fontweight="bold")
+            cell.set_facecolor("#eeeeee")
+        elif r - 1 in fitted_rows:
+            cell.set_facecolor("#fbeaea")
+    page.y += 0.15
     if len(cells) > rows:
         legend.insert(0, f"The lowest {rows} of {len(cells)} solved modes (membrane modes lists them all).")
     page.bullets(legend, pt=9)
     page.heading("What the model leaves out", pt=11)
-    page.bullets([sentence(n) for n in modeset.notes], pt=9)
+    page.bullets(notes, pt=9)
     return fig
 
 
@@ -363,6 +379,7 @@ def handout_pages(modeset, *, compare=(), paper: str = "a4", reference=None, cou
              f"{physics_words(modeset.physics)}; ratios to ({reference[0]},{reference[1]})"
              + ("\neach disc shows the head named under its mode: the struck head, or the resonant head "
                 "for the modes counted on it" if two else ""))
+    title = wrap_title(title, size[0] - 2 * MARGIN, 10.5)  # inside the margins, not the paper's edge
     grid = mode_grid(modeset, count=count, columns=3, reference=reference, title=title,
                      width=size[0], height=size[1], fontsize=9.5)
     grid.get_layout_engine().set(rect=(MARGIN / size[0] * 0.6, MARGIN / size[1] * 0.6,

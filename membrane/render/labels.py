@@ -36,7 +36,7 @@ def _overlap(a, b) -> float:
 
 
 def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 7.0, colors=None,
-                 obstacles=(), gid_prefix: str = "label", background: bool = False):
+                 obstacles=(), gid_prefix: str = "label", background: bool = False, below=None):
     """Annotate ``points`` (data coordinates) with ``texts``, avoiding overlaps.
 
     Parameters
@@ -57,6 +57,8 @@ def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 
         More points (data coordinates) that labels must not cover.
     background : bool
         Put each label on a white patch (over lines drawn through it).
+    below : sequence of bool, optional
+        Per label: try the places below the point first (a point on the top edge).
 
     Returns
     -------
@@ -73,14 +75,15 @@ def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 
     blocked = [(x - MARKER_HALF * scale, y - MARKER_HALF * scale, x + MARKER_HALF * scale,
                 y + MARKER_HALF * scale) for x, y in keep if np.all(np.isfinite((x, y)))]
     colors = list(colors) if colors is not None else ["black"] * len(texts)
+    below = list(below) if below is not None else [False] * len(texts)
     placed = []
-    for (px, py), text, color, point in zip((to_px(p) for p in points), texts, colors, points):
+    for (px, py), text, color, point, down in zip((to_px(p) for p in points), texts, colors, points, below):
         probe = ax.text(0, 0, text, fontsize=fontsize)
         box = probe.get_window_extent(renderer)
         probe.remove()
         w, h = box.width, box.height
         best, best_cost = None, np.inf
-        for dx, dy in candidates:
+        for dx, dy in ((dx, -dy) for dx, dy in candidates) if down else candidates:
             ox, oy = dx * scale, dy * scale
             x0 = px + ox - (w if dx < 0 else 0 if dx > 0 else w / 2)
             y0 = py + oy - (h if dy < 0 else 0 if dy > 0 else h / 2)

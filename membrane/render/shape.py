@@ -159,11 +159,11 @@ def head_words(modeset, mode) -> str:
 def wrap_title(text: str, width_in: float, fontsize: float) -> str:
     """Break each line of a title so it fits ``width_in`` inches at ``fontsize`` points.
 
-    An average glyph of matplotlib's default sans-serif is about 0.55 em wide.
+    An average glyph of matplotlib's default sans-serif is about 0.55 em wide; 0.6 leaves a margin.
     """
     import textwrap
 
-    chars = max(12, int(width_in * 72.0 / (0.55 * fontsize)))
+    chars = max(12, int(width_in * 72.0 / (0.6 * fontsize)))
     return "\n".join(textwrap.fill(line, chars, break_on_hyphens=False) for line in text.split("\n"))
 
 

@@ -248,7 +248,7 @@ def mode_grid(modeset, *, count: int = 12, columns: int = 4, reference: tuple[in
         bar.ax.set_xticklabels(["down", "0", "up"], fontsize=fontsize)
         bar.set_label("displacement at one instant (peak 1"
                       + ("; each head on its own scale" if two_heads else "")
-                      + "); black lines are nodes (no motion)", fontsize=fontsize)
+                      + ")\nblack lines are nodes (no motion)", fontsize=fontsize)
     return fig
 
 
@@ -355,7 +355,7 @@ def ratio_chart(modesets, *, fit_modes=None, width: float = 11.0, height: float 
         ax.axhline(0.0, color="0.4", linewidth=0.8, zorder=0)
         ax.axhspan(-10, 10, color="0.92", zorder=0)
         label_all = len(points) <= LABEL_ALL_UP_TO  # else only the fitted modes, to stay legible
-        spots, texts, colours = [], [], []
+        spots, texts, colours, downs = [], [], [], []
         for p in points:
             filled = p["fitted"]
             y = p["cents"]
@@ -367,10 +367,13 @@ def ratio_chart(modesets, *, fit_modes=None, width: float = 11.0, height: float 
                     markerfacecolor=FIT_COLOUR if filled else "white",
                     markeredgecolor=FIT_COLOUR if filled else "0.35", gid=p["label"], clip_on=False)
             if filled or label_all or clipped:
+                downs.append(clipped and y > 0)  # on the top edge: label it below, inside the chart
                 spots.append((p["harmonic_ratio"], shown))
                 texts.append(p["short"] + (f" {y:+.0f} c" if clipped else ""))
                 colours.append("black" if filled else "0.3")
-        pending.append((ax, spots, texts, colours, [(p["harmonic_ratio"], p["cents"]) for p in points]))
+        pending.append((ax, spots, texts, colours, downs,
+                        [(p["harmonic_ratio"], float(np.clip(p["cents"], -0.94 * span, 0.94 * span)))
+                         for p in points]))
         ax.set_xlim(0.5, top + 0.5)
         ax.set_ylim(-span, span)
         ax.set_xticks(range(1, top + 1, 1 if top <= 12 else 2))
@@ -387,8 +390,8 @@ def ratio_chart(modesets, *, fit_modes=None, width: float = 11.0, height: float 
         fig.suptitle(wrap_title(f"{drum}\nmodes against the best harmonic series; filled: modes in the fit; "
                                 "hollow: the others; triangles: beyond the chart (value written); "
                                 "grey band: within 10 cents", size[0] * 0.95, fontsize + 2), fontsize=fontsize + 2)
-    for ax, spots, texts, colours, all_points in pending:  # last: labels need the final layout
-        place_labels(ax, spots, texts, fontsize=fontsize - 0.5, colors=colours,
+    for ax, spots, texts, colours, downs, all_points in pending:  # last: labels need the final layout
+        place_labels(ax, spots, texts, fontsize=fontsize - 0.5, colors=colours, below=downs,
                      obstacles=[q for q in all_points if q not in spots])
     if pending:
         fig.set_layout_engine("none")  # keep the layout the labels were placed in

@@ -1,0 +1,192 @@
+"""Loss parameters from measured decay: fit the ones the data can see, say what damps each partial.
+
+Every loss term of the coupled operator is linear in its parameter (dissipation.py), and the
+losses are small, so to first order a mode's decay rate (Im omega, 1/s) is
+
+    r_k = r_k(0) + sum_p x_p s_kp,
+
+r_k(0) the rate with the fitted parameters at zero (radiation, the air's boundary layers, the
+film's bending loss), s_kp the rate one unit of parameter p adds (from one more solve each).
+The parameters (tension loss factor; optionally the rim's edge mobility) are found by
+non-negative least squares on the relative misfit of the measured rates, with uncertainties
+from the residual scatter. A parameter the data cannot separate from another (too few
+partials, or columns nearly alike) is not fitted and keeps its value.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from .losses import Losses
+
+LN1000 = 3.0 * math.log(10.0)
+FITTABLE = ("tension_loss_factor", "edge_mobility")
+# one unit of each parameter for the sensitivity solves (the terms are linear in them)
+UNIT = {"tension_loss_factor": 1e-3, "edge_mobility": 1e-5}
+MIN_T60 = 0.5  # s: shorter decays are measured too roughly to fit on (recording analysis)
+MECHANISMS = ("radiation", "air boundary layers", "film bending", "tension loss", "rim")
+
+
+@dataclass(frozen=True)
+class LossFit:
+    """Fitted loss parameters and what they predict.
+
+    Attributes
+    ----------
+    losses : Losses
+        The drum's losses with the fitted parameters.
+    fitted : dict
+        Parameter name -> (value, standard uncertainty or None).
+    used : tuple
+        (m, n, branch) of the partials fitted on.
+    rows : tuple of dict
+        Per matched partial: m, n, branch, measured and predicted T60 (s), the rate of each
+        mechanism (1/s) and the one that dominates.
+    rms_log_ratio : float
+        Root-mean-square of ln(predicted / measured T60) over the partials fitted on.
+    """
+
+    losses: Losses
+    fitted: dict
+    used: tuple
+    rows: tuple
+    rms_log_ratio: float
+
+
+def _rates(drum, losses, *, m_max, n_max, physics_losses="all"):
+    from .solver import solve
+
+    modes = solve(replace(drum, losses=losses), "full", m_max=m_max, n_max=n_max, losses=physics_losses)
+    return {(mo.m, mo.n, mo.branch, mo.head): mo.omega.imag for mo in modes}
+
+
+def mechanism_rates(drum, *, m_max: int, n_max: int, names=FITTABLE) -> dict:
+    """Decay rate (1/s) of each mode split by mechanism, with the named parameters at one unit.
+
+    Returns ``{"radiation": {key: r}, "air boundary layers": ..., "film bending": ...,
+    "tension loss": ..., "rim": ...}`` with the parameters' entries per unit (UNIT) and the
+    others at the drum's values; keys are (m, n, branch, head).
+    """
+    base = drum.losses
+    zero = replace(base, tension_loss_factor=0.0, edge_mobility=0.0, film_loss_factor=0.0,
+                   boundary_layers=False)
+    kw = dict(m_max=m_max, n_max=n_max)
+    rad = _rates(drum, base, physics_losses="radiation", **kw)
+    out = {"radiation": rad}
+    layers = _rates(drum, replace(zero, boundary_layers=base.boundary_layers), **kw)
+    out["air boundary layers"] = {k: layers[k] - rad[k] for k in rad}
+    bend = _rates(drum, replace(zero, film_loss_factor=base.film_loss_factor), **kw)
+    out["film bending"] = {k: bend[k] - rad[k] for k in rad}
+    for name, label in zip(FITTABLE, ("tension loss", "rim")):
+        value = UNIT[name] if name in names else getattr(base, name)
+        if value == 0:
+            out[label] = {k: 0.0 for k in rad}
+            continue
+        r = _rates(drum, replace(zero, **{name: value}), **kw)
+        out[label] = {k: r[k] - rad[k] for k in rad}
+    return out
+
+
+def fit_losses(drum, matches, *, m_max: int, n_max: int, names=FITTABLE, fit_on=None) -> LossFit:
+    """Fit loss parameters to the measured decay of matched partials.
+
+    Parameters
+    ----------
+    drum : Drum
+        The drum at the fitted tension (its ``losses`` give the values not fitted).
+    matches : sequence
+        Objects with ``m``, ``n``, ``branch``, ``head`` and ``partial.decay_rate`` (1/s) and
+        ``partial.flags`` (identify.Match).
+    m_max, n_max : int
+        Orders to solve (covering the matches).
+    names : sequence of str
+        Parameters to try, from FITTABLE.
+    fit_on : set of (m, n) or None
+        Fit on these modes only (the others are predicted); default every usable partial.
+
+    Returns
+    -------
+    LossFit
+    """
+    rates = mechanism_rates(drum, m_max=m_max, n_max=n_max, names=names)
+    labels = dict(zip(FITTABLE, ("tension loss", "rim")))
+    names = tuple(names)
+    usable = []
+    for mt in matches:
+        key = (mt.m, mt.n, mt.branch, mt.head)
+        r = mt.partial.decay_rate
+        if key not in rates["radiation"] or not r > 0 or "fast" in mt.partial.flags:
+            continue
+        if LN1000 / r < MIN_T60 or (fit_on is not None and (mt.m, mt.n) not in fit_on):
+            continue
+        usable.append((key, r))
+    values = {n: getattr(drum.losses, n) for n in FITTABLE}
+
+    def contribution(mech, key, cols):
+        """Rate of a mechanism at the drum's values, for a parameter not being fitted."""
+        for c, lab in labels.items():
+            if lab == mech:
+                if c in cols:
+                    return 0.0
+                return rates[mech][key] * (values[c] / UNIT[c] if c in names else 1.0)
+        return rates[mech][key]
+
+    fitted = {}
+    cols = list(names)
+    while cols:
+        if len(usable) < len(cols) + 1:
+            cols = cols[:-1]
+            continue
+        y = np.array([(r - sum(contribution(m, k, cols) for m in MECHANISMS)) / r for k, r in usable])
+        A = np.array([[rates[labels[c]][k] / r for c in cols] for k, r in usable])
+        x, cov = _nnls_with_cov(A, y)
+        rel = [math.sqrt(cov[i, i]) / x[i] if x[i] > 0 and cov is not None else math.inf
+               for i in range(len(cols))]
+        if len(cols) > 1 and max(rel) > 1.0:  # a parameter the data cannot pin: fit fewer
+            cols = cols[:-1]
+            continue
+        for i, c in enumerate(cols):
+            values[c] = float(x[i]) * UNIT[c]
+            fitted[c] = (values[c], None if cov is None else math.sqrt(cov[i, i]) * UNIT[c])
+        break
+    losses = replace(drum.losses, **values)
+    rows, logs = [], []
+    used_keys = {k for k, _ in usable}
+    for mt in matches:
+        key = (mt.m, mt.n, mt.branch, mt.head)
+        if key not in rates["radiation"]:
+            continue
+        parts = {m: rates[m][key] for m in MECHANISMS}
+        for c, lab in labels.items():
+            parts[lab] = parts[lab] / UNIT[c] * values[c] if c in names else parts[lab]
+        total = sum(parts.values())
+        measured = mt.partial.decay_rate
+        pred_t60 = LN1000 / total if total > 0 else None
+        rows.append({"m": mt.m, "n": mt.n, "branch": mt.branch, "head": mt.head,
+                     "measured_t60_s": LN1000 / measured if measured > 0 else None,
+                     "predicted_t60_s": pred_t60, "fitted_on": key in used_keys,
+                     "rates_per_s": parts, "dominant": max(parts, key=parts.get)})
+        if key in used_keys and pred_t60:
+            logs.append(math.log(pred_t60 * measured / LN1000))
+    return LossFit(losses=losses, fitted=fitted, used=tuple(k[:3] for k, _ in usable),
+                   rows=tuple(rows), rms_log_ratio=float(np.sqrt(np.mean(np.square(logs)))) if logs else math.nan)
+
+
+def _nnls_with_cov(A, y):
+    """Non-negative least squares, and the covariance of the solution from the residual scatter."""
+    from scipy.optimize import nnls
+
+    x, _ = nnls(A, y)
+    n, p = A.shape
+    if n <= p:
+        return x, None
+    res = y - A @ x
+    s2 = float(res @ res) / (n - p)
+    try:
+        cov = s2 * np.linalg.inv(A.T @ A)
+    except np.linalg.LinAlgError:
+        return x, None
+    return x, cov

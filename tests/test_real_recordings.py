@@ -1,0 +1,180 @@
+"""Real recordings of sampled drums, judged against an independent long-window spectrum.
+
+The excerpts in tests/data (sources and licences in tests/data/README) are recordings of
+real instruments. The reference for each is computed here, independently of the analysis
+under test: a Welch average of 1 s Hann windows over the first 1.5 s of the decay (from
+20 ms after the onset) with parabolic interpolation of its peaks in dB, the textbook way
+to read a line's frequency from a spectrum (Smith, Spectral Audio Signal Processing,
+"Quadratic interpolation of spectral peaks"). Timpani partials are named by their ratios
+to the principal: (1,1), (2,1), (3,1) near 1 : 1.5 : 2 (Rossing, Science of Percussion
+Instruments, ch. 2; Fletcher & Rossing, Physics of Musical Instruments, 18.2).
+"""
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+import scipy.signal
+import soundfile
+
+from membrane.recording import analyse, read_recording
+
+DATA = Path(__file__).parent / "data"
+TIMPANI = ["timpani_low_1.flac", "timpani_mid_1.flac", "timpani_high_1.flac"]
+TOMS = ["tom_floor_1.flac", "tom_low_1.flac", "tom_mid_1.flac", "tom_high_1.flac", "tom_low_2.flac"]
+
+
+def reference_peaks(path, *, skip=0.02, seconds=1.5, f_max=2000.0, prominence=6.0):
+    """(frequency Hz, level dB re the highest) of the long-window spectrum's peaks."""
+    x, rate = soundfile.read(path, always_2d=True)
+    x = x.mean(axis=1)
+    onset = int(np.argmax(np.abs(x) > 0.1 * np.abs(x).max()))
+    y = x[onset + int(skip * rate): onset + int((skip + seconds) * rate)]
+    nper = min(y.size, int(rate))
+    f, p = scipy.signal.welch(y, rate, window="hann", nperseg=nper, noverlap=nper // 2,
+                              nfft=8 * nper, scaling="spectrum")
+    level = 10 * np.log10(p + 1e-30)
+    k = scipy.signal.find_peaks(level, prominence=prominence)[0]
+    k = k[(f[k] > 20) & (f[k] < f_max)]
+    out = []
+    for i in k:
+        a, b, c = level[i - 1], level[i], level[i + 1]
+        d = 0.5 * (a - c) / (a - 2 * b + c)
+        out.append((f[i] + d * (f[1] - f[0]), b - 0.25 * (a - c) * d))
+    top = max(v for _, v in out)
+    return [(fr, v - top) for fr, v in out]
+
+
+def timpani_partials(peaks):
+    """The principal, its fifth and (where the spectrum shows it) its octave among the
+    strong reference peaks below 400 Hz: the strongest peak near ratios 1, 1.5 and 2 of a
+    candidate principal, the candidate explaining the most level."""
+    strong = [(f, v) for f, v in peaks if f < 400 and v > -25]
+    best = None
+    for f1, _ in strong:
+        found = []
+        for ratio in (1.0, 1.5, 2.0):
+            near = [(f, v) for f, v in strong if abs(f / (ratio * f1) - 1) < 0.04]
+            if not near:
+                break
+            found.append(max(near, key=lambda fv: fv[1]))
+        if len(found) >= 2:
+            score = sum(10 ** (v / 10) for _, v in found)
+            if best is None or score > best[0]:
+                best = (score, found)
+    assert best is not None, strong
+    return [f for f, _ in best[1]]
+
+
+@pytest.fixture(scope="module")
+def analysed():
+    return {name: analyse(read_recording(DATA / name)) for name in TIMPANI + TOMS}
+
+
+@pytest.mark.parametrize("name", TIMPANI)
+def test_timpani_principal_fifth_and_octave_found_within_1_hz(analysed, name):
+    partials = analysed[name].partials
+    for f in timpani_partials(reference_peaks(DATA / name)):
+        nearest = min(partials, key=lambda p: min(abs(p.frequency - f), abs(p.settled - f)))
+        assert min(abs(nearest.frequency - f), abs(nearest.settled - f)) < 1.0, (name, f, nearest)
+
+
+@pytest.mark.parametrize("name", TIMPANI + TOMS)
+def test_strongest_partial_is_a_drum_partial(analysed, name):
+    partials = analysed[name].partials
+    top = max(partials, key=lambda p: p.level_db)
+    assert top.settled < 400.0, (name, top)
+    # the reference spectrum puts its highest peak within a few Hz of one of the tool's
+    # five strongest partials
+    f_ref = max(reference_peaks(DATA / name), key=lambda fv: fv[1])[0]
+    five = sorted(partials, key=lambda p: -p.level_db)[:5]
+    assert min(min(abs(p.frequency - f_ref), abs(p.settled - f_ref)) for p in five) < 3.0, \
+        (name, f_ref, five)
+
+
+@pytest.mark.parametrize("name", [
+    "timpani_low_1.flac", "timpani_mid_1.flac",
+    pytest.param("timpani_high_1.flac", marks=pytest.mark.xfail(
+        strict=True, reason="a 1028 Hz partial (T60 1.2 s) comes out at -17 dB at 20 ms; the "
+        "long-window spectrum has it near -30 dB: its level is not yet right")),
+])
+def test_timpani_nothing_loud_above_1_khz(analysed, name):
+    # a timpano's partials above 1 kHz are weak (Rossing, Science of Percussion Instruments,
+    # ch. 2: the principal and its overtones below 400 Hz carry the tone); the old analysis
+    # put 1.7 and 2.8 kHz mallet components at 0 dB
+    loud_high = [p for p in analysed[name].partials if p.frequency > 1000.0 and p.level_db > -20.0]
+    assert not loud_high, (name, loud_high)
+
+
+@pytest.mark.parametrize("name", ["tom_low_1.flac", "tom_mid_1.flac", "tom_high_1.flac"])
+def test_a_gliding_tom_fundamental_is_one_partial_with_its_glide(analysed, name):
+    # the independent glide: the spectral peak of the fundamental in a 0.1 s Hann window
+    # at 20 ms after the onset and in one at 0.4 s, within 20 % below the first
+    x, rate = soundfile.read(DATA / name)
+    onset = int(np.argmax(np.abs(x) > 0.1 * np.abs(x).max()))
+
+    def peak(t, lo, hi):
+        y = x[onset + int(t * rate): onset + int((t + 0.1) * rate)]
+        n = 64 * y.size
+        p = np.abs(np.fft.rfft(y * np.hanning(y.size), n)) ** 2
+        f = np.arange(p.size) * rate / n
+        sel = (f > lo) & (f < hi)
+        return float(f[sel][np.argmax(p[sel])])
+
+    f_late = reference_peaks(DATA / name)
+    f_late = max(f_late, key=lambda fv: fv[1])[0]  # the settled fundamental
+    f_early = peak(0.02, f_late * 0.98, f_late * 1.25)
+    measured = 1200 * np.log2(f_late / f_early)
+    assert measured < -50  # the premise: these toms glide by more than half a semitone
+    partials = analysed[name].partials
+    glides = [p for p in partials if "glide" in p.flags and abs(p.settled - f_late) < 2.0]
+    assert len(glides) == 1, [(p.frequency, p.settled, p.flags) for p in partials
+                              if f_late * 0.95 < p.settled < f_early * 1.05]
+    (g,) = glides
+    assert g.glide_cents == pytest.approx(measured, abs=0.35 * abs(measured))
+    # one partial: nothing else as strong within the glide's range
+    rivals = [p for p in partials if p is not g and f_late - 1.0 < p.frequency < f_early + 1.0
+              and p.level_db > g.level_db - 6.0]
+    assert not rivals, rivals
+
+
+# A plausible drum for timpani_high_1 (principal near 99.5 Hz, G2): a 29-inch kettledrum,
+# whose usual range is about F2 to C3 (common practice, no source), with the usual
+# 0.19 mm polyester head and a bowl of 0.22 m^3 (from memory: a 29-inch bowl holds
+# roughly 0.2 m^3). Invented for the test, as a player would write it.
+KETTLE_29 = """
+name = "29-inch kettledrum (test)"
+[head]
+diameter = "29 in"
+film = "polyester"
+thickness = "0.19 mm"
+tension = "3000 N/m"
+[body]
+kind = "kettle"
+volume = "0.22 m^3"
+"""
+
+
+def test_a_timpano_with_a_plausible_drum_file_labels_and_tension(analysed, tmp_path):
+    from membrane.drum import load_drum
+    from membrane.identify import identify
+    from membrane.tuning import tension_for
+
+    path = tmp_path / "kettle29.toml"
+    path.write_text(KETTLE_29)
+    drum = load_drum(str(path))
+    ref = timpani_partials(reference_peaks(DATA / "timpani_high_1.flac"))
+    result = identify(drum, analysed["timpani_high_1.flac"].partials, physics="full")
+    assert result.verdict == "identified" and len(result.matches) >= 3
+    labels = {}
+    for mt in result.matches:
+        labels.setdefault((mt.m, mt.n), []).append(mt.partial.settled)
+    # the reference's principal and fifth carry the (1,1) and (2,1) labels (within 1.5 Hz:
+    # a split pair's two halves straddle the long-window peak)
+    for mn, f in zip([(1, 1), (2, 1)], ref[:2]):
+        assert min(abs(g - f) for g in labels[mn]) < 1.5, (mn, f, labels.get(mn))
+    # the fitted tension against the tension at which the same model puts (1,1) on the
+    # measured principal (the tuning routine, a separate path through the model)
+    target = tension_for(drum, targets=[((1, 1), ref[0])], physics="full").tension
+    assert result.tension == pytest.approx(target, rel=0.10)
+    assert 0 < result.uncertainty < 0.1 * result.tension
