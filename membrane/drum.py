@@ -7,7 +7,6 @@ sensible range and names the key when one is wrong.
 
 from __future__ import annotations
 
-import copy
 import math
 import tomllib
 from dataclasses import dataclass, field, replace
@@ -15,8 +14,10 @@ from importlib import resources
 from pathlib import Path
 
 from . import materials
+from . import ranges as R
 from .errors import InputError
 from .losses import Losses, parse_losses
+from .nesting import check_nesting
 from .units import parse_pitch, to_si
 
 EDGES = ("clamped", "hinged")
@@ -25,6 +26,23 @@ BODY_KINDS = ("none", "kettle", "shell")
 # Gas constants for dry air: R = 287.058 J/(kg K), gamma = 1.4 (SOURCES.md, "Air and pitch").
 R_DRY_AIR = 287.058
 GAMMA_AIR = 1.4
+# First zero of J_1 (Abramowitz & Stegun Table 9.5), for the slack limit of the (1,1) mode.
+J11 = 3.8317059702075125
+
+
+def _require(obj, name: str, *, optional: bool = False) -> None:
+    """Invariant of a drum dataclass: the field is a finite number > 0 (SI), or None if optional.
+
+    Only what every drum must satisfy to be one. The practical ranges (membrane.ranges)
+    are checked where values come in from people (the drum file, the command line);
+    the library also accepts modelling limits outside them (air with rho -> 0 and
+    c -> infinity at fixed rho c^2, say).
+    """
+    value = getattr(obj, name)
+    if value is None and optional:
+        return
+    if isinstance(value, bool) or not isinstance(value, (int, float)) or not (math.isfinite(value) and value > 0):
+        raise InputError(f"{type(obj).__name__}.{name}", value, "must be a finite number > 0 (SI units)")
 
 
 @dataclass(frozen=True)
@@ -68,6 +86,19 @@ class Head:
     yield_stress: float | None = None
     tensile_strength: float | None = None
 
+    def __post_init__(self) -> None:
+        # The library is protected too, not only the drum file: no NaN, infinity, zero or
+        # negative size reaches a solver (the practical ranges are the drum file's job).
+        for name in ("radius", "tension", "areal_density"):
+            _require(self, name)
+        for name in ("thickness", "youngs_modulus", "yield_stress", "tensile_strength"):
+            _require(self, name, optional=True)
+        if isinstance(self.plies, bool) or not isinstance(self.plies, int) or not 1 <= self.plies <= 4:
+            raise InputError("Head.plies", self.plies, "must be a whole number from 1 to 4")
+        R.POISSON_RATIO.check(self.poisson_ratio, key="Head.poisson_ratio")  # 0 <= nu < 0.5
+        if self.edge not in EDGES:
+            raise InputError("Head.edge", self.edge, f"must be one of: {', '.join(EDGES)}")
+
     @property
     def diameter(self) -> float:
         """Diameter in m."""
@@ -80,6 +111,19 @@ class Head:
             return 0.0
         h = self.thickness
         return self.plies * self.youngs_modulus * h**3 / (12.0 * (1.0 - self.poisson_ratio**2))
+
+    @property
+    def slack_tension(self) -> float:
+        r"""Tension below which bending stiffness, not tension, sets the (1,1) frequency (N/m).
+
+        In the stiff-membrane equation (DESIGN.md 3.2) a mode of wavenumber k is held by
+        :math:`T k^2` from tension and :math:`D k^4` from bending; they are equal for the
+        (1,1) mode at :math:`T = D (j_{11}/a)^2`. Below it a tension change barely moves
+        the pitch and the head is slack for tuning purposes. A head without bending
+        stiffness (no modulus or thickness given) has no such limit (0).
+        """
+        k11 = J11 / self.radius
+        return self.bending_stiffness * k11 * k11
 
     @property
     def stress(self) -> float | None:
@@ -113,6 +157,12 @@ class Body:
     volume: float | None = None
     depth: float | None = None
 
+    def __post_init__(self) -> None:
+        if self.kind not in BODY_KINDS:
+            raise InputError("Body.kind", self.kind, f"must be one of: {', '.join(BODY_KINDS)}")
+        _require(self, "volume", optional=True)
+        _require(self, "depth", optional=True)
+
 
 @dataclass(frozen=True)
 class Air:
@@ -128,6 +178,10 @@ class Air:
 
     density: float = 1.2041
     sound_speed: float = 343.24
+
+    def __post_init__(self) -> None:
+        _require(self, "density")
+        _require(self, "sound_speed")
 
     @classmethod
     def from_conditions(cls, *, temperature: float = 293.15, pressure: float = 101325.0) -> "Air":
@@ -146,6 +200,10 @@ class Air:
         343.24 m/s and 1.2041 kg/m^3 at 20 degC and 101.325 kPa (SOURCES.md). Humidity
         is neglected (it raises c by well under 1 % at room temperature).
         """
+        for key, value in (("temperature", temperature), ("pressure", pressure)):
+            if isinstance(value, bool) or not isinstance(value, (int, float)) or not (
+                    math.isfinite(value) and value > 0):
+                raise InputError(key, value, "must be a finite number > 0 (K, Pa)")
         return cls(density=pressure / (R_DRY_AIR * temperature),
                    sound_speed=math.sqrt(GAMMA_AIR * R_DRY_AIR * temperature))
 
@@ -225,17 +283,12 @@ _LUG_KEYS = {"pitches", "cents_per_turn", "tensions"}
 _TOP_KEYS = {"name", "description", "head", "body", "resonant_head", "air", "lugs", "losses"}
 
 
-def _ranged(table: dict, key: str, kind: str, where: str, lo: float, hi: float, *,
-            lo_open: bool = True, unit: str = "") -> float | None:
+def _ranged(table: dict, key: str, kind: str, where: str, rng: R.Range) -> float | None:
+    """The value at ``key`` in SI units, checked against its practical range; None if absent."""
     if key not in table:
         return None
     name = f"{where}.{key}"
-    value = to_si(table[key], kind, key=name)
-    below = value <= lo if lo_open else value < lo
-    if below or value > hi:
-        lo_word = ">" if lo_open else ">="
-        raise InputError(name, table[key], f"must be {lo_word} {lo:g} and <= {hi:g} {unit}".rstrip())
-    return value
+    return rng.check(to_si(table[key], kind, key=name), key=name, given=table[key])
 
 
 def _check_keys(table, allowed: set[str], where: str) -> None:
@@ -251,12 +304,12 @@ def _parse_head(table: dict, where: str) -> Head:
     _check_keys(table, _HEAD_KEYS, where)
     if "diameter" in table and "radius" in table:
         raise InputError(f"{where}.radius", table["radius"], "give diameter or radius, not both")
-    diameter = _ranged(table, "diameter", "length", where, 0, 5.0, unit="m")
-    radius = _ranged(table, "radius", "length", where, 0, 2.5, unit="m")
+    diameter = _ranged(table, "diameter", "length", where, R.DIAMETER)
+    radius = _ranged(table, "radius", "length", where, R.RADIUS)
     if diameter is None and radius is None:
         raise InputError(f"{where}.diameter", None, "missing: give diameter (or radius), e.g. \"26 in\"")
     radius = radius if radius is not None else diameter / 2
-    tension = _ranged(table, "tension", "tension", where, 0, 1e5, unit="N/m")
+    tension = _ranged(table, "tension", "tension", where, R.TENSION)
     if tension is None:
         raise InputError(f"{where}.tension", None, "missing: give tension per unit length, e.g. \"4000 N/m\"")
     plies = table.get("plies", 1)
@@ -267,30 +320,39 @@ def _parse_head(table: dict, where: str) -> Head:
         raise InputError(f"{where}.edge", edge, f"must be one of: {', '.join(EDGES)}")
 
     film = materials.film(table["film"], key=f"{where}.film") if "film" in table else None
-    thickness = _ranged(table, "thickness", "length", where, 0, 5e-3, unit="m (5 mm)")
-    density = _ranged(table, "density", "density", where, 0, 20000, unit="kg/m^3")
-    areal = _ranged(table, "areal_density", "areal_density", where, 0, 10, unit="kg/m^2")
+    thickness = _ranged(table, "thickness", "length", where, R.THICKNESS)
+    density = _ranged(table, "density", "density", where, R.DENSITY)
+    areal = _ranged(table, "areal_density", "areal_density", where, R.AREAL_DENSITY)
     if areal is None:
         rho = density if density is not None else (film.density if film else None)
         if rho is None or thickness is None:
             raise InputError(f"{where}.areal_density", None,
                              "missing: give areal_density, or film (or density) with thickness")
         areal = rho * thickness * plies
-    modulus = _ranged(table, "youngs_modulus", "pressure", where, 0, 1e12, unit="Pa")
+        if not R.AREAL_DENSITY.contains(areal):
+            raise InputError(f"{where}.areal_density", f"{areal:.4g} kg/m^2",
+                             f"(density x thickness x plies) {R.AREAL_DENSITY.text()}")
+    modulus = _ranged(table, "youngs_modulus", "pressure", where, R.YOUNGS_MODULUS)
     if modulus is None and film is not None:
         modulus = film.youngs_modulus
     nu = table.get("poisson_ratio", film.poisson_ratio if film else 0.38)
-    if isinstance(nu, bool) or not isinstance(nu, (int, float)) or not 0.0 <= nu < 0.5:
-        raise InputError(f"{where}.poisson_ratio", nu, "must be a number from 0 up to (not including) 0.5")
-    yield_stress = _ranged(table, "yield_stress", "pressure", where, 0, 1e11, unit="Pa")
-    strength = _ranged(table, "tensile_strength", "pressure", where, 0, 1e11, unit="Pa")
-    return Head(
+    if isinstance(nu, bool) or not R.POISSON_RATIO.contains(nu):
+        raise InputError(f"{where}.poisson_ratio", nu, R.POISSON_RATIO.text())
+    yield_stress = _ranged(table, "yield_stress", "pressure", where, R.STRENGTH)
+    strength = _ranged(table, "tensile_strength", "pressure", where, R.STRENGTH)
+    head = Head(
         radius=radius, tension=tension, areal_density=areal, thickness=thickness, plies=plies,
         youngs_modulus=modulus, poisson_ratio=float(nu), edge=edge,
         film=film.name if film else None,
         yield_stress=yield_stress if yield_stress is not None else (film.yield_stress if film else None),
         tensile_strength=strength if strength is not None else (film.tensile_strength if film else None),
     )
+    slack = head.slack_tension
+    if tension < slack:
+        raise InputError(f"{where}.tension", table["tension"],
+                         f"must be at least this head's slack limit, {slack:.4g} N/m (below it bending "
+                         f"stiffness, not tension, sets the pitch), and at most {R.TENSION.hi:g} N/m")
+    return head
 
 
 def _parse_body(table: dict) -> Body:
@@ -298,8 +360,8 @@ def _parse_body(table: dict) -> Body:
     kind = table.get("kind", "none")
     if kind not in BODY_KINDS:
         raise InputError("body.kind", kind, f"must be one of: {', '.join(BODY_KINDS)}")
-    volume = _ranged(table, "volume", "volume", "body", 0, 10.0, unit="m^3")
-    depth = _ranged(table, "depth", "length", "body", 0, 5.0, unit="m")
+    volume = _ranged(table, "volume", "volume", "body", R.VOLUME)
+    depth = _ranged(table, "depth", "length", "body", R.DEPTH)
     if kind == "kettle" and volume is None:
         raise InputError("body.volume", None, "missing: a kettle needs its volume, e.g. \"0.17 m^3\"")
     if kind == "shell" and depth is None:
@@ -319,12 +381,11 @@ def _parse_air(table: dict) -> Air:
     if direct:
         if direct != {"density", "sound_speed"}:
             raise InputError("air", table, "give both density and sound_speed")
-        return Air(density=_ranged(table, "density", "density", "air", 0, 100, unit="kg/m^3"),
-                   sound_speed=_ranged(table, "sound_speed", "speed", "air", 0, 2000, unit="m/s"))
+        return Air(density=_ranged(table, "density", "density", "air", R.AIR_DENSITY),
+                   sound_speed=_ranged(table, "sound_speed", "speed", "air", R.SOUND_SPEED))
     temperature = to_si(table.get("temperature", 293.15), "temperature", key="air.temperature")
-    if not 200.0 <= temperature <= 350.0:
-        raise InputError("air.temperature", table.get("temperature"), "must be between -73 degC and 77 degC")
-    pressure = _ranged(table, "pressure", "pressure", "air", 1e3, 2e5, unit="Pa")
+    R.TEMPERATURE.check(temperature, key="air.temperature", given=table.get("temperature"))
+    pressure = _ranged(table, "pressure", "pressure", "air", R.PRESSURE)
     return Air.from_conditions(temperature=temperature, pressure=pressure or 101325.0)
 
 
@@ -345,14 +406,12 @@ def _parse_lugs(table: dict) -> Lugs:
             raise InputError("lugs.tensions", values, "must be a list of at least 3 tensions, one per lug")
         tensions = tuple(to_si(v, "tension", key=f"lugs.tensions[{i}]") for i, v in enumerate(values))
         for i, (v, t) in enumerate(zip(values, tensions)):
-            if not 0 < t <= 1e5:
-                raise InputError(f"lugs.tensions[{i}]", v, "must be > 0 and <= 100000 N/m")
+            R.TENSION.check(t, key=f"lugs.tensions[{i}]", given=v)
         if hz is not None and len(hz) != len(tensions):
             raise InputError("lugs.tensions", values, f"must have one tension per lug ({len(hz)} pitches given)")
     per_turn = table.get("cents_per_turn")
-    if per_turn is not None and (isinstance(per_turn, bool) or not isinstance(per_turn, (int, float))
-                                 or not 0 < per_turn <= 1200):
-        raise InputError("lugs.cents_per_turn", per_turn, "must be a number of cents > 0 and <= 1200")
+    if per_turn is not None and (isinstance(per_turn, bool) or not R.CENTS_PER_TURN.contains(per_turn)):
+        raise InputError("lugs.cents_per_turn", per_turn, R.CENTS_PER_TURN.text())
     return Lugs(pitches=hz, cents_per_turn=None if per_turn is None else float(per_turn), tensions=tensions)
 
 
@@ -400,6 +459,9 @@ def builtin_text(name: str) -> str:
     return resources.files("membrane").joinpath(f"data/examples/{name}.toml").read_text(encoding="utf-8")
 
 
+MAX_FILE_BYTES = 1_000_000  # a drum file is a few hundred bytes; common practice, no source
+
+
 def read_drum_table(source: str | Path) -> dict:
     """The raw table of a drum file, or of a built-in example given by name.
 
@@ -409,6 +471,9 @@ def read_drum_table(source: str | Path) -> dict:
     path = Path(source)
     if path.is_file():
         try:
+            if path.stat().st_size > MAX_FILE_BYTES:
+                raise InputError("drum file", str(source), f"is larger than {MAX_FILE_BYTES // 1000} kB; "
+                                 "a drum file is a few hundred bytes of text")
             text = path.read_text(encoding="utf-8")
         except (OSError, UnicodeDecodeError) as exc:
             raise InputError("drum file", str(source), f"cannot be read as UTF-8 text ({exc.__class__.__name__})") from None
@@ -417,10 +482,13 @@ def read_drum_table(source: str | Path) -> dict:
     else:
         raise InputError("drum file", str(source),
                          f"no such file, and not a built-in example ({', '.join(builtin_names())})")
+    check_nesting(text, key="drum file", source=str(source))
     try:
         return tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError("drum file", str(source), f"is not valid TOML: {exc}") from None
+    except RecursionError:  # the scan above should have refused it; never a traceback
+        raise InputError("drum file", str(source), "nests too deeply to read") from None
 
 
 def load_drum(source: str | Path, **overrides) -> Drum:
@@ -447,7 +515,15 @@ def override_table(table: dict | None, *, diameter=None, radius=None, tension=No
     ``keys`` maps (table, key), e.g. ``("resonant_head", "tension")``, to a value laid
     over that key after the rest (see :func:`_lay_keys` for what each one replaces).
     """
-    table = copy.deepcopy(table) if table else {}
+    # Copy only the levels changed here (a deep copy would recurse through whatever the
+    # file holds); parse_drum refuses anything that is not a table where one belongs.
+    table = dict(table) if table else {}
+    for part, value in table.items():
+        if isinstance(value, dict):
+            table[part] = dict(value)
+    for part in ("head", "body", "resonant_head"):
+        if part in table and not isinstance(table[part], dict):
+            raise InputError(part, table[part], "must be a table")
     head = table.setdefault("head", {})
     # a shell's two heads share one diameter, so a new size applies to both
     sized = [head] + ([table["resonant_head"]] if isinstance(table.get("resonant_head"), dict) else [])
@@ -476,7 +552,7 @@ def override_table(table: dict | None, *, diameter=None, radius=None, tension=No
         if body != "shell":
             table.pop("resonant_head", None)
         elif "resonant_head" not in table:
-            table["resonant_head"] = copy.deepcopy(head)
+            table["resonant_head"] = dict(head)
     if volume is not None:
         bod["volume"] = volume
     if depth is not None:
@@ -500,8 +576,10 @@ def _lay_keys(table: dict, keys: dict) -> None:
     for (where, key), value in keys.items():
         if where == "resonant_head" and "resonant_head" not in table:
             # a resonant head described by flags alone starts as a copy of the struck head
-            table["resonant_head"] = copy.deepcopy(table.get("head", {}))
+            table["resonant_head"] = dict(table.get("head", {}))
         part = table.setdefault(where, {})
+        if not isinstance(part, dict):
+            raise InputError(where, part, "must be a table")
         for old in (_AIR_REPLACES if where == "air" else _HEAD_REPLACES).get(key, ()):
             part.pop(old, None)
         part[key] = value

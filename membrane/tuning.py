@@ -31,7 +31,6 @@ from dataclasses import dataclass, replace
 import numpy as np
 from scipy import optimize
 
-from .bessel import jn_zeros
 from .drum import Drum, Head
 from .errors import InputError, SolverError
 from .modes import ModeSet
@@ -77,8 +76,7 @@ def slack_tension(head: Head) -> float:
     the pitch and the head is slack for tuning purposes. A head without bending
     stiffness (no modulus or thickness given) has no such limit here (returns 0).
     """
-    k11 = float(jn_zeros(1, 1)[0]) / head.radius
-    return head.bending_stiffness * k11 * k11
+    return head.slack_tension  # one home for the formula (membrane.drum.Head)
 
 
 def practical_minimum(head: Head) -> float | None:

@@ -11,6 +11,7 @@ import math
 import re
 from functools import lru_cache
 
+from . import ranges
 from .errors import InputError
 
 A4_HZ = 440.0  # ISO 16:1975 standard tuning frequency
@@ -169,6 +170,11 @@ def parse_pitch(text, *, key: str = "pitch") -> float:
         hz_match = None if note else _HZ.match(text)
         if note:
             letter, accidentals, octave, offset = note.groups()
+            # bounded before any power is taken: 'A99999999999' would overflow
+            if len(octave) > 3 or not ranges.OCTAVE.contains(int(octave)):
+                raise InputError(key, text, f"the octave {ranges.OCTAVE.text()}")
+            if len(accidentals) > 2:
+                raise InputError(key, text, "at most two sharps or flats")
             semis = _STEPS[letter.upper()] + sum(1 if a in "#♯" else -1 for a in accidentals)
             midi = 12 * (int(octave) + 1) + semis
             hz = A4_HZ * 2.0 ** ((midi - A4_MIDI) / 12)
@@ -177,11 +183,14 @@ def parse_pitch(text, *, key: str = "pitch") -> float:
         else:
             raise InputError(key, text, allowed)
         if offset:
-            hz *= 2.0 ** (float(offset.replace(" ", "")) / 1200)
+            shift = float(offset.replace(" ", ""))
+            if not ranges.CENTS_OFFSET.contains(shift):
+                raise InputError(key, text, f"the cents offset {ranges.CENTS_OFFSET.text()}")
+            hz *= 2.0 ** (shift / 1200)
     else:
         raise InputError(key, text, allowed)
-    if not math.isfinite(hz) or hz <= 0:
-        raise InputError(key, text, "a pitch must be a positive, finite frequency")
+    if not ranges.PITCH.contains(hz):
+        raise InputError(key, text, f"a pitch {ranges.PITCH.text()}")
     return hz
 
 

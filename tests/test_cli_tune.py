@@ -122,7 +122,7 @@ def test_other_formats(fmt):
     (["--target", "1,1=F2", "--target", "2,1=C3", "--free", "mass"], "mass"),
     (["--target", "1,1=F2", "--target", "2,1=C3", "--free", "volume", "--physics", "stiff"], "physics full"),
     (["--target", "1,1=F2", "--target", "1,1=G2"], "one target"),
-    (["--cents-per-turn", "-3"], "cents_per_turn"),
+    (["--cents-per-turn", "-3"], "--cents-per-turn"),  # the option as typed
 ])
 def test_refusals_are_one_line_and_exit_2(args, words):
     extra = [] if "--physics" in args else ["--physics", "stiff"]

@@ -87,7 +87,7 @@ def test_corrupt_or_mismatched_file_is_ignored_and_rewritten(cache, damage):
                  k_max=np.array(KA))
     table = cached(IDEAL)
     np.testing.assert_array_equal(table(K_TEST), build(IDEAL)(K_TEST))
-    assert table_cache.load(path.stem, {"x": (None, n, n)}) is not None  # rewritten, valid
+    assert table_cache.load(path.stem, {"x": (None, n, n), "y": (None, n, n), "k_max": ()}) is not None  # rewritten, valid
 
 
 @pytest.mark.parametrize("word", ["off", "OFF", "0"])
@@ -138,3 +138,33 @@ def test_disk_use_is_bounded_least_recently_used_first(cache, monkeypatch):
     kept = {p.stem for p in files(cache)}
     assert kept == set(names[2:]) and len(kept) == 3
     assert not [p for p in cache.iterdir() if p.name.startswith(".tmp-")]
+
+
+@pytest.mark.parametrize("extra", ["small", "huge"])
+def test_unexpected_members_are_refused_before_loading_and_rewritten(cache, monkeypatch, extra):
+    # The zip directory (zipfile.infolist) is the reference: a file with the right arrays
+    # plus one more member is not ours; a huge one must cost nothing to refuse.
+    import zipfile
+
+    cached(IDEAL)
+    (path,) = files(cache)
+    n = unit_space(IDEAL).size
+    with np.load(path) as data:
+        good = {k: np.array(data[k]) for k in data.files}
+    if extra == "small":
+        np.savez(path, **good, junk=np.zeros(4))
+    else:  # 100 MB of zeros, deflated to about 100 kB on disk, declared in the directory
+        np.savez(path, **good)
+        with zipfile.ZipFile(path, "a", compression=zipfile.ZIP_DEFLATED) as archive:
+            archive.writestr("junk.npy", bytes(100_000_000))
+    loads = []
+    real_load = np.load
+    monkeypatch.setattr(np, "load", lambda *a, **k: loads.append(a) or real_load(*a, **k))
+    shapes = {"x": (None, n, n), "y": (None, n, n), "k_max": ()}
+    assert table_cache.load(path.stem, shapes) is None
+    assert loads == []  # refused from the directory, nothing read
+    np.testing.assert_array_equal(cached(IDEAL)(K_TEST), build(IDEAL)(K_TEST))
+    monkeypatch.setattr(np, "load", real_load)
+    assert table_cache.load(path.stem, shapes) is not None  # rewritten as a plain table
+    with zipfile.ZipFile(path) as archive:
+        assert sorted(m.filename for m in archive.infolist()) == ["k_max.npy", "key.npy", "x.npy", "y.npy"]

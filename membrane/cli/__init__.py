@@ -6,8 +6,11 @@ typer/click found it (a malformed option) or the library did (a bad value).
 
 from __future__ import annotations
 
+import errno
+import io
 import os
 import sys
+import warnings
 
 # The solvers work on many small matrices, where threaded BLAS only adds contention
 # (measured: a radiation-table build 0.75 s on one thread, 6.8 s on two on a busy
@@ -28,8 +31,20 @@ class _OneLineErrors(TyperGroup):
 
     def main(self, args=None, prog_name=None, complete_var=None, standalone_mode=True, **extra):
         try:
-            code = super().main(args=args, prog_name=prog_name or "membrane",
-                                complete_var=complete_var, standalone_mode=False, **extra)
+            with warnings.catch_warnings():
+                # numpy's floating-point RuntimeWarnings (overflow, invalid value) are expected
+                # inside the solvers' searches, which check their own results; the user sees
+                # the result or one error line, never a warning before it.
+                warnings.simplefilter("ignore", RuntimeWarning)
+                code = super().main(args=args, prog_name=prog_name or "membrane",
+                                    complete_var=complete_var, standalone_mode=False, **extra)
+            sys.stdout.flush()  # a full disk or closed pipe shows here, not at interpreter exit
+        except OSError as exc:
+            _drop_stdout()
+            if exc.errno != errno.EPIPE:  # a closed pipe (| head) is the reader's choice: quiet
+                what = f"{exc.filename}: " if exc.filename else "writing the output failed: "
+                print_error(f"{what}{exc.strerror or exc}".replace("\n", " "))
+            sys.exit(2)
         except typer.Exit as exc:
             sys.exit(exc.exit_code)
         except (typer.Abort, KeyboardInterrupt):
@@ -46,6 +61,16 @@ class _OneLineErrors(TyperGroup):
             print_error(exc.format_message().replace("\n", " "))
             sys.exit(2)
         sys.exit(code if isinstance(code, int) else 0)
+
+
+def _drop_stdout() -> None:
+    """Point stdout at /dev/null, so the interpreter's final flush cannot fail again."""
+    try:
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        os.close(devnull)
+    except (OSError, ValueError, AttributeError, io.UnsupportedOperation):
+        pass  # not a real file (a test's captured output): nothing is flushed at exit
 
 
 app = typer.Typer(

@@ -243,6 +243,15 @@ def drum_from(drum_file: str | None, **flags) -> Drum:
     return parse_drum(override_table(None, **flags, keys=keys))
 
 
+def check_float(key: str, value: float | None, rng) -> float | None:
+    """A float option checked finite and inside ``rng`` (a :class:`membrane.ranges.Range`).
+
+    Click's own min/max let NaN through (every comparison with NaN is false), so each
+    float option is checked here; None (option not given) passes.
+    """
+    return None if value is None else rng.check(value, key=key)
+
+
 # ------------------------------------------------------------------ output
 def _clean(value):
     """JSON-safe: NaN and infinities become null, numpy scalars plain numbers."""
@@ -328,25 +337,82 @@ def signed(digits: int) -> Callable:
 
 
 # ------------------------------------------------------------------ files
+TEMP_PREFIX = ".membrane-tmp-"  # our temporary files: TEMP_PREFIX + pid + "-" + random + suffix
+
+
+def check_target(path: str | Path, *, force: bool, key: str = "--out") -> Path:
+    """The file to write for ``path``, after refusing what must not be replaced.
+
+    A folder (or a link to one) is refused as a folder; an existing file needs ``force``;
+    anything existing that is not a regular file (a FIFO, a device node, a socket, a link
+    to nothing) is refused even with ``force``, because replacing it would destroy it.
+    A link to a regular file is followed: the file it names is replaced, the link kept.
+    """
+    path = Path(path)
+    if path.is_dir():
+        fail(key, str(path), "is a folder; give a file name")
+    if os.path.lexists(path):
+        if not path.exists():
+            fail(key, str(path), "is a link to nothing; remove it or give another file name")
+        if not path.is_file():
+            fail(key, str(path), "is not a regular file (a device, pipe or socket); it is never replaced")
+        if not force:
+            fail(key, str(path), "exists already; add --force to overwrite it")
+        path = Path(os.path.realpath(path))
+    folder = path.parent if str(path.parent) else Path(".")
+    if not folder.is_dir():
+        fail(key, str(path), f"folder {str(folder)!r} does not exist")
+    if not os.access(folder, os.W_OK):
+        fail(key, str(path), f"folder {str(folder)!r} is not writable")
+    return path
+
+
+def _remove_stale_temporaries(folder: Path) -> None:
+    """Delete our temporary files in ``folder`` left by a process that no longer runs."""
+    try:
+        names = [n for n in os.listdir(folder) if n.startswith(TEMP_PREFIX)]
+    except OSError:
+        return
+    for name in names:
+        pid = name[len(TEMP_PREFIX):].split("-", 1)[0]
+        if not pid.isdigit() or _alive(int(pid)):
+            continue
+        try:
+            (folder / name).unlink()
+        except OSError:
+            pass
+
+
+def _alive(pid: int) -> bool:
+    if pid == os.getpid():
+        return True
+    try:
+        os.kill(pid, 0)
+    except ProcessLookupError:
+        return False
+    except (PermissionError, OverflowError, OSError):
+        return True  # someone else's process, or not ours to judge: leave its files alone
+    return True
+
+
 def write_atomic(path: str | Path, writer: Callable[[Path], None], *, force: bool,
                  key: str = "--out") -> Path:
     """Write a file whole or not at all.
 
     ``writer(tmp_path)`` writes the content to a temporary file in the target's folder
     (with the target's suffix, so format-sniffing writers behave); it is then moved
-    over the target in one step. An existing target is refused unless ``force``.
+    over the target in one step. What :func:`check_target` refuses is refused here.
+    A temporary file left by a killed run (its process gone) is removed on the next
+    write to that folder.
     """
-    path = Path(path)
-    if path.exists() and not force:
-        fail(key, str(path), "exists already; add --force to overwrite it")
-    if path.is_dir():
-        fail(key, str(path), "is a folder; give a file name")
+    shown = Path(path)
+    path = check_target(path, force=force, key=key)
     folder = path.parent if str(path.parent) else Path(".")
-    if not folder.is_dir():
-        fail(key, str(path), f"folder {str(folder)!r} does not exist")
-    if not os.access(folder, os.W_OK):
-        fail(key, str(path), f"folder {str(folder)!r} is not writable")
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.stem}-", suffix=path.suffix, dir=folder)
+    _remove_stale_temporaries(folder)
+    try:
+        fd, tmp = tempfile.mkstemp(prefix=f"{TEMP_PREFIX}{os.getpid()}-", suffix=path.suffix, dir=folder)
+    except OSError as exc:
+        fail(key, str(shown), f"cannot be written ({exc.strerror or exc})")
     os.close(fd)
     tmp = Path(tmp)
     try:
@@ -355,16 +421,23 @@ def write_atomic(path: str | Path, writer: Callable[[Path], None], *, force: boo
         os.umask(umask)
         os.chmod(tmp, 0o666 & ~umask)
         os.replace(tmp, path)
+    except OSError as exc:
+        tmp.unlink(missing_ok=True)
+        fail(key, str(shown), f"cannot be written ({exc.strerror or exc})")
     except BaseException:
         tmp.unlink(missing_ok=True)
         raise
-    return path
+    return shown
 
 
 def print_error(message: str) -> None:
     """The one line a user sees for bad input."""
-    print(f"membrane: error: {message}", file=sys.stderr)
+    try:
+        print(f"membrane: error: {message}", file=sys.stderr, flush=True)
+    except (OSError, ValueError):  # no stderr to write to: the exit code still says it
+        pass
 
 
 __all__ = ["Format", "Physics", "BodyKind", "fail", "parse_mode", "drum_from", "emit", "num",
-           "signed", "t60", "write_atomic", "print_error", "MembraneError"]
+           "signed", "t60", "check_target", "check_float", "write_atomic", "print_error",
+           "MembraneError"]

@@ -76,6 +76,10 @@ def listen(
     from ..units import note_name
 
     chan = parse_channel(channel)
+    from ..ranges import FLOOR_DB
+    from .common import check_float
+
+    check_float("--floor", floor, FLOOR_DB)  # click's max= lets NaN and -inf through
     if target and drum is None:
         fail("--target", target[0], "needs --drum: the tension is worked out from the fitted drum model")
     if plot is not None:

@@ -35,8 +35,10 @@ ANGLES_NOTE = ("angles: lug 1 at 0 degrees, counted round the rim in the order t
 def _values(texts: list[str], key: str, kind: str) -> list[float]:
     from ..units import to_si
 
+    from ..ranges import TENSION
+
     items = [item.strip() for text in texts for item in text.split(",") if item.strip()]
-    return [to_si(item, kind, key=key) for item in items]
+    return [TENSION.check(to_si(item, kind, key=key), key=key, given=item) for item in items]
 
 
 @with_drum_flags
@@ -96,9 +98,11 @@ def lugs(
         fail("--method", method, "exact or first-order")
     if cents_per_turn is not None and turns_per_newton is not None:
         fail("--cents-per-turn", cents_per_turn, "give one calibration: --cents-per-turn or --turns-per-newton")
-    for key, value in (("--cents-per-turn", cents_per_turn), ("--turns-per-newton", turns_per_newton)):
-        if value is not None and not (math.isfinite(value) and value > 0):
-            fail(key, value, "must be a positive number")
+    from .. import ranges
+    from .common import check_float
+
+    check_float("--cents-per-turn", cents_per_turn, ranges.CENTS_PER_TURN)
+    check_float("--turns-per-newton", turns_per_newton, ranges.TURNS_PER_NEWTON)
     drum = drum_from(drum_file, **drum_flags)
     tensions = _values(lug_tensions, "--lug-tensions", "tension") if lug_tensions else None
     pitches = list(parse_lug_pitches(lug_pitches)) if lug_pitches else None

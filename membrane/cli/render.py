@@ -12,9 +12,8 @@ from typing import Annotated, Optional
 
 import typer
 
-from .common import (HEAD_HELP, REFERENCE_HELP, DrumFile, LossChoice, LossesOpt, Physics, drum_from, fail,
-                     parse_mode, parse_reference,
-                     with_drum_flags, write_atomic)
+from .common import (HEAD_HELP, REFERENCE_HELP, DrumFile, LossChoice, LossesOpt, Physics, check_target,
+                     drum_from, fail, parse_mode, parse_reference, with_drum_flags, write_atomic)
 
 PHYSICS = tuple(p.value for p in Physics)  # the models, in order of what they add
 
@@ -31,8 +30,7 @@ Count = Annotated[int, typer.Option(min=1, max=48, help="Modes in the grid (lowe
 
 
 def _suffix(out: Path, allowed: tuple[str, ...], what: str, force: bool) -> str:
-    if out.exists() and not force:  # before any solving; write_atomic checks again at the end
-        fail("--out", str(out), "exists already; add --force to overwrite it")
+    check_target(out, force=force)  # before any solving; write_atomic checks again at the end
     fmt = out.suffix.lower().lstrip(".")
     if fmt not in allowed:
         fail("--out", str(out), f"{what} is written as " + ", ".join(f".{a}" for a in allowed))

@@ -10,12 +10,11 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from .. import presets
-
+from .. import presets, ranges
 from ..units import to_si
-from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, decay_words, drum_from, emit,
-                     fail, num, parse_mode, t60,
-                     with_drum_flags, write_atomic)
+from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, check_float, check_target,
+                     decay_words, drum_from, emit, fail, num, parse_mode, t60, with_drum_flags,
+                     write_atomic)
 
 COLUMNS = [
     ("mode", "mode", str),
@@ -169,34 +168,32 @@ def strike(
     chosen, drum_file = _parse_best_for(best_for, drum_file, list(ctx.args))
     if not 0.0 <= at <= 1.0:
         fail("--at", at, "must be from 0 (centre) to 1 (rim), a fraction of the radius")
+    check_float("--angle", angle, ranges.ANGLE_DEG)
+    check_float("--listener-azimuth", listener_azimuth, ranges.ANGLE_DEG)
     if contact_time is not None:
-        t_c = to_si(contact_time, "time", key="--contact-time")
-        if not 0.0 < t_c <= 0.1:
-            fail("--contact-time", contact_time, "must be a positive time up to 100 ms, e.g. '2 ms'")
+        t_c = ranges.CONTACT_TIME.check(to_si(contact_time, "time", key="--contact-time"),
+                                        key="--contact-time", given=contact_time)
     elif mallet.strip().lower() in presets.MALLETS:
         t_c = presets.contact_time(mallet.strip().lower())
     else:
         fail("--mallet", mallet, f"must be one of: {', '.join(presets.MALLETS)}, or give --contact-time")
     if not 0.0 <= listener_angle <= 90.0:
         fail("--listener-angle", listener_angle, "must be from 0 (on the axis) to 90 degrees")
-    distance = to_si(listener_distance, "length", key="--listener-distance")
-    if not distance > 0:
-        fail("--listener-distance", listener_distance, "must be a positive distance")
+    distance = ranges.LISTENER_DISTANCE.check(to_si(listener_distance, "length", key="--listener-distance"),
+                                              key="--listener-distance", given=listener_distance)
     t60 = None
     if assume_t60 is not None:
-        t60 = to_si(assume_t60, "time", key="--assume-t60")
-        if not t60 > 0:
-            fail("--assume-t60", assume_t60, "must be a positive time, e.g. '2 s'")
+        t60 = ranges.T60.check(to_si(assume_t60, "time", key="--assume-t60"), key="--assume-t60",
+                               given=assume_t60)
     if wav_format not in ("int16", "float32"):
         fail("--wav-format", wav_format, "must be int16 or float32")
-    if out is not None:
-        if not RATE_RANGE[0] <= rate <= RATE_RANGE[1]:
-            fail("--rate", rate, f"must be from {RATE_RANGE[0]} to {RATE_RANGE[1]} Hz")
-        if not 0.05 <= seconds <= MAX_SECONDS:
-            fail("--seconds", seconds, f"must be from 0.05 to {MAX_SECONDS:g} s")
+    if not RATE_RANGE[0] <= rate <= RATE_RANGE[1]:
+        fail("--rate", rate, f"must be from {RATE_RANGE[0]} to {RATE_RANGE[1]} Hz")
+    if not 0.05 <= seconds <= MAX_SECONDS:
+        fail("--seconds", seconds, f"must be from 0.05 to {MAX_SECONDS:g} s")
     for key, path in (("--out", out), ("--plot", plot)):
-        if path is not None and Path(path).exists() and not force:  # refuse before the solve
-            fail(key, path, "exists already; add --force to overwrite it")
+        if path is not None:  # refuse before the solve what write_atomic would refuse after it
+            check_target(path, force=force, key=key)
     if plot is not None and Path(plot).suffix.lower() != ".png":
         fail("--plot", plot, "must be a .png file")
     drum = drum_from(drum_file, **drum_flags)

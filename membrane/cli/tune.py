@@ -11,8 +11,8 @@ import typer
 from ..errors import InputError
 from ..units import note_name, parse_pitch
 from .tune_heads import INTERVAL_HELP
-from .common import (DrumFile, Format, Physics, drum_from, emit, fail, num, parse_mode, t60,
-                     with_drum_flags)
+from .common import (DrumFile, Format, Physics, check_float, drum_from, emit, fail, num, parse_mode,
+                     t60, with_drum_flags)
 
 SLACK_SHOWN = 10.0  # the slack limit is shown when the suggestion is within this factor of it
 TARGET_HELP = ("Target pitch: Hz ('87.3', '87.3 Hz'), a note ('F2', 'F#2', 'Bb2') or either with cents "
@@ -125,8 +125,9 @@ def tune(
 
     The suggestion is checked against the film's yield stress and the slack limit.
     """
-    from .. import tuning
+    from .. import ranges, tuning
 
+    check_float("--cents-per-turn", cents_per_turn, ranges.CENTS_PER_TURN)
     drum = drum_from(drum_file, **drum_flags)
     named = any(":" in t for t in target or []) or head is not Head.struck
     if interval or named or other_head is not OtherHead.free:

@@ -73,6 +73,9 @@ def parse_interval(text: str, head: str):
             fail("--interval", text, "the amount must be semitones or cents with a sign, e.g. +3st, -2st, +300c")
         value = float(amount.group(1).replace(" ", ""))
         cents = value * 100.0 if amount.group(2).lower().startswith("s") else value
+        from ..ranges import INTERVAL_CENTS
+
+        INTERVAL_CENTS.check(cents, key="--interval", given=text)
     return ((who, parse_mode(mode_text, key="--interval")), (ref_who, parse_mode(ref_mode, key="--interval")),
             cents)
 

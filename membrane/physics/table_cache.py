@@ -21,12 +21,14 @@ import hashlib
 import os
 import tempfile
 import time
+import zipfile
 from pathlib import Path
 
 import numpy as np
 
 FORMAT = 1  # bump when the stored arrays or their meaning change
 MAX_FILES = 200  # about 200 x 0.1-1 MB at most
+MAX_FILE_BYTES = 64_000_000  # one table is 0.1-1 MB; anything far larger is not ours
 _SUFFIX = ".npz"
 _OFF = {"off", "0", "no", "false"}
 _fingerprint: str | None = None
@@ -94,14 +96,20 @@ def load(name: str, shapes: dict[str, tuple] | None = None) -> dict[str, np.ndar
     name : str
         A :func:`key`.
     shapes : dict, optional
-        Array name -> expected shape (None entries match any length on that axis). A file
-        missing an array, or with another shape, a non-float dtype or non-finite values, is
-        treated as absent (and will be overwritten by the next :func:`store`).
+        Array name -> expected shape (None entries match any length on that axis): every
+        array the file should hold besides its key. A file missing an array, holding any
+        other member, larger than :data:`MAX_FILE_BYTES`, or with another shape, a
+        non-float dtype or non-finite values, is treated as absent (and will be
+        overwritten by the next :func:`store`). Names and sizes are checked from the
+        archive's directory before anything is read, so a file padded with a huge extra
+        member costs nothing.
     """
     folder = cache_dir()
     if folder is None:
         return None
     path = folder / (name + _SUFFIX)
+    if not _members_as_expected(path, shapes or {}):
+        return None
     try:
         with np.load(path, allow_pickle=False) as data:
             arrays = {k: np.array(data[k]) for k in data.files}
@@ -120,6 +128,29 @@ def load(name: str, shapes: dict[str, tuple] | None = None) -> dict[str, np.ndar
     except OSError:
         pass
     return arrays
+
+
+def _members_as_expected(path: Path, shapes: dict[str, tuple]) -> bool:
+    """Whether the .npz at ``path`` holds exactly ``key`` and the named arrays, small and stored.
+
+    Read from the zip directory only (no member is loaded): the file and its members must
+    fit in :data:`MAX_FILE_BYTES`, be stored uncompressed as ``np.savez`` writes them (so a
+    member cannot expand when read), and be named ``key.npy`` plus one ``<name>.npy`` per
+    expected array, nothing else.
+    """
+    try:
+        if path.stat().st_size > MAX_FILE_BYTES:
+            return False
+        with zipfile.ZipFile(path) as archive:
+            members = archive.infolist()
+    except (OSError, zipfile.BadZipFile, ValueError, EOFError):
+        return False
+    names = sorted(m.filename for m in members)
+    if names != sorted(["key.npy"] + [f"{k}.npy" for k in shapes]):
+        return False
+    return (all(m.compress_type == zipfile.ZIP_STORED and m.file_size == m.compress_size
+                for m in members)
+            and sum(m.file_size for m in members) <= MAX_FILE_BYTES)
 
 
 def store(name: str, **arrays: np.ndarray) -> bool:
