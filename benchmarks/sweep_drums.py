@@ -88,8 +88,9 @@ def check(drum, *, m_max=6, n_max=3):
     for md in result:
         if md.decay is None or t60_text(md.decay) == "":
             problems.append(f"blank T60 for {md.label} at {md.frequency:.2f} Hz")
-    if len(result) != (m_max + 1) * n_max * (2 if drum.resonant_head is not None else 1):
-        problems.append(f"{len(result)} modes")
+    heads = [md for md in result if md.kind == "head"]
+    if len(heads) != (m_max + 1) * n_max * (2 if drum.resonant_head is not None else 1):
+        problems.append(f"{len(heads)} head modes")
     return problems
 
 

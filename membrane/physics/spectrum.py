@@ -429,9 +429,10 @@ def _coarse(problem, lo, hi, centre, radius, depth=0):
     ka = (centre + radius) / rs.c * problem.order.heads[0].radius
     try:
         z, _ = problem.circle(centre, radius, points=SCAN_POINTS, margin=KEEP,
-                              aspect=1.0 if ka <= FLAT_KA else FLAT_ASPECT)
+                              aspect=1.0 if ka <= FLAT_KA else FLAT_ASPECT,
+                              blocks=2 + 2 * depth)  # a crowd: more moments as well
     except TooMany:
-        if depth >= 3:
+        if depth >= 4:
             raise
         edges = np.linspace(lo, hi, 4)
         parts = [_coarse(problem, a, b, 0.5 * (a + b), radius / 2.5, depth + 1)
