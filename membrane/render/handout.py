@@ -245,6 +245,7 @@ def strike_picture(ax, modeset, advice, *, fontsize: float = 9.0) -> None:
         ax.text((1 + at) / 2, -0.17, f"{cm:.0f} cm", ha="center", va="top", fontsize=fontsize)
         ax.annotate(f"strike here\nr/a = {at:.2f}", (at, 0.0), xytext=(at - 0.2, 0.42), fontsize=fontsize,
                     ha="center", color="#b2182b", fontweight="bold",
+                    bbox=dict(boxstyle="round,pad=0.15", fc="white", ec="none", alpha=0.9),
                     arrowprops=dict(arrowstyle="->", color="#b2182b", lw=1.0))
         ax.text(0.0, -1.12, "dotted: every point at this radius works as well", ha="center", va="top",
                 fontsize=fontsize - 1, color="0.3")

@@ -53,6 +53,7 @@ def spectrum_figure(frequencies, level_db, partials, *, ident=None, name: str = 
     from matplotlib.figure import Figure
 
     from .labels import place_labels
+    from .shape import wrap_title
 
     freqs = np.asarray(frequencies, dtype=float)
     level = np.asarray(level_db, dtype=float)
@@ -107,12 +108,14 @@ def spectrum_figure(frequencies, level_db, partials, *, ident=None, name: str = 
         bx.plot(f_found[~finite], np.full((~finite).sum(), bx.get_ylim()[0] * 1.2 if finite.any() else 0.5),
                 "s", ms=4, color="k", label="no decay measured")
         bx.legend(loc="upper right", fontsize=8)
-    if ident is not None:
-        for sp in ident.splits:
-            if sp.high.frequency <= top:
-                ax.annotate(f"({sp.m},{sp.n}) split, beat {sp.beat_hz:.2f} Hz",
-                            (sp.high.frequency, float(np.interp(sp.high.frequency, freqs, level))),
-                            xytext=(8, -14), textcoords="offset points", fontsize=8, color=PARTIAL_COLOUR)
+    splits = [sp for sp in (ident.splits if ident is not None else ()) if sp.high.frequency <= top]
+    if splits:  # ringed on the spectrum, named in one line (labels on the peaks would collide)
+        ring = [f for sp in splits for f in (sp.low.frequency, sp.high.frequency)]
+        ax.plot(ring, np.interp(ring, freqs, level), "o", ms=9, mfc="none", mec=PARTIAL_COLOUR, mew=1.0,
+                label="split pairs (uneven tension)", zorder=3)
+        ax.legend(loc="upper right", fontsize=8, framealpha=0.9)
+        words = "; ".join(f"({sp.m},{sp.n}) beat {sp.beat_hz:.2f} Hz" for sp in splits)
+        bx.set_title(wrap_title(f"split pairs: {words}", 10.5, 9), fontsize=9, color=PARTIAL_COLOUR, loc="left")
     bx.set_xlim(0, top)
     bx.set_xlabel("frequency (Hz)")
     bx.set_ylabel("T60 (s)")
