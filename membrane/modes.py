@@ -16,6 +16,8 @@ from .physics.vacuum import RadialBasis
 from .units import cents, note_name
 
 PHYSICS = ("ideal", "stiff", "full")
+# a root with a head fraction in this range is a hybrid of head and body air (our choice)
+HYBRID = (0.2, 0.8)
 
 HEAD_NOTE = ("', struck head' or ', resonant head' after a mode names the head it grows from, the one "
              "that moves most in it; in-phase: both heads move outward from the shell together, "
@@ -68,6 +70,14 @@ class Mode:
         In-vacuum basis of order m of the struck head.
     resonant_coefficients, resonant_basis
         The same for the resonant head of a shell, else None.
+    kind : {"head", "air"}
+        ``"air"``: a root that is mostly the body's own air (docs/mode-identity.md); its
+        n is -1, -2, ... (up the order m) and ``air_mode`` (q, p) names the body's rigid-walled resonance it is
+        nearest: q nodal circles across, p half-waves along the depth.
+    head_fraction : float
+        Share of the root's vibrational energy in the head(s), 0..1 (1 without a body).
+    air_mode : tuple or None
+        (q, p) for an air row.
     """
 
     m: int
@@ -82,6 +92,9 @@ class Mode:
     head: str | None = None
     resonant_coefficients: np.ndarray | None = None
     resonant_basis: RadialBasis | None = None
+    kind: str = "head"
+    head_fraction: float = 1.0
+    air_mode: tuple | None = None
 
     @property
     def label(self) -> str:
@@ -90,8 +103,16 @@ class Mode:
         ``"(0,1) in-phase, resonant head"``: the head named is the one the mode grows
         from (its in-vacuum origin, the head that moves most); see :data:`HEAD_NOTE`.
         """
+        if self.kind == "air":
+            q, p = self.air_mode
+            return f"air ({self.m},{q},{p})" + (", hybrid" if self.hybrid else "")
         words = [w for w in (self.branch, f"{self.head} head" if self.head else None) if w]
         return f"({self.m},{self.n})" + (" " + ", ".join(words) if words else "")
+
+    @property
+    def hybrid(self) -> bool:
+        """Whether the root is a hybrid of head and body air (head fraction 0.2 to 0.8)."""
+        return HYBRID[0] <= self.head_fraction <= HYBRID[1]
 
     def radial_shape(self, r, *, resonant: bool = False) -> np.ndarray:
         """Real radial shape on radii r (m), normalised to a peak of 1 on the struck head.
@@ -226,7 +247,7 @@ class ModeSet:
         Where both heads of a shell have an (m, n) family, the struck head's is preferred
         unless ``head`` (``"struck"`` or ``"resonant"``) names one.
         """
-        found = [mo for mo in self.modes if mo.m == m and mo.n == n and
+        found = [mo for mo in self.modes if mo.m == m and mo.n == n and mo.kind == "head" and
                  (branch is None or mo.branch == branch)]
         if head is not None and self.drum is not None and getattr(self.drum, "resonant_head", None) is not None:
             if any(mo.head for mo in found):
@@ -268,7 +289,7 @@ class ModeSet:
         if fit_modes is None:  # the default family, as far as it was solved
             chosen = [self.find(m, 1) for m in range(1, 6) if self._has(m, 1)]
             if len(chosen) < MIN_FIT_MODES:
-                chosen = [mode for mode in self.modes if mode.head != "resonant"]
+                chosen = [mode for mode in self.modes if mode.head != "resonant" and mode.kind == "head"]
         else:  # modes asked for by name must exist
             named = list(dict.fromkeys(tuple(mn) for mn in fit_modes))
             if len(named) < MIN_FIT_MODES:
@@ -283,7 +304,7 @@ class ModeSet:
                            rms_cents=rms, fitted=tuple((mo.m, mo.n) for mo in chosen))
 
     def _has(self, m: int, n: int) -> bool:
-        return any(mode.m == m and mode.n == n for mode in self.modes)
+        return any(mode.m == m and mode.n == n and mode.kind == "head" for mode in self.modes)
 
     def is_fitted(self, mode: Mode, fit: HarmonicFit | None) -> bool:
         """Whether ``mode`` is one the harmonic fit used (the struck head's member of its (m, n))."""
@@ -327,6 +348,12 @@ class ModeSet:
                 row["branch"] = mode.branch
             if mode.head is not None:
                 row["head"] = mode.head
+            if self.physics == "full":
+                row["kind"] = mode.kind
+                row["head_fraction"] = mode.head_fraction
+                row["hybrid"] = mode.hybrid
+                if mode.kind == "air":
+                    row["air_mode"] = {"q": mode.air_mode[0], "p": mode.air_mode[1]}
             rows.append(row)
         return rows
 

@@ -107,7 +107,7 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3,
         from .physics.coupled import full_modes, model_notes
 
         params = drum.losses if losses == "all" else None
-        modes = full_modes(drum, m_max=m_max, n_max=n_max, losses=params)
+        modes = full_modes(drum, m_max=m_max, n_max=n_max, losses=params, air=True)
         notes.extend(model_notes(drum, params))
         films = {h.film for h in (drum.head, drum.resonant_head) if h is not None}
         if params is not None and params == Losses() and films - {"polyester"}:

@@ -34,6 +34,7 @@ from scipy import optimize
 from .drum import Drum, Head
 from .errors import InputError, SolverError
 from .modes import ModeSet
+from . import tension_search
 from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
 # A suggestion above this fraction of the film's yield stress gets a caution: a
@@ -51,6 +52,8 @@ TOGETHER_CENTS = 1.0
 # The root is polished until the mode is within this many cents of its target.
 TOLERANCE_CENTS = 1e-3
 TENSION_CEILING = 1e5  # N/m: the top of the drum-file range (membrane.drum)
+# the other branch of a crossing is offered only within this factor of the crossing's tension
+BRANCH_RANGE = 1.5  # our choice: beyond it the branch is usually another partial
 TURN_STEP = 1 / 8  # lug changes are rounded to eighths of a turn  # common practice, no source
 
 LUG_RULE = ("rule of thumb: the pitch tapped near a lug is taken as proportional to the square "
@@ -263,41 +266,7 @@ class Tuning:
 
 
 # ------------------------------------------------------------------ single target: a root
-def _root_log_tension(g, *, x0: float, g0: float, lo: float, hi: float) -> float:
-    """Solve g(x) = 0 in x = ln T on [lo, hi], from (x0, g0) and the sqrt(T) guess.
-
-    g is ln(f / f*), increasing in x with slope about 1/2 (less with stiffness or a
-    kettle's air spring, a little more with air mass), smooth and nearly straight, so
-    secant steps converge in a few solves; a bracket is kept once the sign changes
-    and a step leaving it is replaced by bisection. Each evaluation is a model solve,
-    so the count matters more than the arithmetic. Returns NaN when g keeps its sign
-    up to a bound (no tension in range reaches the target).
-    """
-    close = TOLERANCE_CENTS / 1200 * math.log(2)  # |g| below this is on pitch
-    if abs(g0) < close:
-        return x0
-    below, above = (x0, math.inf) if g0 < 0 else (-math.inf, x0)  # the bracket so far
-    xa, ga = x0, g0
-    xb = min(max(x0 - 2.0 * g0, lo), hi)  # sqrt(T) scaling: the first guess only
-    for _ in range(60):
-        gb = g(xb)
-        if abs(gb) < close:
-            return xb
-        if gb < 0:
-            below = max(below, xb)
-        else:
-            above = min(above, xb)
-        slope = (gb - ga) / (xb - xa) if xb != xa else 0.5
-        x = xb - gb / min(max(slope, 0.02), 2.0)  # keep the extrapolation sane
-        if math.isfinite(below) and math.isfinite(above):
-            if not below < x < above:
-                x = 0.5 * (below + above)
-        elif x <= lo or x >= hi:
-            if xb in (lo, hi):
-                return math.nan  # already at the bound, still on the same side
-            x = min(max(x, lo), hi)
-        xa, ga, xb = xb, gb, x
-    raise SolverError(f"the tension search did not settle in 60 solves (last {math.exp(xb):.6g} N/m)")
+# (membrane.tension_search: the one search for a tension, shared by every tension fit)
 
 
 def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None = None,
@@ -328,8 +297,9 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
 
     Notes
     -----
-    One target: a root of ln(f_mn(T) / f*) in ln T by Brent's method, bracketed from
-    the sqrt(T) guess, to within 0.001 cent. Several: least squares in cents over
+    One target: a root of ln(f_mn(T) / f*) in ln T (membrane.tension_search), to within
+    0.001 cent, or a refusal in words (below the slack limit, beyond the film's strength,
+    or across an air resonance of the body, where the labelled mode jumps). Several: least squares in cents over
     ln T (and the free parameter's log) with scipy's trust-region solver.
     """
     targets = [((int(m), int(n)), float(hz)) for (m, n), hz in targets]
@@ -355,10 +325,13 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     if len(targets) == 1 and free is None:
         (m, n), hz = targets[0]
         g = lambda x: float(np.log(model.frequencies(math.exp(x))[0] / hz))  # noqa: E731
-        x = _root_log_tension(g, x0=math.log(t_now), g0=float(np.log(f_now[0] / hz)), lo=lo, hi=hi)
-        if math.isnan(x):
+        out = tension_search.search(g, x0=math.log(t_now), g0=float(np.log(f_now[0] / hz)),
+                                    lo=lo, hi=hi, close=TOLERANCE_CENTS / 1200 * math.log(2))
+        if isinstance(out, tension_search.Beyond):
             _no_root(drum, (m, n), hz, model, lo, hi)
-        tension = math.exp(x)
+        if isinstance(out, tension_search.Jump):
+            _crossing(drum, (m, n), hz, model, out, lo, hi)
+        tension = math.exp(out.x)
     else:
         x0 = [math.log(min(max(naive, math.exp(lo)), math.exp(hi)))]
         bounds = ([lo], [hi])
@@ -430,6 +403,49 @@ def _no_root(drum: Drum, mode, hz: float, model: _Model, lo: float, hi: float):
     raise InputError("target", f"{hz:.4g} Hz",
                      f"unreachable: even at {math.exp(hi):.0f} N/m ({why}) mode ({m},{n}) reaches only "
                      f"{f_hi:.4g} Hz; choose a lower target")
+
+
+def _crossing(drum: Drum, mode, hz: float, model: _Model, jump, lo: float, hi: float):
+    """Raise the refusal for a target inside a jump of the labelled mode's frequency.
+
+    Only full physics has such jumps: where the head mode crosses an air resonance of the
+    body, the label (m,n) passes from the lower root to the upper one (docs/mode-identity.md).
+    If the continuous branch on either side does reach the target, that tension is given
+    too, with a caution: there the root is partly (or mostly) the body's air.
+    """
+    from . import branches
+
+    m, n = mode
+    t1, t2 = math.exp(jump.x_lo), math.exp(jump.x_hi)
+    f1, f2 = hz * math.exp(jump.g_lo), hz * math.exp(jump.g_hi)
+    words = (f"({m},{n}) cannot sit at {hz:.4g} Hz on this drum: between {t1:,.6g} and {t2:,.6g} N/m "
+             f"it crosses an air resonance of the body")
+    other = ""
+    if model.physics == "full":
+        air, f_lo, f_hi, od_lo, od_hi, r_lo, partner = branches.crossing_note(
+            drum, m=m, n=n, n_max=model.n_max, t_lo=t1, t_hi=t2)
+        words += f" near {air:.4g} Hz"
+        # the continuous branches: the lower one carries on up in tension past the jump,
+        # the upper one down; either may reach the target, as a partly-air partial
+        tries = [(t1, r_lo, +1), (t1, partner, -1)]
+        for start, root, direction in tries:
+            # near the crossing only (further on, the branch meets other crossings and
+            # becomes other partials)
+            got = branches.branch_tension(drum, m=m, n_max=model.n_max, start_tension=start,
+                                          start_root=root, target_hz=hz, direction=direction,
+                                          t_min=max(math.exp(lo), t1 / BRANCH_RANGE),
+                                          t_max=min(math.exp(hi), t2 * BRANCH_RANGE))
+            if got is not None and (got[2] is None or got[2][0] == "air"):
+                t, frac, _ = got
+                other = (f"; the other branch does reach {hz:.4g} Hz, at {t:,.6g} N/m, but "
+                         f"there only {100 * frac:.0f} % of its energy is in the head, the rest in "
+                         f"the body's air (caution: a partly air-like partial, not the principal "
+                         f"({m},{n}); check it by ear)")
+                break
+    words += (f"; below it the head-like ({m},{n}) reaches {f1:.4g} Hz, above it it continues on "
+              f"the upper branch from {f2:.4g} Hz{other}; choose a target outside "
+              f"{f1:.4g}-{f2:.4g} Hz")
+    raise InputError("target", f"{hz:.4g} Hz", words)
 
 
 # ------------------------------------------------------------------ lugs

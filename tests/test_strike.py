@@ -5,6 +5,8 @@ import json
 import math
 import subprocess
 
+from dataclasses import replace
+
 import numpy as np
 import pytest
 import scipy.integrate
@@ -222,7 +224,10 @@ def test_best_strike_radius_of_the_kettledrum_for_the_m1_modes(full):
     # The trade strikes about a quarter of the way in from the rim, r/a ~ 0.75  # common
     # practice, no source. The model disagrees by 0.1 of the radius: it does not reproduce the
     # rule of thumb, and this test does not widen its band to pretend it does.
-    advice = best_strike_radius(full, modes=[(1, 1), (2, 1), (3, 1), (4, 1)])
+    # The claim is about the head's own modes: the bowl's air rows (kind "air", mostly the
+    # air in the bowl, docs/mode-identity.md) are left out of this check.
+    heads = replace(full, modes=tuple(mo for mo in full if mo.kind == "head"))
+    advice = best_strike_radius(heads, modes=[(1, 1), (2, 1), (3, 1), (4, 1)])
     circles = [scipy.special.jn_zeros(m, n)[n - 2] / scipy.special.jn_zeros(m, n)[n - 1]
                for m, n in ((1, 2), (2, 2), (1, 3), (2, 3))]
     assert min(circles) < advice.at < max(circles), (advice, circles)
@@ -233,7 +238,7 @@ def test_best_strike_radius_of_the_kettledrum_for_the_m1_modes(full):
     def power(partials):
         return sum(abs(p.pressure) ** 2 for p in partials if (p.mode.m, p.mode.n) in four)
 
-    most = max(power(strike_partials(full, strike=Strike(at=at))) for at in np.linspace(0.05, 0.95, 19))
+    most = max(power(strike_partials(heads, strike=Strike(at=at))) for at in np.linspace(0.05, 0.95, 19))
     assert power(advice.partials) < 0.1 * most
 
 

@@ -34,6 +34,7 @@ are cached per process), which is what makes the full table fast.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, replace
 from functools import lru_cache
 
@@ -448,6 +449,8 @@ class RootSet:
         self.rho, self.c = air
         self.orders = orders
         self.which = np.asarray(which)
+        self.settings = settings
+        self.k_max = list(k_max)
         self.data = [self._order_data(o, km, settings) for o, km in zip(orders, k_max)]
         sizes = {d["K"].shape[0] for d in self.data}
         if len(sizes) != 1:
@@ -522,6 +525,62 @@ class RootSet:
                 Kg = Kg + self.losses.matrix(i, w, outer=outer, body=body)
             Keff[sel], Meff[sel] = Kg, Mg
         return Keff, Meff
+
+    def order_operator(self, i, omega, *, outer: float = 1.0, body: float = 1.0,
+                       head: bool = True, skip_ducts: int = 0, only_ducts: int | None = None,
+                       duct_weights=None):
+        r"""Z(omega) of order i, N/m: (len omega, size, size) complex.
+
+        ``outer`` and ``body`` scale the outside and inside air (0 switches them off);
+        ``head`` False leaves out K - omega^2 M (with outer 0: the body's S alone);
+        ``skip_ducts`` leaves out the lowest duct modes (the contour solve gives them
+        unknowns of their own, spectrum.py); ``only_ducts`` keeps only the lowest ones;
+        ``duct_weights`` scales each duct mode's term.
+        """
+        d, order = self.data[i], self.orders[i]
+        w = np.atleast_1d(np.asarray(omega, dtype=complex))
+        n, P = self.size, len(w)
+        if head:
+            Z = np.broadcast_to(d["K"], (P, n, n)) - (w**2)[:, None, None] * d["M"][None]
+        else:
+            Z = np.zeros((P, n, n), complex)
+        Z = Z.astype(complex)
+        k = w / self.c
+        if outer:
+            for h, (XY, Pd, tmax, scale, a) in enumerate(d["faces"]):
+                lo, hi = d["offsets"][h], d["offsets"][h + 1]
+                ka = k * a
+                T = np.polynomial.chebyshev.chebvander(2.0 * ka * ka / tmax - 1.0, Pd - 1)
+                TT = (outer * self.rho * scale) * np.hstack([T, -1j * ka[:, None] * T])
+                Z[:, lo:hi, lo:hi] -= (w**2)[:, None, None] * \
+                    _cmul(TT, XY).reshape(P, hi - lo, hi - lo)
+        if body and order.depth is not None:
+            fcot, fcsc = self._duct_terms(d, order.depth, w)
+            fcot[:, :skip_ducts] = 0.0
+            fcsc[:, :skip_ducts] = 0.0
+            if only_ducts is not None:
+                fcot[:, only_ducts:] = 0.0
+                fcsc[:, only_ducts:] = 0.0
+            if duct_weights is not None:  # (P, Q) or (Q,): each duct mode's term scaled
+                fcot = fcot * duct_weights
+                fcsc = fcsc * duct_weights
+            V, off = d["V"], d["offsets"]
+            for a_ in range(len(V)):
+                for b_ in range(len(V)):
+                    f = body * self._duct_weights(order, fcot, fcsc, a_, b_)
+                    Z[:, off[a_]:off[a_ + 1], off[b_]:off[b_ + 1]] += \
+                        (V[a_][None, :, :] * f[:, None, :]) @ V[b_].T
+        if head and self.losses is not None:
+            Z = Z + self.losses.matrix(i, w, outer=outer, body=body)
+        return Z
+
+    def ensure_range(self, i, k_top: float) -> None:
+        """Rebuild order i's radiation tables if they do not reach wavenumber k_top (1/m)."""
+        d = self.data[i]
+        if all((k_top * a) ** 2 <= tmax for (_, _, tmax, _, a) in d["faces"]):
+            return
+        self.k_max[i] = 1.3 * k_top
+        self.data[i] = self._order_data(self.orders[i], self.k_max[i], self.settings)
 
     def rayleigh(self, idx, x, *, outer, body):
         r"""The scalar :math:`r(\omega) = x^T Z(\omega) x` for vectors x (len idx, size).
@@ -839,32 +898,192 @@ def _orders(drum, *, m_max: int, n_max: int, settings: Settings):
     return orders, which, omega0, x0, tags
 
 
-def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT, losses=None):
-    """Complex roots of a drum: (orders, which, omega, vectors, tags); see :func:`full_modes`."""
-    orders, which, omega0, x0, tags = _orders(drum, m_max=m_max, n_max=n_max, settings=settings)
+@dataclass
+class OrderRoots:
+    """The roots of one order, weighed and labelled.
+
+    Attributes
+    ----------
+    order : Order
+    omega : numpy.ndarray
+        Complex angular frequencies, rad/s, ascending in real part.
+    vectors : numpy.ndarray
+        Ritz vectors (R, size), unit M-norm.
+    head_fraction : numpy.ndarray
+        Share of each root's energy in the head(s) (spectrum.head_fractions).
+    labels : list
+        Per root: ("head", head index, n) for the root that is most the in-vacuum mode n of
+        that head, ("air", q, p) for a root that is mostly the body's air (duct mode q
+        radially, p half-waves along the depth), or None for a root left out (a head mode
+        above n_max).
+    """
+
+    order: Order
+    omega: np.ndarray
+    vectors: np.ndarray
+    head_fraction: np.ndarray
+    labels: list
+
+
+def _mode_energy(order, vectors) -> np.ndarray:
+    """Energy share of each root in each in-vacuum mode of each head: (R, heads, modes)."""
+    parts = []
+    for h, head in enumerate(order.heads):
+        lo = sum(x.size for x in order.heads[:h])
+        coef = np.array([head.unit.to_basis(v[lo: lo + head.size]) for v in vectors])
+        mass = head.head.areal_density * head.radius**2 * head.unit.basis.modal_mass
+        parts.append(np.abs(coef) ** 2 * mass[None, :])
+    e = np.stack(parts, axis=1)
+    total = e.sum(axis=(1, 2))
+    return e / np.where(total > 0, total, 1.0)[:, None, None]
+
+
+def _mode_amplitudes(order, vectors, n_max: int):
+    """Mass-weighted amplitudes of in-vacuum modes 1..n_max on the two heads, each (R, n_max)."""
+    out = []
+    for h, head in enumerate(order.heads):
+        lo = sum(x.size for x in order.heads[:h])
+        coef = np.array([head.unit.to_basis(v[lo: lo + head.size])[:n_max] for v in vectors])
+        mass = head.head.areal_density * head.radius**2 * head.unit.basis.modal_mass[:n_max]
+        out.append(coef * np.sqrt(mass)[None, :])
+    return out[0], out[1]
+
+
+def _covered(order, omega, vectors, frac, top: float, n_max: int) -> bool:
+    """Whether the roots found below angular frequency ``top`` hold each head's first n_max
+    in-vacuum modes (their energy shares, weighted by head fraction, add up to 0.6 or more
+    over the roots) with room above the highest (a factor 1.25)."""
+    e = _mode_energy(order, vectors)[:, :, :n_max] * frac[:, None, None]
+    if np.all(e.sum(axis=0) >= 0.6):
+        best = np.argmax(e, axis=0)  # the root holding most of each mode
+        if top >= 1.25 * np.max(omega[best].real):
+            return True
+    # a body that reshapes the modes (a very stiff air spring) spreads each in-vacuum mode
+    # over many roots: then enough head-like roots, with room above, is the test
+    need = n_max * len(order.heads)
+    head_like = np.sort(omega[frac >= 0.5].real)
+    return bool(np.sum(frac) >= need + 0.5 and len(head_like) >= need
+                and top >= 1.25 * head_like[need - 1])
+
+
+def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) -> list:
+    """Labels for one order's roots (see :class:`OrderRoots`).
+
+    Head mode (h, n) goes to the root holding most of its energy, weighted by the root's head
+    fraction, by an optimal assignment over all the order's roots: through an avoided
+    crossing with an air resonance the label passes from one root to the other where the two
+    are equally that mode (docs/mode-identity.md). The other roots below the order's highest
+    head mode that are mostly air (head fraction < 0.5) are air rows, named by the nearest
+    rigid-walled resonance of the body.
+    """
+    from scipy.optimize import linear_sum_assignment
+
+    R = len(omega)
+    labels = [None] * R
+    if not R:
+        return labels
+    e = _mode_energy(order, vectors)[:, :, :n_max] * frac[:, None, None]
+    heads = len(order.heads)
+    top = -np.inf
+    if heads == 1:
+        rows, cols = linear_sum_assignment(-e[:, 0, :])
+        # the chosen roots take n in order of frequency (a body that reshapes the modes
+        # spreads each in-vacuum mode over several roots; the order is what stays)
+        for n, (_, r) in enumerate(sorted((omega[r].real, r) for r in rows)):
+            labels[r] = ("head", 0, n + 1)
+            top = max(top, omega[r].real)
+    else:
+        # two heads of one shell: (m,n) is a pair of roots, the two holding most of the
+        # heads' mode n together (so nearly equal heads, whose roots share both heads,
+        # approach the identical pair continuously); each root is named after the head
+        # that holds more of it
+        pair = e.sum(axis=1)
+        # one in-phase and one opposed member per pair, as the symmetric solve of identical
+        # heads has: s = 2 Re(a b*) / (|a|^2 + |b|^2) over the mode's two coefficients
+        # (mass-weighted) is +1 in phase, -1 opposed, 0 where one head holds the root
+        a, b = _mode_amplitudes(order, vectors, n_max)
+        s = 2.0 * np.real(a * np.conj(b)) / np.maximum(np.abs(a) ** 2 + np.abs(b) ** 2, 1e-300)
+        score = np.empty((R, 2 * n_max))
+        score[:, 0::2] = pair * 0.5 * (1.0 + s)
+        score[:, 1::2] = pair * 0.5 * (1.0 - s)
+        rows, cols = linear_sum_assignment(-score)
+        members = {}
+        for r, c in zip(rows, cols):
+            members.setdefault(int(c // 2), []).append(r)
+            top = max(top, omega[r].real)
+        for n, rs_ in members.items():
+            share = [e[r, 0, n] / max(pair[r, n], 1e-300) for r in rs_]
+            for k, r in enumerate(sorted(rs_, key=lambda r: -share[rs_.index(r)])):
+                labels[r] = ("head", min(k, 1), n + 1)
+    if order.depth is not None:
+        air = [r for r in range(R) if labels[r] is None and frac[r] < 0.5 and omega[r].real <= top]
+        if air:
+            gamma = order_duct_gammas(order, count=len(air) + 4)
+            cands = [(q, p, sound_speed * np.hypot(g, p * np.pi / order.depth))
+                     for q, g in enumerate(gamma) for p in range(len(air) + 4)]
+            cost = np.array([[abs(np.log(omega[r].real / max(c[2], 1e-30))) for c in cands]
+                             for r in air])
+            ra, ca = linear_sum_assignment(cost)
+            for i, j in zip(ra, ca):
+                labels[air[i]] = ("air", cands[j][0], cands[j][1])
+    return labels
+
+
+def order_duct_gammas(order, *, count: int) -> np.ndarray:
+    """Transverse wavenumbers of the body's duct modes of this order, 1/m."""
+    return duct_wavenumbers(m=order.m, count=count, radius=order.heads[0].radius)
+
+
+def _families(drum, *, m_max: int, n_max: int, settings: Settings):
+    """The drum's eigenproblems (one per order, two per order for identical shell heads)."""
+    orders, _, _, _, tags = _orders(drum, m_max=m_max, n_max=n_max, settings=settings)
+    return orders
+
+
+def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
+               losses=None, only=None) -> list:
+    """Every root of every order of a drum, weighed and labelled: a list of OrderRoots.
+
+    Roots come from the contour solve of spectrum.py in a window that grows until each
+    order's n_max head modes (per head) are inside; nothing is continued from a guess.
+    ``only`` (an m) solves that order alone.
+    """
+    from . import spectrum
+
+    orders = _families(drum, m_max=m_max, n_max=n_max, settings=settings)
+    if only is not None:
+        orders = [o for o in orders if o.m == only]
     air = (drum.air.density, drum.air.sound_speed)
-    which = np.asarray(which)
-    k_max = [1.3 * max(h.omega[n_max - 1] for h in o.heads) / air[1] for o in orders]
-    for _ in range(3):
-        rs = RootSet(orders, which, air=air, settings=settings, k_max=k_max, losses=losses)
-        omega, vecs = track_roots(rs, omega0, x0, settings=settings)
-        # the radiation tables are series on a range of k: a root beyond it (a very stiff
-        # body can push (0,n) far up) is re-solved with tables that cover it
-        k_root = np.abs(omega) / air[1]
-        short = False
-        for i, d in enumerate(rs.data):
-            ka2 = max(f[2] for f in d["faces"])  # (k a)^2 range of the order's tables
-            need = max(k_root[which == i]) * orders[i].heads[0].radius
-            if need**2 > ka2:
-                k_max[i] = 1.3 * max(k_root[which == i])
-                short = True
-        if not short:
-            return orders, which, omega, vecs, tags
-    raise SolverError("coupled solve: roots keep leaving the radiation tables' range")
+    k_max = [1.6 * max(h.omega[n_max] for h in o.heads) / air[1] for o in orders]
+    rs = RootSet(orders, np.arange(len(orders)), air=air, settings=settings, k_max=k_max,
+                 losses=losses)
+    out = []
+    for i, order in enumerate(orders):
+        lowest = min(h.omega[0] for h in order.heads)
+        top = max(h.omega[n_max - 1] for h in order.heads)
+        omega, vecs, frac = spectrum.scan_order(
+            rs, i, covered=lambda w, v, f, hi, o=order: _covered(o, w, v, f, hi, n_max),
+            lowest=lowest, tol=settings.tol, rounds=settings.max_iter, ceiling=60.0 * top)
+        labels = label_roots(order, omega, vecs, frac, n_max=n_max, sound_speed=air[1])
+        out.append(OrderRoots(order, omega, vecs, frac, labels))
+    return out
+
+
+def decay_time(omega: complex) -> float:
+    """T60 in s from a complex angular frequency: 3 ln 10 / Im omega.
+
+    A decay rate within round-off of zero (|Im omega| below spectrum.ROUND_OFF of |omega|,
+    either sign) is no loss at all: T60 is infinite (tables show it as beyond their limit).
+    """
+    from .spectrum import ROUND_OFF
+
+    if omega.imag <= ROUND_OFF * abs(omega):
+        return math.inf
+    return LN1000 / omega.imag
 
 
 def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
-               losses=None) -> list:
+               losses=None, air: bool = False) -> list:
     """Modes of a drum with air on its faces and in its body (``--physics full``).
 
     Parameters
@@ -882,45 +1101,58 @@ def full_modes(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
     Returns
     -------
     list of membrane.modes.Mode
-        (m, n) labels follow the in-vacuum mode each root was continued from; for a shell
-        each (m, n) appears once per branch, ``"in-phase"`` or ``"opposed"``. Decay is T60
-        from Im omega: radiation damping, plus ``losses`` when given.
+        (m, n) is the root that is most the in-vacuum mode (m, n) (see :func:`label_roots`);
+        for a shell each (m, n) appears once per branch, ``"in-phase"`` or ``"opposed"``.
+        Decay is T60 from radiation damping only. With ``air``, the roots that are mostly
+        the body's air are rows of their own (kind "air", n = -1, -2, ... in order of
+        frequency within their m, a key no head mode has).
     """
     from ..modes import Mode
 
-    orders, which, omega, vecs, tags = solve_drum(drum, m_max=m_max, n_max=n_max,
-                                                  settings=settings, losses=losses)
+    solved = solve_drum(drum, m_max=m_max, n_max=n_max, settings=settings, losses=losses)
     bases = {}
     out = []
     pair = {}
-    for r, (m, n, tag) in enumerate(tags):
-        order = orders[which[r]]
+    for od in solved:
+        order = od.order
+        m = order.m
         h1 = order.heads[0]
         if m not in bases:
             bases[m] = h1.basis()
-        x = vecs[r]
-        coef = h1.unit.to_basis(x[: h1.size])
-        res_coef = res_basis = None
-        branch = head = None
-        if drum.body.kind == "shell":
-            if order.cross_sign is not None:
-                branch = tag
-                res_coef = coef * order.cross_sign
+        for r, lab in enumerate(od.labels):
+            if lab is None or (lab[0] == "air" and not air):
+                continue
+            kind, air_mode = "head", None
+            if lab[0] == "air":  # n = -1, -2, ... up the order: a key of its own, never a head's
+                n_air = sum(1 for lb in od.labels[:r + 1] if lb is not None and lb[0] == "air")
+                kind, air_mode, hidx, n = "air", (lab[1], lab[2]), 0, -n_air
             else:
-                h2 = order.heads[1]
-                res_coef = h2.unit.to_basis(x[h1.size:])
-                head = tag
-                pair.setdefault((m, n), []).append(len(out))
-            res_basis = bases[m] if order.cross_sign is not None else h2.basis()
-        scale = np.max(np.abs(coef)) if res_coef is None else max(np.max(np.abs(coef)),
-                                                                  np.max(np.abs(res_coef)))
-        w = complex(omega[r])
-        out.append(Mode(m=m, n=n, frequency=w.real / (2 * np.pi),
-                        decay=LN1000 / w.imag if w.imag > 0 else None,
-                        multiplicity=1 if m == 0 else 2, omega=w,
-                        coefficients=coef / scale, basis=bases[m], branch=branch, head=head,
-                        resonant_coefficients=None if res_coef is None else res_coef / scale,
-                        resonant_basis=res_basis))
+                _, hidx, n = lab
+            x = od.vectors[r]
+            coef = h1.unit.to_basis(x[: h1.size])
+            res_coef = res_basis = None
+            branch = head = None
+            if drum.body.kind == "shell":
+                if order.cross_sign is not None:
+                    branch = "in-phase" if order.cross_sign > 0 else "opposed"
+                    res_coef = coef * order.cross_sign
+                    res_basis = bases[m]
+                else:
+                    h2 = order.heads[1]
+                    res_coef = h2.unit.to_basis(x[h1.size:])
+                    if kind == "head":
+                        head = "struck" if hidx == 0 else "resonant"
+                        pair.setdefault((m, n), []).append(len(out))
+                    res_basis = h2.basis()
+            scale = np.max(np.abs(coef)) if res_coef is None else max(np.max(np.abs(coef)),
+                                                                      np.max(np.abs(res_coef)))
+            w = complex(od.omega[r])
+            out.append(Mode(m=m, n=n, frequency=w.real / (2 * np.pi), decay=decay_time(w),
+                            multiplicity=1 if m == 0 else 2, omega=w,
+                            coefficients=coef / scale, basis=bases[m], branch=branch, head=head,
+                            resonant_coefficients=None if res_coef is None else res_coef / scale,
+                            resonant_basis=res_basis, kind=kind,
+                            head_fraction=float(od.head_fraction[r]), air_mode=air_mode))
     for (m, n), (i, j) in pair.items():  # unequal heads: label the pair's branches
         s = [_phase_score(out[k], n) for k in (i, j)]
         hi, lo = (i, j) if s[0] >= s[1] else (j, i)

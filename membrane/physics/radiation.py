@@ -234,7 +234,12 @@ class RadiationTable:
         while True:
             x, y = self._fit(space, degree, quadrature)
             scale = max(np.abs(x).max(), 1e-300), max(np.abs(y).max(), 1e-300)
-            tail = max(np.abs(x[-3:]).max() / scale[0], np.abs(y[-3:]).max() / scale[1])
+            # Y (the damping) of a high order is many decades below X near the real axis
+            # and reaches the quadrature's noise floor first: its tail counts against
+            # its own size or against what it adds to A = X - i k Y, whichever is larger
+            ty = np.abs(y[-3:]).max()
+            tail = max(np.abs(x[-3:]).max() / scale[0],
+                       min(ty / scale[1], ty * self.k_max / scale[0]))
             if tail < tol:
                 break
             if degree > 400:

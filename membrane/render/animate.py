@@ -213,10 +213,10 @@ def write_mp4(path, frames, *, fps: float) -> None:
         writer.close()
 
 
-# Bytes per pixel, measured as the peak of a process rendering 48 480x480 frames and of
-# a single 2048x2048 one (tracemalloc and /proc/self/status, rounded up): the GIF holds
-# every frame as RGB array, Pillow image and paletted copy (about 7 B/px per frame); the
-# off-screen renderer needs about 40 B/px once. Common practice, no source.
+# Bytes per pixel, estimated from what is held (not measured): the GIF keeps every frame
+# as an RGB array, a Pillow image and a paletted copy (3 + 3 + 1 B/px per frame, rounded
+# up to 8); the off-screen renderer's colour, depth and image buffers for one frame are
+# taken as 48 B/px, a generous guess (from memory). Common practice, no source.
 GIF_BYTES_PER_PIXEL_FRAME = 8
 RENDER_BYTES_PER_PIXEL = 48
 MEMORY_CEILING = 8e9  # never plan on more than 8 GB, whatever the machine says

@@ -1,0 +1,118 @@
+"""Full physics over many generated drums: every solve must succeed and every T60 be shown.
+
+Run: python benchmarks/sweep_drums.py [COUNT] [SEED]     (default 300 drums, seed 1)
+
+Drums are drawn at random from what people build (invented, not real instruments):
+6-32 inch heads of polyester, 0.1-0.4 mm in 1 or 2 plies, or a custom areal density with
+no stiffness; tension from 1.5 x the slack limit to 80 % of the film's yield (or
+200-8000 N/m without a yield); no body, a kettle of 0.03-0.35 m^3, or a shell 5-60 cm
+deep whose resonant head is equal, nearly equal (relative 1e-12..1e-4) or unequal; air at
+-10..40 degC. Each is solved with the default table (m 0..6, n 1..3). Prints failures (with
+the drum), blank T60s, and the time per drum against a reference solve of the builtin
+kettledrum in the same run. tests/test_sweep.py runs a small sample of the same drums.
+"""
+
+from __future__ import annotations
+
+import os
+
+for _var in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS"):
+    os.environ.setdefault(_var, "1")  # one core, as the target is stated
+
+import math  # noqa: E402
+import sys  # noqa: E402
+import time  # noqa: E402
+
+import numpy as np  # noqa: E402
+
+INCH = 0.0254
+
+
+def drum_table(rng) -> dict:
+    """One random drum as a drum-file table (SI numbers, strings with units where needed)."""
+    diameter = rng.uniform(6, 32) * INCH
+    head = {"diameter": f"{diameter} m"}
+    if rng.random() < 0.8:
+        head.update(film="polyester", thickness=f"{rng.uniform(0.1, 0.4)} mm",
+                    plies=int(rng.integers(1, 3)))
+        h = float(head["thickness"].split()[0]) * 1e-3
+        plies = head["plies"]
+        d = plies * 4.5e9 * h**3 / (12 * (1 - 0.38**2))  # the film table's E and nu
+        slack = d * (3.8317 / (diameter / 2)) ** 2  # D (j11/a)^2, A&S Table 9.5
+        top = 0.8 * 100e6 * plies * h  # 80 % of the yield stress (films.toml)
+        lo = max(1.5 * slack, 1.0)
+    else:
+        head["areal_density"] = f"{rng.uniform(0.05, 0.6)} kg/m^2"
+        lo, top = 200.0, 8000.0
+    tension = math.exp(rng.uniform(math.log(lo), math.log(max(top, 1.01 * lo))))
+    head["tension"] = f"{tension} N/m"
+    table = {"name": "generated drum (invented)", "head": head,
+             "air": {"temperature": f"{rng.uniform(-10, 40)} degC"}}
+    kind = rng.choice(["none", "kettle", "shell"])
+    if kind == "kettle":
+        table["body"] = {"kind": "kettle", "volume": f"{rng.uniform(0.03, 0.35)} m^3"}
+    elif kind == "shell":
+        table["body"] = {"kind": "shell", "depth": f"{rng.uniform(0.05, 0.6)} m"}
+        res = dict(head)
+        how = rng.choice(["equal", "near", "unequal"])
+        if how == "near":
+            res["tension"] = f"{tension * (1 + 10 ** rng.uniform(-12, -4))} N/m"
+        elif how == "unequal":
+            res["tension"] = f"{tension * rng.uniform(0.5, 1.5)} N/m"
+        table["resonant_head"] = res
+    return table
+
+
+def drums(count: int, seed: int = 1):
+    """``count`` generated drums (membrane.drum.Drum) and their tables."""
+    from membrane.drum import parse_drum
+
+    rng = np.random.default_rng(seed)
+    out = []
+    for _ in range(count):
+        t = drum_table(rng)
+        out.append((parse_drum(t), t))
+    return out
+
+
+def check(drum, *, m_max=6, n_max=3):
+    """Solve one drum; return a list of problems (empty when all is well)."""
+    from membrane import solve
+    from membrane.modes import t60_text
+
+    try:
+        result = solve(drum, "full", m_max=m_max, n_max=n_max)
+    except Exception as exc:  # noqa: BLE001 - the sweep reports every failure
+        return [f"{type(exc).__name__}: {exc}"]
+    problems = []
+    for md in result:
+        if md.decay is None or t60_text(md.decay) == "":
+            problems.append(f"blank T60 for {md.label} at {md.frequency:.2f} Hz")
+    heads = [md for md in result if md.kind == "head"]
+    if len(heads) != (m_max + 1) * n_max * (2 if drum.resonant_head is not None else 1):
+        problems.append(f"{len(heads)} head modes")
+    return problems
+
+
+def main() -> None:
+    count = int(sys.argv[1]) if len(sys.argv) > 1 else 300
+    seed = int(sys.argv[2]) if len(sys.argv) > 2 else 1
+    from membrane import load_drum, solve
+
+    t0 = time.perf_counter()
+    solve(load_drum("kettledrum").with_tension(3517.0), "full")
+    reference = time.perf_counter() - t0
+    failures = 0
+    start = time.perf_counter()
+    for i, (drum, table) in enumerate(drums(count, seed)):
+        problems = check(drum)
+        if problems:
+            failures += 1
+            print(f"drum {i}: {table}\n   " + "\n   ".join(problems), flush=True)
+    total = time.perf_counter() - start
+    print(f"{count} drums, {failures} with a problem; {total / count:.2f} s per drum "
+          f"({total / count / reference:.2f} x one kettledrum solve of {reference:.2f} s)")
+
+
+if __name__ == "__main__":
+    main()

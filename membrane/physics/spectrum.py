@@ -1,0 +1,453 @@
+r"""Every root of one order of the coupled operator in a frequency window: scan, refine, weigh.
+
+The operator :math:`Z(\omega) = K + S(\omega) - \omega^2 (M + A(\omega))` (coupled.py) has
+poles where the body's air, with the heads held still, resonates: the duct terms
+:math:`\cot(\beta L)/\beta` and :math:`\csc(\beta L)/\beta`. For the contour method
+(contour.py) the operator must be analytic, so the duct modes that can propagate in the
+window are taken out of S and given unknowns of their own, the pressure amplitudes
+:math:`p_q`; multiplying their rows by :math:`\beta\sin\beta L` leaves only entire functions
+(:math:`\cos\beta L`, :math:`\beta\sin\beta L`, even in β):
+
+.. math::
+
+    \begin{bmatrix} Z_{ev}(\omega) & V \\ \rho\pi_m\omega^2 G(\omega) V^T & -N\beta\sin\beta L
+    \end{bmatrix} \begin{bmatrix} q \\ p \end{bmatrix} = 0,
+
+with :math:`Z_{ev}` the operator with the evanescent duct modes only (analytic below their
+cut-on), G = cos βL on a head's own face and 1 across a shell (cos βL ± 1 for a symmetric
+pair), N the duct modes' norms. Its Schur complement is Z again, so the roots are the same;
+roots that are mostly the body's air (the kettle's or shell's own resonances, loaded by the
+head) are roots like any other here, not poles to avoid.
+
+Roots are found in overlapping circles along the real axis (radius half the centre, centres
+1.5 apart), then each group of nearby roots is refined on small circles until it moves less
+than the tolerance. Nothing is continued from a starting guess, so nothing can be lost on the
+way or captured by a neighbour.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from ..errors import SolverError
+from .contour import TooMany, eigen_in_circle
+
+STEP = 1.5  # ratio of successive scan circles' centres
+RADIUS = 0.5  # scan circle radius / centre
+KEEP = 0.92  # roots kept only this far inside a circle (relative to its radius)
+OVERLAP = 1.15  # and only within this factor of its share of the axis (neighbours overlap)
+SCAN_POINTS = 48
+FLAT_KA, FLAT_ASPECT = 3.0, 0.5  # above k a = 3 the scan curves are ellipses half as high
+REFINE_POINTS = 24
+# the operator is evaluated to about 1e-13; near a root T^-1 amplifies that by its condition,
+# so the refining moments are noise below this fraction of their largest singular value
+REFINE_RANK = 1e-8
+SCAN_RANK = 1e-11
+# a cluster's subspace values are trusted to this relative change between rounds (the
+# contour's noise floor is about 1e-9), then isolated roots are polished by Newton's method
+SETTLE = 1e-7
+NOISE_FLOOR = 1e-5
+# a decay rate below this fraction of the frequency is round-off: the mode has no loss
+ROUND_OFF = 1e-10
+# a root growing faster than this (relative) is an artefact of the continued operator far from
+# the real axis, not a mode; between it and 0 it is a lossless root seen through round-off
+GROWTH = 1e-6
+
+
+def _balance(T0):
+    """Row and column scales that equilibrate T0 (two sweeps of max-norm scaling)."""
+    n = T0.shape[0]
+    r, c = np.ones(n), np.ones(n)
+    A = np.abs(T0)
+    for _ in range(3):
+        r = 1.0 / np.maximum((A * c[None, :]).max(axis=1), 1e-300)
+        c = 1.0 / np.maximum((A * r[:, None]).max(axis=0), 1e-300)
+    return r, c
+
+
+class OrderProblem:
+    """One order's roots as an analytic eigenproblem (the augmented operator above).
+
+    Parameters
+    ----------
+    rs : membrane.physics.coupled.RootSet
+        The drum's operators.
+    i : int
+        Order index in ``rs``.
+    """
+
+    def __init__(self, rs, i: int):
+        self.rs, self.i = rs, i
+        self.order = rs.orders[i]
+        self.size = rs.size
+
+    def propagating(self, k_top: float) -> int:
+        """Duct modes cut on below 1.25 k_top (they get unknowns of their own)."""
+        if self.order.depth is None:
+            return 0
+        gamma = self.rs.data[self.i]["gamma"]
+        return int(np.sum(gamma < 1.25 * k_top))
+
+    def shifts(self, centre: complex, radius: float, q0: int) -> np.ndarray:
+        """Per duct mode, the largest |Im beta L| on a circle: the rows' constant scale."""
+        if q0 == 0:
+            return np.zeros(0)
+        z = centre + radius * np.exp(2j * np.pi * np.arange(64) / 64)
+        k = z / self.rs.c
+        beta = np.sqrt(k[:, None] ** 2 - self.rs.data[self.i]["gamma"][None, :q0] ** 2)
+        return np.max(np.abs(beta.imag), axis=0) * self.order.depth
+
+    def evaluate(self, omega, q0: int, w_ref: float, shift=None):
+        """T(omega) of the augmented operator, (P, n + q0 * heads, same), complex.
+
+        Each duct row is multiplied by the constant exp(-shift_q), so that cos and sin of a
+        complex beta L never overflow (a constant row scale changes no root).
+        """
+        rs, d, order = self.rs, self.rs.data[self.i], self.order
+        omega = np.asarray(omega, dtype=complex)
+        Z = rs.order_operator(self.i, omega, skip_ducts=q0)
+        if q0 == 0:
+            return Z
+        n, P = self.size, len(omega)
+        V, off = d["V"], d["offsets"]
+        heads = len(V)
+        N = n + q0 * heads
+        T = np.zeros((P, N, N), complex)
+        T[:, :n, :n] = Z
+        k = omega / rs.c
+        beta = np.sqrt(k[:, None] ** 2 - d["gamma"][None, :q0] ** 2)
+        L = order.depth
+        shift = np.zeros(q0) if shift is None else np.asarray(shift)[None, :]
+        ep, em = np.exp(1j * beta * L - shift), np.exp(-1j * beta * L - shift)
+        cos = 0.5 * (ep + em)
+        bsin = beta * (-0.5j) * (ep - em)
+        one = np.exp(-shift) * np.ones_like(cos)
+        rhow = rs.rho * d["weight"] * w_ref**2
+        coef = (omega / w_ref) ** 2
+        for h in range(heads):
+            rows = slice(n + h * q0, n + (h + 1) * q0)
+            T[:, off[h]:off[h + 1], rows] = V[h][None, :, :q0]
+            for g in range(heads):
+                if heads == 1:
+                    G = cos + (order.cross_sign or 0.0) * one
+                else:
+                    G = cos if g == h else one
+                T[:, rows, off[g]:off[g + 1]] = (coef[:, None] * G)[:, :, None] * V[g][:, :q0].T[None, :, :]
+            idx = np.arange(q0)
+            T[:, n + h * q0 + idx, n + h * q0 + idx] = -d["norms"][None, :q0] * bsin / rhow
+        return T
+
+    def prepared(self, centre: complex, radius: float):
+        """T near a circle, balanced: (evaluate, column scales) (see :func:`_balance`)."""
+        k_top = (abs(centre) + radius) / self.rs.c
+        self.rs.ensure_range(self.i, k_top)
+        q0 = self.propagating(k_top)
+        w_ref = abs(centre)
+        shift = self.shifts(centre, radius, q0)
+        r, c = _balance(self.evaluate(np.array([centre]), q0, w_ref, shift)[0])
+
+        def evaluate(z):
+            return r[None, :, None] * self.evaluate(z, q0, w_ref, shift) * c[None, None, :]
+
+        return evaluate, c
+
+    def circle(self, centre: complex, radius: float, *, points: int, margin: float = 1.0,
+               blocks: int = 2, rank_tol: float = SCAN_RANK, aspect: float = 1.0):
+        """Roots inside a circle (or ellipse): (omega, Ritz vectors of the heads)."""
+        evaluate, c = self.prepared(centre, radius)
+        z, vecs = eigen_in_circle(evaluate, centre, radius, points=points, margin=margin,
+                                  blocks=blocks, rank_tol=rank_tol, aspect=aspect)
+        grow = z.imag < -GROWTH * np.abs(z)  # not a decaying mode: an artefact of the
+        z, vecs = z[~grow], vecs[~grow]  # continued operator far from the real axis
+        vecs = vecs * c[None, :]  # undo the column scaling
+        return z, vecs[:, : self.size]
+
+    def polish(self, z0: complex, *, tol: float, iterations: int = 8, reach: float = 1e-6):
+        """Newton's method on det T from a close estimate; (omega, vector) or None.
+
+        The step is 1 / tr(T^-1 T') (T' by central differences); it converges
+        quadratically to a simple root. None if it wanders further than ``reach`` (relative)
+        or does not converge (then the estimate stays).
+        """
+        evaluate, c = self.prepared(z0, 1e-3 * abs(z0))
+        z = complex(z0)
+        for _ in range(iterations):
+            h = 1e-6 * abs(z)
+            T = evaluate(np.array([z, z + h, z - h]))
+            try:
+                step = 1.0 / np.trace(np.linalg.solve(T[0], (T[1] - T[2]) / (2 * h)))
+            except np.linalg.LinAlgError:
+                break
+            z = z - step
+            if not np.isfinite(z) or abs(z - z0) > reach * abs(z0):
+                return None
+            if abs(step) <= tol * abs(z):
+                break
+        else:
+            return None
+        _, _, vh = np.linalg.svd(evaluate(np.array([z]))[0])
+        v = np.conj(vh[-1]) * c
+        return z, v[: self.size]
+
+
+def _clusters(z, tol):
+    """Groups of indices of z (sorted by real part) whose neighbours lie within tol |z|."""
+    order = np.argsort(z.real)
+    groups, cur = [], [order[0]] if len(z) else []
+    for a, b in zip(order[:-1], order[1:]):
+        if abs(z[b] - z[a]) <= tol * abs(z[b]):
+            cur.append(b)
+        else:
+            groups.append(cur)
+            cur = [b]
+    if cur:
+        groups.append(cur)
+    return groups
+
+
+def refine(problem: OrderProblem, z, *, tol: float, rounds: int):
+    """Polish coarse roots on small circles, group by group, until they settle.
+
+    Each group of estimates gets a circle; what it finds is split again into groups of
+    near-coincident roots, each with a smaller circle, until a circle returns the same
+    roots as the one before (to SETTLE); then isolated roots are polished by Newton's
+    method to ``tol``. Returns (omega, vectors); raises SolverError if a group does not
+    settle in ``rounds`` circles.
+    """
+    z = np.asarray(z, dtype=complex)
+    out_z, out_v = [], []
+    work = []
+    for group in _clusters(z, 0.005):
+        cur = np.sort_complex(z[group])
+        c = complex(np.mean(cur))
+        if len(cur) == 1:  # isolated: Newton's method straight from the coarse estimate
+            rest = np.delete(z, group)
+            gap = np.min(np.abs(rest - c)) / abs(c) if len(rest) else 1.0
+            got = problem.polish(c, tol=tol, iterations=rounds, reach=min(0.3 * gap, 5e-3))
+            if got is not None:
+                out_z.append(np.array([got[0]]))
+                out_v.append(got[1][None, :])
+                continue
+        work.append((c, max(1.5 * _spread(cur), 0.01 * abs(c)), None, 0, False))
+    while work:
+        centre, radius, prev, depth, widened = work.pop()
+        if depth >= rounds:
+            raise SolverError(
+                f"coupled solve did not converge (order m = {problem.order.m}, roots near "
+                f"{np.round(np.atleast_1d(prev if prev is not None else centre).real / (2 * np.pi), 2).tolist()} Hz)")
+        try:
+            new, vecs = problem.circle(centre, radius, points=REFINE_POINTS, blocks=2,
+                                       rank_tol=REFINE_RANK)
+        except TooMany:  # noise or a crowd: a smaller circle
+            work.append((centre, radius / 3.0, prev, depth + 1, widened))
+            continue
+        if not len(new):
+            if prev is None and not widened:  # a poor coarse estimate: look wider once
+                work.append((centre, 3.0 * radius, None, depth + 1, True))
+            continue  # otherwise the estimate was spurious: nothing is there
+        order = np.argsort(new.real)
+        new, vecs = new[order], vecs[order]
+        change = np.max(np.abs(new - prev) / np.abs(new)) \
+            if prev is not None and len(new) == len(prev) else np.inf
+        # settled; or, after a few rounds, wandering at the operator's noise floor (a very
+        # stiff head's high modes make Z noisy at about 1e-7): the roots are known to that
+        # (and a root still wandering when the rounds run out, far above any tolerance a
+        # table needs, is taken where it is rather than lost; a budget below 4 rounds is a
+        # request for strictness and raises instead)
+        last = depth + 1 >= rounds and rounds >= 4
+        if change <= SETTLE or (depth >= 4 and change <= NOISE_FLOOR) or last:
+            _polish_group(problem, new, vecs, tol=tol)
+            out_z.append(new)
+            out_v.append(vecs)
+            continue
+        for group in _clusters(new, 1e-4):
+            cur = new[np.sort(group)]
+            c = complex(np.mean(cur))
+            rest = np.delete(new, group)
+            gap = np.min(np.abs(rest - c)) if len(rest) else abs(c)
+            r = max(2.0 * _spread(cur), min(0.3 * gap, 1e-3 * abs(c)), 1e-6 * abs(c))
+            work.append((c, r, cur, depth + 1, widened))
+    if not out_z:
+        return np.zeros(0, complex), np.zeros((0, problem.size), complex)
+    return _dedupe(np.concatenate(out_z), np.concatenate(out_v))
+
+
+def _polish_group(problem, z, vecs, *, tol):
+    """Newton-polish the roots of a settled group that have no close neighbour (in place)."""
+    for j in range(len(z)):
+        others = np.delete(z, j)
+        if len(others) and np.min(np.abs(others - z[j])) < 1e-5 * abs(z[j]):
+            continue  # a tight cluster keeps its subspace values: Newton cannot tell them apart
+        got = problem.polish(z[j], tol=tol)
+        if got is not None:
+            z[j], vecs[j] = got
+
+
+def _spread(z) -> float:
+    return float(np.ptp(z.real) + np.ptp(z.imag)) if len(z) > 1 else 0.0
+
+
+def _dedupe(z, v):
+    """Drop roots found twice (same omega to 1e-9 and the same vector)."""
+    order = np.argsort(z.real)
+    z, v = z[order], v[order]
+    keep = []
+    for i in range(len(z)):
+        dup = False
+        for j in keep:
+            if abs(z[i] - z[j]) <= 1e-9 * abs(z[i]):
+                a, b = v[i], v[j]
+                ov = abs(np.vdot(a, b)) / max(np.linalg.norm(a) * np.linalg.norm(b), 1e-300)
+                if ov > 0.99:
+                    dup = True
+                    break
+        if not dup:
+            keep.append(i)
+    return z[keep], v[keep]
+
+
+def body_weights(k, gamma, depth: float) -> np.ndarray:
+    r"""How much of each duct mode's energy counts as the body's own air, 0..1, (R, Q).
+
+    A duct mode that propagates at wavenumber k fills the body: weight 1. A cut-off one
+    decays away from the head like :math:`\cosh\mu(L - z)`, :math:`\mu^2 = \gamma^2 - k^2`;
+    its weight is twice the share of that field's energy in the far half of the depth,
+    :math:`(y + \sinh y)/(2y + \sinh 2y)` with y = μL: 1 at cut-on (where the body's
+    cross-wise resonances sit, filling the whole depth), about :math:`2e^{-y}` for a field
+    held near the head (which is the head's added mass, not the body's air).
+    """
+    k = np.real(np.atleast_1d(k))[:, None]
+    mu2 = gamma[None, :] ** 2 - k * k
+    y = np.sqrt(np.maximum(mu2, 0.0)) * depth
+    e1, e2 = np.exp(-y), np.exp(-2.0 * y)
+    num = y * e2 + 0.5 * (e1 - e1 * e2)  # (y + sinh y) e^{-2y}
+    den = 2.0 * y * e2 + 0.5 * (1.0 - e2 * e2)  # (2y + sinh 2y) e^{-2y}
+    with np.errstate(divide="ignore", invalid="ignore"):
+        w = np.where(y > 1e-8, 2.0 * num / den, 1.0)
+    return np.where(mu2 <= 0, 1.0, np.clip(w, 0.0, 1.0))
+
+
+def head_fractions(rs, i: int, omega, vecs) -> np.ndarray:
+    r"""Share of each root's vibrational energy in the head(s), 0..1.
+
+    For a lossless system the energy stored at a resonance is :math:`-\tfrac{\omega}{4}
+    x^H Z'(\omega) x` (the reactance theorem); the body's air holds the part that comes from
+    its S', each duct mode weighted by :func:`body_weights` (the air that only moves with a
+    head, outside it and in the cut-off field next to it, is the head's added mass and
+    counts with the head). The fraction is :math:`1 - x^T S_w' x / x^T Z' x` (bilinear
+    forms: Z is complex symmetric), its real part clipped to [0, 1].
+    """
+    omega = np.asarray(omega, dtype=complex)
+    out = np.ones(len(omega))
+    order = rs.orders[i]
+    if order.depth is None or not len(omega):
+        return out
+    gamma = rs.data[i]["gamma"]
+    wts = body_weights(omega / rs.c, gamma, order.depth)
+    h = 1e-6 * np.abs(omega)
+    pts = np.concatenate([omega + h, omega - h])
+    R = len(omega)
+    z = rs.order_operator(i, pts)
+    sp = rs.order_operator(i, pts, outer=0.0, head=False, duct_weights=np.vstack([wts, wts]))
+    dz = np.einsum("rn,rnk,rk->r", vecs, z[:R] - z[R:], vecs)
+    ds = np.einsum("rn,rnk,rk->r", vecs, sp[:R] - sp[R:], vecs)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        frac = 1.0 - np.real(ds / dz)
+    return np.clip(np.where(np.isfinite(frac), frac, 0.0), 0.0, 1.0)
+
+
+def scan_order(rs, i: int, *, covered, lowest: float, tol: float, rounds: int,
+               ceiling: float):
+    """All roots of order i from about ``lowest`` up, until the heads' modes are covered.
+
+    Parameters
+    ----------
+    rs : RootSet
+    i : int
+    covered : callable
+        (omega, vectors, head fractions, top) -> bool: whether the roots found below the
+        angular frequency ``top`` hold every head mode wanted (the scan stops then).
+    lowest : float
+        Lowest in-vacuum angular frequency of the order, rad/s (the scan starts at 1/8 of it).
+    tol : float
+        Relative tolerance of the refined roots.
+    rounds : int
+        Refinement rounds allowed per cluster.
+    ceiling : float
+        Highest angular frequency the scan may reach before giving up, rad/s.
+
+    Returns
+    -------
+    (numpy.ndarray, numpy.ndarray, numpy.ndarray)
+        Angular frequencies (complex), Ritz vectors and head fractions, ascending.
+    """
+    problem = OrderProblem(rs, i)
+    low = lowest / 8.0
+    centre = low * np.sqrt(STEP)
+    zs, vs = [np.zeros(0, complex)], [np.zeros((0, rs.size), complex)]
+    known, fracs = np.zeros(0, complex), np.zeros(0)
+    allz, allv = known, np.zeros((0, rs.size), complex)
+    while True:
+        lo, hi = centre / np.sqrt(STEP), centre * np.sqrt(STEP)
+        z = _coarse(problem, lo, hi, centre, RADIUS * centre)
+        if len(known):  # found (and refined) already from the circle before
+            z = np.array([w for w in z if np.min(np.abs(known - w)) > 1e-3 * abs(w)], complex)
+        if len(z):  # refined roots are kept wherever they settle (found twice: deduped)
+            z, v = refine(problem, z, tol=tol, rounds=rounds)
+            zs.append(z)
+            vs.append(v)
+        allz = np.concatenate(zs)
+        allv = np.concatenate(vs)
+        if len(allz) > len(known):
+            allz, allv = _dedupe(allz, allv)
+            zs, vs = [allz], [allv]
+            allv = _mass_normalised(rs, i, allv)
+            fresh = np.array([not np.any(np.abs(known - w) <= 1e-12 * abs(w)) for w in allz], bool)
+            frac = np.zeros(len(allz))
+            old = {complex(w): f for w, f in zip(known, fracs)}
+            for j, w in enumerate(allz):
+                frac[j] = old.get(complex(w), 0.0)
+            frac[fresh] = head_fractions(rs, i, allz[fresh], allv[fresh])
+            known, fracs = allz, frac
+        frac = fracs
+        if len(allz) and covered(allz, _mass_normalised(rs, i, allv), frac, hi):
+            break
+        if hi > ceiling:
+            raise SolverError(
+                f"coupled solve: order m = {rs.orders[i].m} does not have the head modes wanted "
+                f"below {hi / (2 * np.pi):.4g} Hz")
+        centre *= STEP
+    return allz, _mass_normalised(rs, i, allv), frac
+
+
+def _coarse(problem, lo, hi, centre, radius, depth=0):
+    """Coarse roots with lo <= Re omega < hi from one curve, or from three smaller ones if
+    the curve holds more than its moments can resolve."""
+    rs = problem.rs
+    # the radiation tables are series in (k a)^2, accurate far from the real axis only at
+    # small k a; higher up every root is lightly damped, so the curve flattens there
+    ka = (centre + radius) / rs.c * problem.order.heads[0].radius
+    try:
+        z, _ = problem.circle(centre, radius, points=SCAN_POINTS, margin=KEEP,
+                              aspect=1.0 if ka <= FLAT_KA else FLAT_ASPECT,
+                              blocks=2 + 2 * depth)  # a crowd: more moments as well
+    except TooMany:
+        if depth >= 4:
+            raise
+        edges = np.linspace(lo, hi, 4)
+        parts = [_coarse(problem, a, b, 0.5 * (a + b), radius / 2.5, depth + 1)
+                 for a, b in zip(edges[:-1], edges[1:])]
+        return np.concatenate(parts)
+    return z[(z.real >= lo / OVERLAP) & (z.real < hi * OVERLAP)]
+
+
+def _mass_normalised(rs, i, v):
+    """Vectors scaled to unit M-norm, largest entry real and positive."""
+    if not len(v):
+        return v
+    M = rs.data[i]["M"]
+    nrm = np.sqrt(np.abs(np.einsum("rn,nk,rk->r", np.conj(v), M, v)))
+    big = v[np.arange(len(v)), np.argmax(np.abs(v), axis=1)]
+    with np.errstate(divide="ignore", invalid="ignore"):
+        s = np.where(nrm > 0, np.abs(big) / big / nrm, 1.0)
+    return v * s[:, None]

@@ -1,0 +1,130 @@
+"""The search for the tension at which a mode sits on a target frequency.
+
+A labelled mode's frequency rises with tension. With air in a body it need not rise
+continuously: where the head mode crosses one of the body's air resonances the label
+passes from one root to the other (docs/mode-identity.md), and the frequency of "(m,n)"
+jumps up. So the search works on g(x) = ln(f(e^x) / f*), x = ln T, which is increasing with
+upward jumps, and has three outcomes, never a failure to settle:
+
+* :class:`Found`: g = 0 within the tolerance;
+* :class:`Jump`: the target lies in a jump: a bracket [x_lo, x_hi] narrower than the
+  jump test with g(x_lo) < 0 < g(x_hi) and a slope far steeper than any smooth change;
+* :class:`Beyond`: g keeps its sign up to a bound of the allowed range.
+
+Secant steps (slope clamped to what sqrt(T) scaling and the air allow) find a bracket, then
+a safeguarded regula falsi (Illinois) shrinks it; each evaluation is a model solve, so the
+count matters more than the arithmetic. Used by the single-target tune and meant for every
+tension fit (listen's included).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+# a smooth branch has d ln f / d ln T between 0 and about 1 (1/2 for an ideal membrane);
+# a bracket whose secant slope is this much steeper holds a jump, not a root
+JUMP_SLOPE = 50.0
+# brackets narrower than this in ln T are not split further: a jump that narrow is a jump
+MIN_WIDTH = 1e-9
+
+
+@dataclass(frozen=True)
+class Found:
+    """g(x) = 0 within the tolerance at x = ln T."""
+
+    x: float
+    g: float
+    solves: int
+
+
+@dataclass(frozen=True)
+class Jump:
+    """The target lies in an upward jump of g between x_lo and x_hi (ln T)."""
+
+    x_lo: float
+    x_hi: float
+    g_lo: float
+    g_hi: float
+    solves: int
+
+
+@dataclass(frozen=True)
+class Beyond:
+    """g keeps its sign up to the bound x (``side`` "low": the target is below g's range)."""
+
+    side: str
+    x: float
+    g: float
+    solves: int
+
+
+def search(g, *, x0: float, g0: float, lo: float, hi: float, close: float,
+           max_solves: int = 80):
+    """Solve g(x) = 0 for an increasing g with upward jumps on [lo, hi].
+
+    Parameters
+    ----------
+    g : callable
+        x (ln of tension in N/m) -> ln(f / f*), one model solve per call.
+    x0, g0 : float
+        The starting point and its value.
+    lo, hi : float
+        Bounds of x.
+    close : float
+        |g| below this is on target.
+    max_solves : int
+        Evaluations allowed; when they run out the bracket is reported as a Jump (it
+        can then only be one: a smooth root is found long before).
+
+    Returns
+    -------
+    Found, Jump or Beyond
+    """
+    solves = 0
+    if abs(g0) < close:
+        return Found(x0, g0, 0)
+    below = (x0, g0) if g0 < 0 else None  # (x, g) with g < 0, the largest x so far
+    above = (x0, g0) if g0 > 0 else None  # (x, g) with g > 0, the smallest x so far
+    xa, ga = x0, g0
+    xb = min(max(x0 - 2.0 * g0, lo), hi)  # sqrt(T) scaling: the first guess only
+    side = 0  # Illinois: which end was kept last
+    while solves < max_solves:
+        gb = g(xb)
+        solves += 1
+        if abs(gb) < close:
+            return Found(xb, gb, solves)
+        if gb < 0:
+            below, side = (xb, gb), (side - 1 if side <= 0 else -1)
+        else:
+            above, side = (xb, gb), (side + 1 if side >= 0 else 1)
+        if below is not None and above is not None:
+            (x1, g1), (x2, g2) = below, above
+            width = x2 - x1
+            if width <= MIN_WIDTH or (g2 - g1) > JUMP_SLOPE * max(width, 1e-300) and width < 1e-3:
+                return Jump(x1, x2, g1, g2, solves)
+            # regula falsi, with the kept end's value halved after two keeps (Illinois)
+            w1, w2 = g1, g2
+            if side <= -2:
+                w2 = 0.5 * g2
+            elif side >= 2:
+                w1 = 0.5 * g1
+            x = x1 - w1 * (x2 - x1) / (w2 - w1)
+            if not (x1 + 0.01 * width < x < x2 - 0.01 * width) or (g2 - g1) > JUMP_SLOPE * width:
+                x = 0.5 * (x1 + x2)  # bisect: a steep bracket is split evenly
+            xa, ga, xb = xb, gb, x
+            continue
+        slope = (gb - ga) / (xb - xa) if xb != xa else 0.5
+        x = xb - gb / min(max(slope, 0.02), 2.0)  # keep the extrapolation sane
+        if abs(gb) > 0.5 * abs(ga) and abs(x - xb) < 2.0 * abs(xb - xa):
+            # slow progress and no bracket yet (a flat stretch): at least double the step
+            x = xb + math.copysign(2.0 * abs(xb - xa), x - xb)
+        if x <= lo or x >= hi:
+            if xb in (lo, hi):
+                return Beyond("low" if gb > 0 else "high", xb, gb, solves)
+            x = min(max(x, lo), hi)
+        xa, ga, xb = xb, gb, x
+    if below is not None and above is not None:
+        (x1, g1), (x2, g2) = below, above
+        return Jump(x1, x2, g1, g2, solves)
+    return Beyond("low" if gb > 0 else "high", xb, gb, solves)

@@ -1,0 +1,83 @@
+"""The coupled solve where the continuation used to give up: slack heads, nearly equal heads,
+high orders, lossless roots; and the body's air resonances as roots of their own."""
+
+import math
+from dataclasses import replace
+
+import numpy as np
+import pytest
+
+from membrane.drum import Body, Drum, Head, load_drum
+from membrane.physics.coupled import full_modes, solve_drum
+from membrane.tuning import slack_tension
+
+# the 26-inch kettle head of test_coupled.py (0.19 mm polyester, SOURCES.md)
+HEAD = Head(radius=0.325, tension=3700.0, areal_density=0.262, thickness=0.19e-3,
+            youngs_modulus=4.5e9, poisson_ratio=0.38)
+TOM = Head(radius=0.1524, tension=3000.0, areal_density=0.25)
+
+
+def test_slack_head_solves_with_a_decay_for_every_mode():
+    # 1.5 x the slack limit (tuning.slack_tension): bending holds the head as much as tension
+    head = replace(HEAD, tension=1.5 * slack_tension(HEAD))
+    modes = full_modes(Drum(head=head, body=Body("kettle", volume=0.17)), m_max=3, n_max=3)
+    assert len(modes) == 4 * 3
+    for md in modes:
+        assert md.decay is not None and md.decay > 0
+    for m in range(4):  # n rises with frequency within an order
+        f = [md.frequency for md in sorted((x for x in modes if x.m == m), key=lambda x: x.n)]
+        assert np.all(np.diff(f) > 0)
+
+
+def shell_pairs(resonant_tension, depth=0.3, m_max=2, n_max=2):
+    res = replace(TOM, tension=resonant_tension)
+    drum = Drum(head=TOM, body=Body(kind="shell", depth=depth), resonant_head=res)
+    return {(md.m, md.n, md.branch): md for md in full_modes(drum, m_max=m_max, n_max=n_max)}
+
+
+@pytest.mark.parametrize("rel", [1e-12, 1e-8, 1e-4, 3000.1 / 3000 - 1])
+def test_nearly_equal_heads_approach_the_equal_pairs(rel):
+    # the symmetric solve of two identical heads (test_coupled.py checks it against the
+    # symmetry) is the limit: each (m, n, branch) moves by about the asymmetry, no more
+    equal = shell_pairs(TOM.tension)
+    near = shell_pairs(TOM.tension * (1 + rel))
+    assert set(near) == set(equal)
+    for key, md in equal.items():
+        assert near[key].frequency == pytest.approx(md.frequency, rel=2 * rel + 1e-9)
+
+
+def test_high_orders_have_radiation_tables():
+    # m up to 20 (the full-physics limit): the tables of the high orders converge (their
+    # damping is many decades below their added mass) and every mode has a decay time
+    drum = load_drum("kettledrum")
+    modes = full_modes(drum, m_max=20, n_max=1)
+    assert sorted(md.m for md in modes) == list(range(21))
+    f = [md.frequency for md in sorted(modes, key=lambda x: x.m)]
+    assert np.all(np.diff(f) > 0)  # (m,1) rises with m (Rossing's chart, common practice)
+    assert all(md.decay is not None and md.decay > 0 for md in modes)
+
+
+def test_lossless_roots_have_an_infinite_decay_time_not_none():
+    # vanishing air: Im omega is round-off; T60 must read as "no loss", never blank
+    from membrane.drum import Air
+
+    air = Air(density=1e-9, sound_speed=343.24)
+    modes = full_modes(Drum(head=HEAD, air=air), m_max=2, n_max=2)
+    for md in modes:
+        assert md.decay is not None and (math.isinf(md.decay) or md.decay > 1e6)
+
+
+def test_the_bowl_air_resonance_is_a_root_of_its_own():
+    # the first cross-wise air mode of a rigid cylinder, J1'(j'11 r/a): f = c j'11 / (2 pi a)
+    # (A&S Table 9.5: j'11 = 1.8412) sits between the head's (1,1) and (1,2) on the
+    # kettledrum; the solve finds a root near it that is mostly air
+    drum = load_drum("kettledrum")
+    od = [o for o in solve_drum(drum, m_max=1, n_max=2) if o.order.m == 1][0]
+    f_air = drum.air.sound_speed * 1.8412 / (2 * np.pi * drum.head.radius)
+    air = [(w.real / (2 * np.pi), hf, lab) for w, hf, lab in zip(od.omega, od.head_fraction,
+                                                                od.labels)
+           if lab is not None and lab[0] == "air"]
+    assert air, "no air root"
+    f, hf, lab = min(air, key=lambda a: abs(a[0] - f_air))
+    assert lab[1:] == (0, 0)  # (q, p) = (0, 0): no nodal circle, no node along the depth
+    assert abs(f / f_air - 1) < 0.1 and hf < 0.5

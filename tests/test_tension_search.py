@@ -1,0 +1,62 @@
+"""The one tension search: roots of increasing functions with upward jumps, never unsettled."""
+
+import math
+
+import pytest
+
+from membrane.tension_search import Beyond, Found, Jump, search
+
+CLOSE = 1e-3 / 1200 * math.log(2)  # 0.001 cent
+
+
+def counted(f):
+    calls = []
+
+    def g(x):
+        calls.append(x)
+        return f(x)
+    return g, calls
+
+
+@pytest.mark.parametrize("slope", [0.02, 0.5, 1.0])
+def test_smooth_root_is_found_in_few_solves(slope):
+    # exact: the root of slope * (x - 9) is x = 9; sqrt(T) scaling (slope 1/2) is the guess
+    g, calls = counted(lambda x: slope * (x - 9.0))
+    out = search(g, x0=8.0, g0=g(8.0), lo=0.0, hi=12.0, close=CLOSE)
+    assert isinstance(out, Found)
+    assert abs(out.x - 9.0) * slope < CLOSE
+    assert len(calls) < 20
+
+
+def test_a_target_inside_a_jump_is_reported_with_its_bracket():
+    # exact: g jumps from -0.01 to +0.02 at x = 9.5, so no x gives g = 0
+    f = lambda x: 0.5 * (x - 9.5) - 0.01 if x < 9.5 else 0.5 * (x - 9.5) + 0.02  # noqa: E731
+    out = search(f, x0=8.0, g0=f(8.0), lo=0.0, hi=12.0, close=CLOSE)
+    assert isinstance(out, Jump)
+    assert out.x_lo < 9.5 <= out.x_hi and out.x_hi - out.x_lo < 1e-3
+    assert out.g_lo < 0 < out.g_hi
+
+
+def test_a_root_next_to_a_jump_is_still_found():
+    # exact: g = 0.5 (x - 9) below a jump at x = 9.3
+    f = lambda x: 0.5 * (x - 9.0) if x < 9.3 else 0.5 * (x - 9.0) + 0.3  # noqa: E731
+    out = search(f, x0=11.0, g0=f(11.0), lo=0.0, hi=12.0, close=CLOSE)
+    assert isinstance(out, Found) and abs(out.x - 9.0) < 1e-5
+
+
+@pytest.mark.parametrize("x0, side", [(5.0, "low"), (2.0, "high")])
+def test_targets_beyond_the_range(x0, side):
+    # exact: g = 0.5 (x - 20) < 0 on [0, 12] (target too high); g + 30 > 0 (target too low)
+    f = (lambda x: 0.5 * (x - 20.0)) if side == "high" else (lambda x: 0.5 * x + 30.0)
+    out = search(f, x0=x0, g0=f(x0), lo=0.0, hi=12.0, close=CLOSE)
+    assert isinstance(out, Beyond) and out.side == side
+    assert out.x == (0.0 if side == "low" else 12.0)
+
+
+def test_flat_then_steep_never_fails():
+    # a slack head: g nearly flat at low tension, then rising; exact root at x = 10
+    f = lambda x: 1e-4 * (x - 10.0) if x < 10.0 else 0.5 * (x - 10.0)  # noqa: E731
+    out = search(f, x0=3.0, g0=f(3.0), lo=0.0, hi=12.0, close=CLOSE)
+    assert isinstance(out, (Found, Jump))
+    if isinstance(out, Found):
+        assert abs(f(out.x)) < CLOSE
