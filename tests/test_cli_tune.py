@@ -170,3 +170,13 @@ def test_the_summary_table_has_no_empty_header_row():
     lines = [line for line in first_table.splitlines() if line.strip()]
     body = lines[lines.index(next(line for line in lines if "current tension" in line)) - 1]
     assert set(body.strip()) <= set("┌┬┐─"), body
+
+
+def test_air_rows_of_the_tuned_table_carry_their_own_label():
+    # the tuned table names a body air resonance as such ("air (m,q,p)"), never as a
+    # head mode with a negative n; at C3 the kettle's first cross-wise air mode is in the table
+    payload = as_json("kettledrum", "--mode", "1,1", "--target", "C3")
+    assert any(row.get("kind") == "air" for row in payload["modes"])
+    result = run("kettledrum", "--mode", "1,1", "--target", "C3")
+    assert result.exit_code == 0, result.output
+    assert "air (1,0,0)" in result.stdout and ",-" not in result.stdout

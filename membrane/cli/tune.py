@@ -298,9 +298,8 @@ def _print_human(fmt: Format, drum, payload: dict, result) -> None:
              notes=[payload["statement"]])
         gap()
         ref = payload["reference"]
-        mode_rows = [dict(row, mode=f"({row['m']},{row['n']})" + (f" {row['branch']}" if "branch" in row else "")
-                          + (" resonant" if row.get("head") == "resonant" else ""))
-                     for row in payload["modes"]]
+        # the mode's own label: air rows as "air (m,q,p)", heads and branches in words
+        mode_rows = [dict(row, mode=mode.label) for row, mode in zip(payload["modes"], result.modes.modes)]
         emit(fmt, payload=payload, rows=mode_rows, title=f"modes at the suggestion, ratios to ({ref['m']},{ref['n']})",
              columns=[("mode", "mode", str), ("frequency_hz", "f (Hz)", num(2)), ("decay_s", "T60 (s)", t60),
                       ("ratio", "ratio", num(4)), ("note", "note", str), ("cents_from_note", "cents off", _signed(1))],
