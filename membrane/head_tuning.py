@@ -32,6 +32,7 @@ from scipy import optimize
 from .drum import Body, Drum
 from .errors import InputError, SolverError
 from .modes import ModeSet
+from .notation import cents as _cents
 from .solver import solve
 
 HEADS = ("struck", "resonant")
@@ -208,10 +209,6 @@ class _Model:
                     self.branch = {(h, m, n): find_mode(result, h, m, n).branch for h, m, n in self.wanted}
             self.cache[key] = out
         return self.cache[key]
-
-
-def _cents(a, b) -> float:
-    return 1200.0 * math.log2(a / b)
 
 
 def tune_heads(drum: Drum, *, targets=(), intervals=(), physics: str = "full", other: str = "free",

@@ -34,6 +34,7 @@ from scipy import optimize
 from .drum import Drum, Head
 from .errors import InputError, SolverError
 from .modes import ModeSet
+from .notation import cents as _cents
 from . import tension_search
 from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
@@ -154,10 +155,6 @@ def _tension_ceiling(head: Head) -> float:
     if head.thickness is not None and head.tensile_strength is not None:
         return min(TENSION_CEILING, head.tensile_strength * head.plies * head.thickness)
     return TENSION_CEILING
-
-
-def _cents(f, ref):
-    return 1200.0 * np.log2(np.asarray(f, dtype=float) / np.asarray(ref, dtype=float))
 
 
 # ------------------------------------------------------------------ the model as a function

@@ -9,6 +9,7 @@ from typing import Annotated, List, Optional
 import typer
 
 from ..errors import InputError
+from ..notation import PHYSICS_HELP, mode_label
 from ..units import note_name, parse_pitch
 from .tune_heads import INTERVAL_HELP
 from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, check_float, decay_words, drum_from,
@@ -111,7 +112,7 @@ def tune(
     ] = OtherHead.free,
     drum_flags: dict = None,
     physics: Annotated[Physics, typer.Option(
-        help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
+        help=PHYSICS_HELP)
     ] = Physics.full,
     losses: LossesOpt = LossChoice.all,
     m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters in the new mode table (0-50).")] = 6,
@@ -292,7 +293,7 @@ def _print_human(fmt: Format, drum, payload: dict, result) -> None:
         emit(fmt, payload=payload, rows=head_rows, columns=[("what", "", str), ("value", "", str)],
              title=f"{drum.name}: tune with {payload['physics']} physics")
         gap()
-        rows = [{"mode": f"({t['m']},{t['n']})", "target": _hz_note(t["target_hz"]), "now": t["current_hz"],
+        rows = [{"mode": mode_label(t["m"], t["n"]), "target": _hz_note(t["target_hz"]), "now": t["current_hz"],
                  "predicted": t["predicted_hz"], "residual": t["residual_cents"]} for t in payload["targets"]]
         emit(fmt, payload=payload, rows=rows, title="targets",
              columns=[("mode", "mode", str), ("target", "target (Hz)", str), ("now", "now (Hz)", num(2)),
