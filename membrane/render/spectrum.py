@@ -119,7 +119,7 @@ def spectrum_figure(frequencies, level_db, partials, *, ident=None, name: str = 
         bx.set_title(wrap_title(f"split pairs: {words}", 10.5, 9), fontsize=9, color=PARTIAL_COLOUR, loc="left")
     bx.set_xlim(0, top)
     bx.set_xlabel("frequency (Hz)")
-    bx.set_ylabel("T60 (s)")
+    bx.set_ylabel("measured T60 (s)")  # the recording's decay, not a model's: no losses to name
     bx.grid(alpha=0.3, which="both")
     if spots:
         place_labels(ax, spots, texts, candidates=_LABEL_OFFSETS, fontsize=8,
