@@ -47,6 +47,7 @@ from .errors import InputError, SolverError
 from .modes import ModeSet
 from .recording import Partial
 from .solver import solve
+from .units import cents
 
 # Choices of this method (tuned on synthetic taps, no external source):
 MAX_CENTS = 60.0  # a partial further than this from its mode is no match (0.6 semitone)
@@ -114,7 +115,7 @@ class SplitPair:
     @property
     def cents(self) -> float:
         """Split in cents."""
-        return 1200.0 * math.log2(self.high.frequency / self.low.frequency)
+        return cents(self.high.frequency, self.low.frequency)
 
 
 @dataclass(frozen=True)
@@ -148,7 +149,7 @@ class Identification:
     modes: ModeSet
     beyond: tuple[Partial, ...] = ()
     uncertainty: float = math.nan
-    physics: str = "stiff"
+    physics: str = "full"
 
     @property
     def rms_cents(self) -> float:
@@ -197,7 +198,7 @@ def weights(partials) -> np.ndarray:
     return w_level * w_sustain
 
 
-def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float = MAX_CENTS,
+def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = MAX_CENTS,
              split_cents: float = SPLIT_CENTS, progress=None) -> Identification:
     """Fit the struck head's tension to measured partials and label them (m, n).
 
@@ -208,7 +209,8 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
     partials : sequence of Partial
         Measured partials (any order).
     physics : {"ideal", "stiff", "full"}
-        The model, as in :func:`membrane.solve`.
+        The model, as in :func:`membrane.solve`; full physics (air and body) by default,
+        as ``membrane listen --drum`` has it.
     max_cents : float
         Largest distance of a partial from its mode to count as a match [cents].
     split_cents : float
@@ -524,7 +526,7 @@ def _result(drum, tension, t0, parts, pairs, labels, freqs, modes, cover, uncert
     for i, k in pairs:
         m, n, branch, head = labels[k]
         matches.append(Match(partial=parts[i], m=m, n=n, model_frequency=float(freqs[k]),
-                             cents=float(1200.0 * math.log2(parts[i].settled / freqs[k])),
+                             cents=cents(parts[i].settled, float(freqs[k])),
                              branch=branch, head=head))
         by_mode.setdefault(k, []).append(parts[i])
     for k, group in by_mode.items():
