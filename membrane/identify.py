@@ -45,9 +45,9 @@ from .bessel import jn_zeros
 from .drum import Drum
 from .errors import InputError, SolverError
 from .modes import ModeSet
+from . import notation
 from .recording import Partial
 from .solver import solve
-from .units import cents
 
 # Choices of this method (tuned on synthetic taps, no external source):
 MAX_CENTS = 60.0  # a partial further than this from its mode is no match (0.6 semitone)
@@ -115,7 +115,7 @@ class SplitPair:
     @property
     def cents(self) -> float:
         """Split in cents."""
-        return cents(self.high.frequency, self.low.frequency)
+        return notation.cents(self.high.frequency, self.low.frequency)
 
 
 @dataclass(frozen=True)
@@ -440,7 +440,7 @@ def _assign(f: np.ndarray, g: np.ndarray, double: np.ndarray, max_cents: float,
     or paired far off costs most); only partials in ``split_ok`` may take a second place.
     """
     w = np.ones(f.size) if weight is None else np.asarray(weight, dtype=float)
-    cents = np.abs(1200.0 * np.log2(f[:, None] / g[None, :]))
+    cents = np.abs(notation.cents(f[:, None], g[None, :]))
     big = 1e6
     n_f, n_g = cents.shape
     second = np.nonzero(double)[0]
@@ -526,7 +526,7 @@ def _result(drum, tension, t0, parts, pairs, labels, freqs, modes, cover, uncert
     for i, k in pairs:
         m, n, branch, head = labels[k]
         matches.append(Match(partial=parts[i], m=m, n=n, model_frequency=float(freqs[k]),
-                             cents=cents(parts[i].settled, float(freqs[k])),
+                             cents=float(notation.cents(parts[i].settled, freqs[k])),
                              branch=branch, head=head))
         by_mode.setdefault(k, []).append(parts[i])
     for k, group in by_mode.items():

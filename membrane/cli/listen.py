@@ -9,6 +9,7 @@ from typing import Annotated, List, Optional
 import typer
 
 from ..errors import InputError, RecordingError
+from ..notation import mode_label
 from .common import Format, Physics, emit, fail, num, signed, t60, write_atomic
 
 COLUMNS = [
@@ -132,7 +133,7 @@ def listen(
                "flags": list(p.flags), "remarks": _remarks(p)}
         mt = labels.get(id(p))
         if mt is not None:
-            row.update(m=mt.m, n=mt.n, mode=f"({mt.m},{mt.n})", model_hz=mt.model_frequency,
+            row.update(m=mt.m, n=mt.n, mode=mode_label(mt.m, mt.n), model_hz=mt.model_frequency,
                        cents_from_model=mt.cents)
             pair = partners.get(id(p))
             if pair is not None:
@@ -238,7 +239,7 @@ def _fit_losses(ident, rows, payload, notes) -> None:
         notes.append("no loss fit: too few matched partials with T60 > 0.5 s")
     dominant = {}
     for r in lf.rows:
-        dominant.setdefault(r["dominant"], []).append(f"({r['m']},{r['n']})")
+        dominant.setdefault(r["dominant"], []).append(mode_label(r["m"], r["n"]))
     notes.append("what damps each matched partial most: " +
                  "; ".join(f"{k}: {' '.join(v)}" for k, v in dominant.items()))
 
@@ -319,7 +320,7 @@ def _tune(drum, targets, physics: str) -> dict:
 
 
 def _tuning_notes(t: dict) -> list[str]:
-    modes = ", ".join(f"({x['m']},{x['n']}) {x['current_hz']:.2f} -> {x['predicted_hz']:.2f} Hz "
+    modes = ", ".join(f"{mode_label(x['m'], x['n'])} {x['current_hz']:.2f} -> {x['predicted_hz']:.2f} Hz "
                       f"(target {x['target_hz']:.2f})" for x in t["targets"])
     return [f"to reach the target: tension {t['tension_n_per_m']:.1f} N/m "
             f"({t['change_percent']:+.1f} % from the fitted {t['current_tension_n_per_m']:.1f} N/m); {modes}"] + \
