@@ -10,6 +10,7 @@ from typing import Annotated, List, Optional
 import typer
 
 from ..notation import mode_label
+from .options import Force
 from .common import DrumFile, Format, Physics, drum_from, emit, fail, num, signed, with_drum_flags, write_atomic
 
 SPLIT_COLUMNS = [
@@ -77,7 +78,7 @@ def lugs(
                                        min=1, max=10)] = 3,
     plot: Annotated[Optional[Path], typer.Option(
         help="Draw the rim from above: each lug's deviation and turn, the (1,1) pair's nodal lines (PNG, SVG, PDF).")] = None,
-    force: Annotated[bool, typer.Option(help="Overwrite --plot if it exists.")] = False,
+    force: Force = False,
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
 ) -> None:
     """Uneven lugs: which partials split, by how much and which way, and which lugs to turn.

@@ -12,6 +12,7 @@ import typer
 
 from .. import presets, ranges
 from ..notation import PHYSICS_HELP, mode_label
+from .options import Force
 from ..units import to_si
 from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, check_float, check_target,
                      decay_words, drum_from, emit, fail, num, parse_mode, t60, with_drum_flags,
@@ -155,7 +156,7 @@ def strike(
     ] = None,
     plot: Annotated[Optional[str], typer.Option(
         help="Draw each partial's level against the strike radius to this PNG file.")] = None,
-    force: Annotated[bool, typer.Option(help="Overwrite existing --out and --plot files.")] = False,
+    force: Force = False,
     drum_flags: dict = None,
     physics: Annotated[Physics, typer.Option(
         help=PHYSICS_HELP)

@@ -15,41 +15,18 @@ from __future__ import annotations
 import re
 import sys
 
-from ..units import parse_pitch
 from .common import Format, decay_words, emit, fail, num, parse_mode, t60
+from .options import parse_targets, split_head
 
-HEAD_WORDS = ("struck", "resonant")
 INTERVAL_HELP = ("Interval between two modes, usually of the two heads: HEAD:M,N=HEAD:M,N+AMOUNT, the "
                  "left mode AMOUNT above the right one; AMOUNT in semitones ('+3st', '-2 semitones') or "
                  "cents ('+300c'); leave it out for unison. The left head's tension is tuned; repeat for more. "
                  "Example: --interval resonant:0,1=struck:0,1+3st")
 
 
-def split_head(text: str, default: str, *, key: str) -> tuple[str, str]:
-    """``"resonant:0,1"`` -> ("resonant", "0,1"); no prefix -> (default, text)."""
-    if ":" in text:
-        head, rest = text.split(":", 1)
-        head = head.strip().lower()
-        if head not in HEAD_WORDS:
-            fail(key, text, "the head before ':' must be struck or resonant, e.g. resonant:0,1=C3")
-        return head, rest
-    return default, text
-
-
 def parse_head_targets(texts, mode: str | None, head: str):
-    """``--target`` values -> ((head, (m, n)), Hz, text)."""
-    out = []
-    for text in texts:
-        who, rest = split_head(text, head, key="--target")
-        if "=" in rest:
-            left, pitch = rest.split("=", 1)
-            m_n = parse_mode(left, key="--target")
-        elif mode is None:
-            fail("--target", text, "say which mode: add --mode M,N, or write the target as [HEAD:]M,N=PITCH")
-        else:
-            m_n, pitch = parse_mode(mode), rest
-        out.append(((who, m_n), parse_pitch(pitch, key="--target"), text))
-    return out
+    """``--target`` values -> ((head, (m, n)), Hz, text) (:func:`.options.parse_targets`)."""
+    return parse_targets(texts, mode, head=head)
 
 
 _AMOUNT = re.compile(r"^\s*([+-]?\s*\d+(?:\.\d+)?)\s*(st|semitones?|c|cents?)\s*$", re.IGNORECASE)
