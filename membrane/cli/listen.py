@@ -334,12 +334,11 @@ def shown_partials(analysis):
 
 
 def _draw(path: Path, spectrum, analysis, ident, name: str) -> None:
-    """The spectrum picture (:func:`membrane.render.spectrum.spectrum_figure`) to a PNG."""
-    from ..render.spectrum import spectrum_figure
+    """The spectrum picture, drawn by :mod:`membrane.render.spectrum`."""
+    from ..render.spectrum import write_spectrum_png
 
     freqs, level = spectrum
-    fig = spectrum_figure(freqs, level, shown_partials(analysis), ident=ident, name=name)
-    fig.savefig(path, format="png")
+    write_spectrum_png(path, freqs, level, shown_partials(analysis), ident=ident, name=name)
 
 
 __all__ = ["listen", "parse_channel"]
