@@ -102,11 +102,14 @@ class Mode:
 
         ``"(0,1) in-phase, resonant head"``: the head named is the one the mode grows
         from (its in-vacuum origin, the head that moves most); see :data:`HEAD_NOTE`.
+        Any root with a head fraction in :data:`HYBRID` is marked ``hybrid``, head and air
+        rows alike (``"(0,1) hybrid"``).
         """
         if self.kind == "air":
             q, p = self.air_mode
             return f"air ({self.m},{q},{p})" + (", hybrid" if self.hybrid else "")
-        words = [w for w in (self.branch, f"{self.head} head" if self.head else None) if w]
+        words = [w for w in (self.branch, f"{self.head} head" if self.head else None,
+                             "hybrid" if self.hybrid else None) if w]
         return f"({self.m},{self.n})" + (" " + ", ".join(words) if words else "")
 
     @property
