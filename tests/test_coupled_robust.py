@@ -86,8 +86,7 @@ def test_the_bowl_air_resonance_is_a_root_of_its_own():
 def test_a_long_kettle_ladder_of_air_resonances_is_scanned():
     # a 7-inch head over a 0.18 m^3 kettle: a 7.25 m air column, whose longitudinal
     # resonances lie c / 2L = 24 Hz apart (a rigid-walled pipe closed at both ends, from
-    # memory); the
-    # (4,n) head modes sit among dozens of them and are all found
+    # memory); the (4,n) head modes sit among dozens of them and are all found
     from membrane.drum import parse_drum
 
     drum = parse_drum({"name": "generated drum (invented)",
