@@ -18,9 +18,9 @@ from . import ranges as R
 from .errors import InputError
 from .losses import Losses, parse_losses
 from .nesting import check_nesting
+from .notation import EDGES, POISSON_RATIO
 from .units import parse_pitch, to_si
 
-EDGES = ("clamped", "hinged")
 BODY_KINDS = ("none", "kettle", "shell")
 
 # Gas constants for dry air: R = 287.058 J/(kg K), gamma = 1.4 (SOURCES.md, "Air and pitch").
@@ -80,7 +80,7 @@ class Head:
     thickness: float | None = None
     plies: int = 1
     youngs_modulus: float | None = None
-    poisson_ratio: float = 0.38
+    poisson_ratio: float = POISSON_RATIO
     edge: str = "clamped"
     film: str | None = None
     yield_stress: float | None = None
@@ -335,7 +335,7 @@ def _parse_head(table: dict, where: str) -> Head:
     modulus = _ranged(table, "youngs_modulus", "pressure", where, R.YOUNGS_MODULUS)
     if modulus is None and film is not None:
         modulus = film.youngs_modulus
-    nu = table.get("poisson_ratio", film.poisson_ratio if film else 0.38)
+    nu = table.get("poisson_ratio", film.poisson_ratio if film else POISSON_RATIO)
     if isinstance(nu, bool) or not R.POISSON_RATIO.contains(nu):
         raise InputError(f"{where}.poisson_ratio", nu, R.POISSON_RATIO.text())
     yield_stress = _ranged(table, "yield_stress", "pressure", where, R.STRENGTH)

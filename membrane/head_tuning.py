@@ -32,6 +32,7 @@ from scipy import optimize
 from .drum import Body, Drum
 from .errors import InputError, SolverError
 from .modes import ModeSet
+from .notation import cents as _cents
 from .solver import solve
 
 HEADS = ("struck", "resonant")
@@ -156,8 +157,9 @@ def find_mode(modes: ModeSet, head: str, m: int, n: int):
 class _Model:
     """Frequencies of the named modes as functions of the free heads' tensions (cached)."""
 
-    def __init__(self, drum: Drum, wanted, *, physics: str, other: str, n_max: int):
+    def __init__(self, drum: Drum, wanted, *, physics: str, other: str, n_max: int, losses: str = "all"):
         self.drum, self.wanted, self.physics, self.other = drum, list(wanted), physics, other
+        self.losses = losses
         self.m_max = max(m for _, m, _ in self.wanted)
         self.n_max = max(n_max, max(n for _, _, n in self.wanted))
         self.cache = {}
@@ -193,12 +195,13 @@ class _Model:
             out = {}
             if self.other == "damped" and drum.body.kind == "shell":
                 for head in {h for h, _, _ in self.wanted}:
-                    result = solve(alone(drum, head), self.physics, m_max=self.m_max, n_max=self.n_max)
+                    result = solve(alone(drum, head), self.physics, m_max=self.m_max, n_max=self.n_max,
+                                   losses=self.losses)
                     self.solves += 1
                     out.update({(h, m, n): result.find(m, n).frequency
                                 for h, m, n in self.wanted if h == head})
             else:
-                result = solve(drum, self.physics, m_max=self.m_max, n_max=self.n_max)
+                result = solve(drum, self.physics, m_max=self.m_max, n_max=self.n_max, losses=self.losses)
                 self.solves += 1
                 out = {(h, m, n): self._pick(result, h, m, n) for h, m, n in self.wanted}
                 if self.branch is None and drum.resonant_head is not None and drum.body.kind == "shell":
@@ -208,12 +211,8 @@ class _Model:
         return self.cache[key]
 
 
-def _cents(a, b) -> float:
-    return 1200.0 * math.log2(a / b)
-
-
 def tune_heads(drum: Drum, *, targets=(), intervals=(), physics: str = "full", other: str = "free",
-               m_max: int = 6, n_max: int = 3, table: bool = True) -> HeadsTuning:
+               m_max: int = 6, n_max: int = 3, table: bool = True, losses: str = "all") -> HeadsTuning:
     """Tensions of one or both heads that put modes on pitches and intervals between heads.
 
     Parameters
@@ -232,6 +231,8 @@ def tune_heads(drum: Drum, *, targets=(), intervals=(), physics: str = "full", o
         Orders of the mode table reported at the suggestion.
     table : bool
         Solve the coupled mode table at the suggestion.
+    losses : {"all", "radiation"}
+        What damps the heads in full physics, as in :func:`membrane.solve`.
 
     Returns
     -------
@@ -265,7 +266,7 @@ def tune_heads(drum: Drum, *, targets=(), intervals=(), physics: str = "full", o
             raise InputError("interval", f"{iv.head}:{iv.m},{iv.n}", "an interval needs two different modes")
     free = tuple(h for h in HEADS if h in {t.head for t in targets} | {iv.head for iv in intervals})
     wanted = list(dict.fromkeys(named))
-    model = _Model(drum, wanted, physics=physics, other=other, n_max=n_max)
+    model = _Model(drum, wanted, physics=physics, other=other, n_max=n_max, losses=losses)
     current = {h: head_of(drum, h).tension for h in HEADS if drum.resonant_head is not None or h == "struck"}
     f_now = model.frequencies({})
 
@@ -305,7 +306,8 @@ def tune_heads(drum: Drum, *, targets=(), intervals=(), physics: str = "full", o
     tension.update({h: float(math.exp(v)) for h, v in zip(free, x)})
     suggested = model.variant({h: tension[h] for h in free})
     f_fit = model.frequencies({h: tension[h] for h in free})
-    final = solve(suggested, physics, m_max=max(m_max, model.m_max), n_max=model.n_max) if table else None
+    final = solve(suggested, physics, m_max=max(m_max, model.m_max), n_max=model.n_max,
+                  losses=losses) if table else None
     res_now, res_fit = residuals_at(f_now), residuals_at(f_fit)
     met = []
     for i, t in enumerate(targets):

@@ -45,6 +45,7 @@ from .bessel import jn_zeros
 from .drum import Drum
 from .errors import InputError, SolverError
 from .modes import ModeSet
+from . import notation
 from .recording import Partial
 from .solver import solve
 
@@ -114,7 +115,7 @@ class SplitPair:
     @property
     def cents(self) -> float:
         """Split in cents."""
-        return 1200.0 * math.log2(self.high.frequency / self.low.frequency)
+        return notation.cents(self.high.frequency, self.low.frequency)
 
 
 @dataclass(frozen=True)
@@ -148,7 +149,7 @@ class Identification:
     modes: ModeSet
     beyond: tuple[Partial, ...] = ()
     uncertainty: float = math.nan
-    physics: str = "stiff"
+    physics: str = "full"
 
     @property
     def rms_cents(self) -> float:
@@ -197,7 +198,7 @@ def weights(partials) -> np.ndarray:
     return w_level * w_sustain
 
 
-def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float = MAX_CENTS,
+def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = MAX_CENTS,
              split_cents: float = SPLIT_CENTS, progress=None) -> Identification:
     """Fit the struck head's tension to measured partials and label them (m, n).
 
@@ -208,7 +209,8 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
     partials : sequence of Partial
         Measured partials (any order).
     physics : {"ideal", "stiff", "full"}
-        The model, as in :func:`membrane.solve`.
+        The model, as in :func:`membrane.solve`; full physics (air and body) by default,
+        as ``membrane listen --drum`` has it.
     max_cents : float
         Largest distance of a partial from its mode to count as a match [cents].
     split_cents : float
@@ -438,7 +440,7 @@ def _assign(f: np.ndarray, g: np.ndarray, double: np.ndarray, max_cents: float,
     or paired far off costs most); only partials in ``split_ok`` may take a second place.
     """
     w = np.ones(f.size) if weight is None else np.asarray(weight, dtype=float)
-    cents = np.abs(1200.0 * np.log2(f[:, None] / g[None, :]))
+    cents = np.abs(notation.cents(f[:, None], g[None, :]))
     big = 1e6
     n_f, n_g = cents.shape
     second = np.nonzero(double)[0]
@@ -524,7 +526,7 @@ def _result(drum, tension, t0, parts, pairs, labels, freqs, modes, cover, uncert
     for i, k in pairs:
         m, n, branch, head = labels[k]
         matches.append(Match(partial=parts[i], m=m, n=n, model_frequency=float(freqs[k]),
-                             cents=float(1200.0 * math.log2(parts[i].settled / freqs[k])),
+                             cents=float(notation.cents(parts[i].settled, freqs[k])),
                              branch=branch, head=head))
         by_mode.setdefault(k, []).append(parts[i])
     for k, group in by_mode.items():

@@ -22,7 +22,7 @@ import numpy as np
 
 from .losses import Losses
 
-LN1000 = 3.0 * math.log(10.0)
+from .notation import LN1000  # noqa: E402
 FITTABLE = ("tension_loss_factor", "edge_mobility")
 # one unit of each parameter for the sensitivity solves (the terms are linear in them)
 UNIT = {"tension_loss_factor": 1e-3, "edge_mobility": 1e-5}

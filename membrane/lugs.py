@@ -39,6 +39,7 @@ from scipy import optimize
 
 from .drum import Drum
 from .errors import InputError
+from .notation import cents
 from .physics.prestress import RimTension, lug_angles, rim_tension
 from .physics.uneven import (NOTE_AIR, NOTE_EXACT, NOTE_FIRST_ORDER, Split, exact_splits,
                              first_order_splits, split_weight, with_air)
@@ -380,7 +381,7 @@ def prescribe_turns(drum: Drum, tensions, *, cents_per_turn: float | None = None
                             stiff=True)[1].uniform_hz
         target *= (mean_now / even) ** 2
     change = target - t
-    tap = 600.0 * np.log2(target / t)
+    tap = 0.5 * cents(target, t)  # f ~ sqrt(T)
     turns = None
     if cents_per_turn is not None:
         turns = tap / cents_per_turn

@@ -13,7 +13,8 @@ import numpy as np
 
 from .errors import InputError
 from .physics.vacuum import RadialBasis
-from .units import cents, note_name
+from .notation import air_label, cents, mode_label
+from .units import note_name
 
 PHYSICS = ("ideal", "stiff", "full")
 # a root with a head fraction in this range is a hybrid of head and body air (our choice)
@@ -107,10 +108,8 @@ class Mode:
         """
         if self.kind == "air":
             q, p = self.air_mode
-            return f"air ({self.m},{q},{p})" + (", hybrid" if self.hybrid else "")
-        words = [w for w in (self.branch, f"{self.head} head" if self.head else None,
-                             "hybrid" if self.hybrid else None) if w]
-        return f"({self.m},{self.n})" + (" " + ", ".join(words) if words else "")
+            return air_label(self.m, q, p, hybrid=self.hybrid)
+        return mode_label(self.m, self.n, branch=self.branch, head=self.head, hybrid=self.hybrid)
 
     @property
     def hybrid(self) -> bool:
@@ -208,7 +207,7 @@ def harmonic_fit(frequencies, *, max_lowest: int = MAX_LOWEST_HARMONIC) -> tuple
             if np.array_equal(new, h):
                 break
             h = new
-        rms = float(np.sqrt(np.mean((1200 * np.log2(f / (h * f0))) ** 2)))
+        rms = float(np.sqrt(np.mean(cents(f, h * f0) ** 2)))
         if best is None or rms < best[2] - TIE_CENTS:
             best = (f0, h.astype(int), rms)
     return best

@@ -69,7 +69,7 @@ import scipy.optimize
 from .errors import InputError
 from .modes import Mode, ModeSet
 
-LN1000 = 3.0 * math.log(10.0)  # an amplitude falls 60 dB when (decay rate) * t = 3 ln 10
+from .notation import LN1000  # noqa: E402  (60 dB of decay: rate * t = 3 ln 10)
 
 # Presets (strike point, mallets, listener) are rules of thumb kept in presets.py.
 from .presets import (DEFAULT_AT, DEFAULT_LISTENER_ANGLE, DEFAULT_LISTENER_DISTANCE,  # noqa: E402,F401

@@ -34,6 +34,7 @@ from scipy import optimize
 from .drum import Drum, Head
 from .errors import InputError, SolverError
 from .modes import ModeSet
+from .notation import cents as _cents
 from . import tension_search
 from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
@@ -156,20 +157,16 @@ def _tension_ceiling(head: Head) -> float:
     return TENSION_CEILING
 
 
-def _cents(f, ref):
-    return 1200.0 * np.log2(np.asarray(f, dtype=float) / np.asarray(ref, dtype=float))
-
-
 # ------------------------------------------------------------------ the model as a function
 class _Model:
     """Mode frequencies of a drum variant, solved once per parameter set (cached)."""
 
-    def __init__(self, drum: Drum, modes, physics: str, n_max: int):
+    def __init__(self, drum: Drum, modes, physics: str, n_max: int, losses: str = "all"):
         for m, n in modes:
             if not (0 <= m <= M_MAX_LIMIT and 1 <= n <= N_MAX_LIMIT):
                 raise InputError("mode", f"{m},{n}", f"not a mode the solver has: m must be 0..{M_MAX_LIMIT}"
                                  f" and n 1..{N_MAX_LIMIT}")
-        self.drum, self.modes, self.physics = drum, list(modes), physics
+        self.drum, self.modes, self.physics, self.losses = drum, list(modes), physics, losses
         self.m_max = max(m for m, _ in self.modes)
         self.n_max = max(n_max, max(n for _, n in self.modes))
         self.cache: dict = {}
@@ -187,7 +184,7 @@ class _Model:
         key = (float(tension), free, value)
         if key not in self.cache:
             result = solve(self.variant(tension, free, value), self.physics,
-                           m_max=self.m_max, n_max=self.n_max)
+                           m_max=self.m_max, n_max=self.n_max, losses=self.losses)
             self.solves += 1
             self.cache[key] = np.array([result.find(m, n).frequency for m, n in self.modes])
         return self.cache[key]
@@ -270,7 +267,7 @@ class Tuning:
 
 
 def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None = None,
-                n_max: int = 3, m_max: int = 6, table: bool = True) -> Tuning:
+                n_max: int = 3, m_max: int = 6, table: bool = True, losses: str = "all") -> Tuning:
     """The tension (and optionally one more parameter) that puts modes on target pitches.
 
     Parameters
@@ -290,6 +287,8 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     table : bool
         Solve the whole mode table at the suggestion (one more solve); without it
         ``modes`` is None and the predictions come from the search's last solve.
+    losses : {"all", "radiation"}
+        What damps the head in full physics, as in :func:`membrane.solve`.
 
     Returns
     -------
@@ -314,7 +313,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
         _check_free(drum, free, physics, len(targets))
     modes = [mode for mode, _ in targets]
     wanted = np.array([hz for _, hz in targets])
-    model = _Model(drum, modes, physics, n_max)
+    model = _Model(drum, modes, physics, n_max, losses)
     t_now = drum.head.tension
     f_now = model.frequencies(t_now)
     naive = t_now * float(np.exp(2.0 * np.mean(np.log(wanted / f_now))))
@@ -354,7 +353,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
 
     suggested = model.variant(tension, free, value)
     if table:
-        final = solve(suggested, physics, m_max=max(m_max, model.m_max), n_max=model.n_max)
+        final = solve(suggested, physics, m_max=max(m_max, model.m_max), n_max=model.n_max, losses=losses)
         predicted = [final.find(m, n).frequency for m, n in modes]
     else:  # the search's own solve at the suggestion (same orders and basis)
         final, predicted = None, model.frequencies(tension, free, value)

@@ -13,6 +13,7 @@ from functools import lru_cache
 
 from . import ranges
 from .errors import InputError
+from .notation import cents  # noqa: F401  (its home; kept importable from here)
 
 A4_HZ = 440.0  # ISO 16:1975 standard tuning frequency
 A4_MIDI = 69
@@ -192,11 +193,6 @@ def parse_pitch(text, *, key: str = "pitch") -> float:
     if not ranges.PITCH.contains(hz):
         raise InputError(key, text, f"a pitch {ranges.PITCH.text()}")
     return hz
-
-
-def cents(frequency: float, reference: float) -> float:
-    """Interval from ``reference`` up to ``frequency`` in cents (1200 log2 of the ratio)."""
-    return 1200.0 * math.log2(frequency / reference)
 
 
 def note_name(frequency: float) -> tuple[str, float]:

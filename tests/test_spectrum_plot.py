@@ -37,4 +37,4 @@ def test_the_axis_holds_the_identified_partials_and_labels_stay_apart():
     dots = next(line for line in ax.get_lines() if line.get_label() == "partials found")
     x, y = dots.get_xdata(), dots.get_ydata()
     assert np.allclose(y, np.interp(x, freqs, level))
-    assert fig.axes[1].get_ylabel() == "T60 (s)"  # the lower panel is decay, not a second level scale
+    assert fig.axes[1].get_ylabel() == "measured T60 (s)"  # the lower panel is decay, not a second level scale

@@ -26,7 +26,7 @@ import numpy as np
 import scipy.fft
 import scipy.optimize
 
-LN1000 = 3.0 * math.log(10.0)  # an amplitude falls by 60 dB when r t = 3 ln 10
+from ..notation import LN1000  # noqa: E402  (60 dB of decay: r t = 3 ln 10)
 
 # Settings of the method, chosen on synthetic decays (tests/test_recording.py), no source:
 BAND_HALF_HZ = 20.0  # flat part of each band's mask, either side of the seed

@@ -14,11 +14,12 @@ with its own steady frequency and envelope, beating).
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
 import numpy as np
 import scipy.fft
+
+from ..notation import cents
 
 WINDOW_S = 0.1  # frequency measured in frames this long [s], a quarter frame apart
 GLIDE_MIN_CENTS = 20.0  # a drift smaller than this is not called a glide (beats wobble less)
@@ -65,7 +66,7 @@ class Track:
     @property
     def cents(self) -> float:
         """Settled minus initial [cents]; negative when the partial falls."""
-        return 1200.0 * math.log2(self.settled / self.initial)
+        return cents(self.settled, self.initial)
 
     @property
     def is_glide(self) -> bool:

@@ -9,6 +9,8 @@ from typing import Annotated, List, Optional
 import typer
 
 from ..errors import InputError, RecordingError
+from ..notation import mode_label
+from .options import Force
 from .common import Format, Physics, emit, fail, num, signed, t60, write_atomic
 
 COLUMNS = [
@@ -64,7 +66,7 @@ def listen(
     plot: Annotated[Optional[Path], typer.Option(
         help="Also draw the spectrum with the partials and matched modes marked (PNG).",
         metavar="FILE.png")] = None,
-    force: Annotated[bool, typer.Option("--force", help="Overwrite an existing --plot file.")] = False,
+    force: Force = False,
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
 ) -> None:
     """Find the partials of a tap recording: frequency, level and decay time (T60).
@@ -132,7 +134,7 @@ def listen(
                "flags": list(p.flags), "remarks": _remarks(p)}
         mt = labels.get(id(p))
         if mt is not None:
-            row.update(m=mt.m, n=mt.n, mode=f"({mt.m},{mt.n})", model_hz=mt.model_frequency,
+            row.update(m=mt.m, n=mt.n, mode=mode_label(mt.m, mt.n), model_hz=mt.model_frequency,
                        cents_from_model=mt.cents)
             pair = partners.get(id(p))
             if pair is not None:
@@ -238,7 +240,7 @@ def _fit_losses(ident, rows, payload, notes) -> None:
         notes.append("no loss fit: too few matched partials with T60 > 0.5 s")
     dominant = {}
     for r in lf.rows:
-        dominant.setdefault(r["dominant"], []).append(f"({r['m']},{r['n']})")
+        dominant.setdefault(r["dominant"], []).append(mode_label(r["m"], r["n"]))
     notes.append("what damps each matched partial most: " +
                  "; ".join(f"{k}: {' '.join(v)}" for k, v in dominant.items()))
 
@@ -259,7 +261,7 @@ def _load_drum(source: str):
 
 
 def _targets(texts: list[str]) -> list[tuple[tuple[int, int], float]]:
-    from .tune import parse_targets
+    from .options import parse_targets
 
     for text in texts:
         if "=" not in text:
@@ -319,7 +321,7 @@ def _tune(drum, targets, physics: str) -> dict:
 
 
 def _tuning_notes(t: dict) -> list[str]:
-    modes = ", ".join(f"({x['m']},{x['n']}) {x['current_hz']:.2f} -> {x['predicted_hz']:.2f} Hz "
+    modes = ", ".join(f"{mode_label(x['m'], x['n'])} {x['current_hz']:.2f} -> {x['predicted_hz']:.2f} Hz "
                       f"(target {x['target_hz']:.2f})" for x in t["targets"])
     return [f"to reach the target: tension {t['tension_n_per_m']:.1f} N/m "
             f"({t['change_percent']:+.1f} % from the fitted {t['current_tension_n_per_m']:.1f} N/m); {modes}"] + \
@@ -332,12 +334,11 @@ def shown_partials(analysis):
 
 
 def _draw(path: Path, spectrum, analysis, ident, name: str) -> None:
-    """The spectrum picture (:func:`membrane.render.spectrum.spectrum_figure`) to a PNG."""
-    from ..render.spectrum import spectrum_figure
+    """The spectrum picture, drawn by :mod:`membrane.render.spectrum`."""
+    from ..render.spectrum import write_spectrum_png
 
     freqs, level = spectrum
-    fig = spectrum_figure(freqs, level, shown_partials(analysis), ident=ident, name=name)
-    fig.savefig(path, format="png")
+    write_spectrum_png(path, freqs, level, shown_partials(analysis), ident=ident, name=name)
 
 
 __all__ = ["listen", "parse_channel"]

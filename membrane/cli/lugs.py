@@ -9,6 +9,8 @@ from typing import Annotated, List, Optional
 
 import typer
 
+from ..notation import mode_label
+from .options import Force
 from .common import DrumFile, Format, Physics, drum_from, emit, fail, num, signed, with_drum_flags, write_atomic
 
 SPLIT_COLUMNS = [
@@ -76,7 +78,7 @@ def lugs(
                                        min=1, max=10)] = 3,
     plot: Annotated[Optional[Path], typer.Option(
         help="Draw the rim from above: each lug's deviation and turn, the (1,1) pair's nodal lines (PNG, SVG, PDF).")] = None,
-    force: Annotated[bool, typer.Option(help="Overwrite --plot if it exists.")] = False,
+    force: Force = False,
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
 ) -> None:
     """Uneven lugs: which partials split, by how much and which way, and which lugs to turn.
@@ -161,7 +163,7 @@ def lugs(
                                    physics="ideal" if physics.value == "ideal" else "stiff",
                                    method=method, m_max=1, n_max=1).find(1, 1)
         for s in table.splits:
-            split_rows.append({"mode": f"({s.m},{s.n})", "m": s.m, "n": s.n, "low_hz": s.low_hz,
+            split_rows.append({"mode": mode_label(s.m, s.n), "m": s.m, "n": s.n, "low_hz": s.low_hz,
                                "high_hz": s.high_hz, "frequency_hz": [s.low_hz, s.high_hz],
                                "beat_hz": s.beat_hz, "cents": s.cents, "orientation_deg": s.orientation_deg})
         angles = np.degrees(lug_angles(n_lugs))

@@ -6,6 +6,7 @@ from typing import Annotated, List, Optional
 
 import typer
 
+from ..notation import PHYSICS_HELP, mode_list
 from .common import (HEAD_HELP, REFERENCE_HELP, DrumFile, Format, LossChoice, LossesOpt, Physics,
                      decay_words, drum_from, emit, fail, num, parse_mode, parse_reference, signed, t60,
                      with_drum_flags)
@@ -28,7 +29,7 @@ def modes(
     drum_file: DrumFile = None,
     drum_flags: dict = None,
     physics: Annotated[Physics, typer.Option(
-        help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
+        help=PHYSICS_HELP)
     ] = Physics.full,
     losses: LossesOpt = LossChoice.all,
     m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters (0-50).")] = 6,
@@ -75,7 +76,7 @@ def modes(
         fit_note = []
     else:
         title += f"; harmonic fit f0 = {harmonic.fundamental:.2f} Hz, rms {harmonic.rms_cents:.1f} cents"
-        fit_note = [f"harmonic fit through {', '.join(f'({m},{n})' for m, n in harmonic.fitted)} "
+        fit_note = [f"harmonic fit through {mode_list(harmonic.fitted)} "
                     "(marked 'in fit'); the harmonic columns are left empty for the other modes"]
     columns = COLUMNS if format is not Format.csv else \
         [("m", "m", str), ("n", "n", str)] + [c for c in COLUMNS if c[0] not in ("mode", "fit_mark")] + \

@@ -11,6 +11,8 @@ from typing import Annotated, List, Optional
 import typer
 
 from .. import presets, ranges
+from ..notation import PHYSICS_HELP, mode_label
+from .options import Force
 from ..units import to_si
 from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, check_float, check_target,
                      decay_words, drum_from, emit, fail, num, parse_mode, t60, with_drum_flags,
@@ -154,10 +156,10 @@ def strike(
     ] = None,
     plot: Annotated[Optional[str], typer.Option(
         help="Draw each partial's level against the strike radius to this PNG file.")] = None,
-    force: Annotated[bool, typer.Option(help="Overwrite existing --out and --plot files.")] = False,
+    force: Force = False,
     drum_flags: dict = None,
     physics: Annotated[Physics, typer.Option(
-        help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
+        help=PHYSICS_HELP)
     ] = Physics.full,
     losses: LossesOpt = LossChoice.all,
     m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters (0-50).")] = 6,
@@ -240,7 +242,7 @@ def strike(
     title = (f"{drum.name}: {physics.value} physics{decay_words(physics.value, losses.value)}; strike at r/a = {at:.3f}, {how}; listener "
              f"{listener_angle:g} deg off the axis at {distance:g} m")
     if advice is not None:
-        title += (f"; best for {' '.join(f'({m},{n})' for m, n in advice.chosen)}"
+        title += (f"; best for {' '.join(mode_label(m, n) for m, n in advice.chosen)}"
                   f"{' of the ' + head + ' head' if head else ''}: r/a = {advice.at:.3f}, "
                   f"contrast {advice.contrast_db:+.1f} dB")
     payload = {

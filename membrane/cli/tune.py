@@ -9,10 +9,12 @@ from typing import Annotated, List, Optional
 import typer
 
 from ..errors import InputError
+from ..notation import PHYSICS_HELP, mode_label
 from ..units import note_name, parse_pitch
 from .tune_heads import INTERVAL_HELP
-from .common import (DrumFile, Format, Physics, check_float, drum_from, emit, fail, num, parse_mode,
-                     t60, with_drum_flags)
+from .options import parse_targets
+from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, check_float, decay_words, drum_from,
+                     emit, fail, num, parse_mode, t60, with_drum_flags)
 
 SLACK_SHOWN = 10.0  # the slack limit is shown when the suggestion is within this factor of it
 TARGET_HELP = ("Target pitch: Hz ('87.3', '87.3 Hz'), a note ('F2', 'F#2', 'Bb2') or either with cents "
@@ -40,23 +42,6 @@ class Free(str, Enum):
 
     areal_density = "areal-density"
     volume = "volume"
-
-
-def parse_targets(texts: list[str], mode: str | None) -> list[tuple[tuple[int, int], float, str]]:
-    """``--target`` values (with ``--mode`` for the bare form) -> ((m, n), Hz, text)."""
-    out = []
-    for text in texts:
-        if "=" in text:
-            left, pitch = text.split("=", 1)
-            m_n = parse_mode(left, key="--target")
-        elif mode is None:
-            fail("--target", text, "say which mode: add --mode M,N, or write the target as M,N=PITCH")
-        else:
-            m_n, pitch = parse_mode(mode), text
-        out.append((m_n, parse_pitch(pitch, key="--target"), text))
-    if mode is not None and all("=" in t for t in texts):
-        fail("--mode", mode, "--mode goes with a bare --target PITCH; with M,N=PITCH targets leave it out")
-    return out
 
 
 def parse_lug_pitches(texts: list[str]) -> tuple[float, ...]:
@@ -111,8 +96,9 @@ def tune(
     ] = OtherHead.free,
     drum_flags: dict = None,
     physics: Annotated[Physics, typer.Option(
-        help="ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body.")
+        help=PHYSICS_HELP)
     ] = Physics.full,
+    losses: LossesOpt = LossChoice.all,
     m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters in the new mode table (0-50).")] = 6,
     n_max: Annotated[int, typer.Option(help="Highest number of nodal circles in the new mode table (1-50).")] = 3,
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
@@ -141,7 +127,7 @@ def tune(
         if not heads_targets and not intervals:
             fail("--target", None, "give a target (--target HEAD:M,N=PITCH) or an interval (--interval)")
         tune_heads.run(drum, targets=heads_targets, intervals=intervals, physics=physics.value,
-                       other=other_head.value, m_max=m_max, n_max=n_max, fmt=format)
+                       other=other_head.value, m_max=m_max, n_max=n_max, fmt=format, losses=losses.value)
         return
     targets = parse_targets(target or [], mode)
     if mode is not None and not targets:
@@ -154,7 +140,8 @@ def tune(
     if free is not None and len(targets) < 2:
         fail("--free", free.value, "a second free parameter needs at least two --target M,N=PITCH")
 
-    payload = {"drum": drum.name, "physics": physics.value, "current_tension_n_per_m": drum.head.tension,
+    payload = {"drum": drum.name, "physics": physics.value, "losses": losses.value,
+               "current_tension_n_per_m": drum.head.tension,
                "tension_n_per_m": drum.head.tension, "change_percent": 0.0, "predicted_hz": None,
                "warnings": [], "cautions": list(tuning.CAUTIONS)}
     result = None
@@ -162,7 +149,7 @@ def tune(
         try:
             result = tuning.tension_for(drum, targets=[(mn, hz) for mn, hz, _ in targets],
                                         physics=physics.value, free=free.value if free else None,
-                                        m_max=m_max, n_max=n_max)
+                                        m_max=m_max, n_max=n_max, losses=losses.value)
         except InputError as exc:
             if exc.key == "target" and len(targets) == 1:
                 raise InputError("--target", targets[0][2], exc.allowed) from None
@@ -290,7 +277,7 @@ def _print_human(fmt: Format, drum, payload: dict, result) -> None:
         emit(fmt, payload=payload, rows=head_rows, columns=[("what", "", str), ("value", "", str)],
              title=f"{drum.name}: tune with {payload['physics']} physics")
         gap()
-        rows = [{"mode": f"({t['m']},{t['n']})", "target": _hz_note(t["target_hz"]), "now": t["current_hz"],
+        rows = [{"mode": mode_label(t["m"], t["n"]), "target": _hz_note(t["target_hz"]), "now": t["current_hz"],
                  "predicted": t["predicted_hz"], "residual": t["residual_cents"]} for t in payload["targets"]]
         emit(fmt, payload=payload, rows=rows, title="targets",
              columns=[("mode", "mode", str), ("target", "target (Hz)", str), ("now", "now (Hz)", num(2)),
@@ -300,7 +287,8 @@ def _print_human(fmt: Format, drum, payload: dict, result) -> None:
         ref = payload["reference"]
         # the mode's own label: air rows as "air (m,q,p)", heads and branches in words
         mode_rows = [dict(row, mode=mode.label) for row, mode in zip(payload["modes"], result.modes.modes)]
-        emit(fmt, payload=payload, rows=mode_rows, title=f"modes at the suggestion, ratios to ({ref['m']},{ref['n']})",
+        emit(fmt, payload=payload, rows=mode_rows, title=f"modes at the suggestion, ratios to ({ref['m']},{ref['n']})"
+             f"{decay_words(payload['physics'], payload['losses'])}",
              columns=[("mode", "mode", str), ("frequency_hz", "f (Hz)", num(2)), ("decay_s", "T60 (s)", t60),
                       ("ratio", "ratio", num(4)), ("note", "note", str), ("cents_from_note", "cents off", _signed(1))],
              notes=payload["notes"])

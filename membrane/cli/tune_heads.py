@@ -15,41 +15,18 @@ from __future__ import annotations
 import re
 import sys
 
-from ..units import parse_pitch
-from .common import Format, emit, fail, num, parse_mode, t60
+from .common import Format, decay_words, emit, fail, num, parse_mode, t60
+from .options import parse_targets, split_head
 
-HEAD_WORDS = ("struck", "resonant")
 INTERVAL_HELP = ("Interval between two modes, usually of the two heads: HEAD:M,N=HEAD:M,N+AMOUNT, the "
                  "left mode AMOUNT above the right one; AMOUNT in semitones ('+3st', '-2 semitones') or "
                  "cents ('+300c'); leave it out for unison. The left head's tension is tuned; repeat for more. "
                  "Example: --interval resonant:0,1=struck:0,1+3st")
 
 
-def split_head(text: str, default: str, *, key: str) -> tuple[str, str]:
-    """``"resonant:0,1"`` -> ("resonant", "0,1"); no prefix -> (default, text)."""
-    if ":" in text:
-        head, rest = text.split(":", 1)
-        head = head.strip().lower()
-        if head not in HEAD_WORDS:
-            fail(key, text, "the head before ':' must be struck or resonant, e.g. resonant:0,1=C3")
-        return head, rest
-    return default, text
-
-
 def parse_head_targets(texts, mode: str | None, head: str):
-    """``--target`` values -> ((head, (m, n)), Hz, text)."""
-    out = []
-    for text in texts:
-        who, rest = split_head(text, head, key="--target")
-        if "=" in rest:
-            left, pitch = rest.split("=", 1)
-            m_n = parse_mode(left, key="--target")
-        elif mode is None:
-            fail("--target", text, "say which mode: add --mode M,N, or write the target as [HEAD:]M,N=PITCH")
-        else:
-            m_n, pitch = parse_mode(mode), rest
-        out.append(((who, m_n), parse_pitch(pitch, key="--target"), text))
-    return out
+    """``--target`` values -> ((head, (m, n)), Hz, text) (:func:`.options.parse_targets`)."""
+    return parse_targets(texts, mode, head=head)
 
 
 _AMOUNT = re.compile(r"^\s*([+-]?\s*\d+(?:\.\d+)?)\s*(st|semitones?|c|cents?)\s*$", re.IGNORECASE)
@@ -80,13 +57,14 @@ def parse_interval(text: str, head: str):
             cents)
 
 
-def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max: int, fmt: Format) -> None:
+def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max: int, fmt: Format,
+        losses: str = "all") -> None:
     """Solve and print a two-headed tuning (targets and intervals on named heads)."""
     from .. import tuning
     from ..head_tuning import HeadTarget, Interval, find_mode, head_of, pair_spread, tune_heads
 
     result = tune_heads(
-        drum, physics=physics, other=other, m_max=m_max, n_max=n_max,
+        drum, physics=physics, other=other, m_max=m_max, n_max=n_max, losses=losses,
         targets=[HeadTarget(h, m, n, hz) for (h, (m, n)), hz, _ in targets],
         intervals=[Interval(h, m, n, rh, rm, rn, c) for (h, (m, n)), (rh, (rm, rn)), c in intervals])
     heads = {}
@@ -119,7 +97,7 @@ def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max
             if spread is not None:
                 spreads[f"{t.m},{t.n}"] = spread
     payload = {
-        "drum": drum.name, "physics": physics, "other_head": other,
+        "drum": drum.name, "physics": physics, "losses": losses, "other_head": other,
         "tension_n_per_m": result.tension["struck"],
         "current_tension_n_per_m": result.current["struck"],
         "change_percent": result.change_percent("struck"),
@@ -170,7 +148,8 @@ def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max
         ref = result.met[0]
         mode_rows = [dict(row, mode=mode.label) for row, mode in zip(payload["modes"], result.modes.modes)]
         emit(fmt, payload=payload, rows=mode_rows,
-             title=f"modes at the suggestion, ratios to the ({ref.m},{ref.n}) of the {ref.head} head",
+             title=f"modes at the suggestion, ratios to the ({ref.m},{ref.n}) of the {ref.head} head"
+             f"{decay_words(physics, losses)}",
              columns=[("mode", "mode", str), ("frequency_hz", "f (Hz)", num(2)), ("decay_s", "T60 (s)", t60),
                       ("ratio", "ratio", num(4)), ("note", "note", str)],
              notes=payload["notes"])

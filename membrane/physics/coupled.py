@@ -47,7 +47,7 @@ from .cavity import duct_norms, duct_terms, duct_wavenumbers
 from .radiation import Quadrature, RadiationTable
 from .vacuum import RadialBasis, _ratio_i, ideal_basis, stiff_basis
 
-LN1000 = 3.0 * np.log(10.0)
+from ..notation import LN1000, POISSON_RATIO  # noqa: E402
 
 
 def _jx(m: int, p: int, x):
@@ -76,7 +76,7 @@ class RitzSpace:
         Add the rim function (default True).
     """
 
-    def __init__(self, basis: RadialBasis, *, edge: str = "clamped", poisson_ratio: float = 0.38,
+    def __init__(self, basis: RadialBasis, *, edge: str = "clamped", poisson_ratio: float = POISSON_RATIO,
                  rim: bool = True):
         self.basis = basis
         self.m, self.radius = basis.m, basis.radius

@@ -50,6 +50,7 @@ import numpy as np
 from scipy import linalg, optimize, special
 
 from ..errors import InputError
+from ..notation import cents
 from ..physics.vacuum import RadialBasis, _i_hat, ideal_basis, stiff_basis
 from .prestress import RimTension, _profiles
 
@@ -99,7 +100,7 @@ class Split:
     @property
     def cents(self) -> float:
         """The split in cents."""
-        return 1200.0 * math.log2(self.high_hz / self.low_hz)
+        return cents(self.high_hz, self.low_hz)
 
     @property
     def relative(self) -> float:

@@ -29,7 +29,7 @@ from scipy import special
 from ..bessel import jn_zeros, jnp_zeros, lommel
 from ..errors import SolverError
 
-EDGES = ("clamped", "hinged")
+from ..notation import EDGES  # noqa: E402
 
 
 def _ratio_i(m: int, y):

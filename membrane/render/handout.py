@@ -15,6 +15,7 @@ import textwrap
 
 import numpy as np
 
+from ..notation import mode_list
 from .shape import head_words, physics_words, reference_of, wrap_title
 from .stills import draw_nodal_lines, mode_grid, ratio_chart
 
@@ -78,7 +79,7 @@ def strike_advice(modeset):
     except MembraneError as exc:  # e.g. too few modes solved to weigh some against the rest
         return None, [f"No strike-point advice for these modes: {exc}."]
     a = modeset.drum.head.radius
-    names = ", ".join(f"({m},{n})" for m, n in fit.fitted)
+    names = mode_list(fit.fitted)
     loud = sorted(advice.partials, key=lambda p: -p.level_db)[:5]
     heard = "; ".join(f"{p.mode.label} {p.level_db:+.0f} dB" for p in loud)
     return advice, [
@@ -285,7 +286,7 @@ def _cover(modeset, size, reference, fit, advice, sentences):
         "Page 2 lists the solved modes with their nearest notes; page 3 draws their shapes; page 4 "
         "places each mode against the best harmonic series, in cents (100 cents = one semitone).",
         f"Physics: {physics_words(modeset.physics)}."
-        + (f" Best harmonic series through {', '.join(f'({m},{n})' for m, n in fit.fitted)}: "
+        + (f" Best harmonic series through {mode_list(fit.fitted)}: "
            f"f0 = {fit.fundamental:.2f} Hz, rms deviation {fit.rms_cents:.1f} cents." if fit else
            " Too few modes were solved for a harmonic fit."),
     ], pt=BODY_PT - 0.5)
@@ -318,7 +319,7 @@ def _table_page(modeset, size, reference, fit):
     ]
     if fit is not None:
         legend.append(f"harmonic (fit): for the modes of the harmonic fit (shaded rows: "
-                      f"{', '.join(f'({m},{n})' for m, n in fit.fitted)}), the whole multiple of "
+                      f"{mode_list(fit.fitted)}), the whole multiple of "
                       f"f0 = {fit.fundamental:.2f} Hz each is taken as, and its distance from it in cents "
                       "(100 cents = one semitone). Other modes are not part of the fit.")
     if any(mode.decay is not None for mode in modeset.modes):

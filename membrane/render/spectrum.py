@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..notation import mode_label
 BAND_FACTOR = 1.5  # the axis runs to this many times the highest matched (or loud) partial
 LOUD_DB = -40.0  # without a model: the band holds the partials within this of the strongest
 MODEL_COLOUR = "tab:blue"
@@ -84,7 +85,7 @@ def spectrum_figure(frequencies, level_db, partials, *, ident=None, name: str = 
                              label="model modes at the fitted tension" if len(seen) == 1 and axis is ax else None)
             peak = float(np.interp(mt.partial.frequency, freqs, level))
             spots.append((mt.partial.frequency, peak))
-            texts.append(f"({mt.m},{mt.n})" + (" res." if mt.head == "resonant" else ""))
+            texts.append(mode_label(mt.m, mt.n) + (" res." if mt.head == "resonant" else ""))
         title = (f"{name}: fitted tension {ident.tension:.0f} N/m, {len(ident.matches)} partials "
                  f"labelled, rms {ident.rms_cents:.1f} cents")
     else:
@@ -114,11 +115,11 @@ def spectrum_figure(frequencies, level_db, partials, *, ident=None, name: str = 
         ax.plot(ring, np.interp(ring, freqs, level), "o", ms=9, mfc="none", mec=PARTIAL_COLOUR, mew=1.0,
                 label="split pairs (uneven tension)", zorder=3)
         ax.legend(loc="upper right", fontsize=8, framealpha=0.9)
-        words = "; ".join(f"({sp.m},{sp.n}) beat {sp.beat_hz:.2f} Hz" for sp in splits)
+        words = "; ".join(f"{mode_label(sp.m, sp.n)} beat {sp.beat_hz:.2f} Hz" for sp in splits)
         bx.set_title(wrap_title(f"split pairs: {words}", 10.5, 9), fontsize=9, color=PARTIAL_COLOUR, loc="left")
     bx.set_xlim(0, top)
     bx.set_xlabel("frequency (Hz)")
-    bx.set_ylabel("T60 (s)")
+    bx.set_ylabel("measured T60 (s)")  # the recording's decay, not a model's: no losses to name
     bx.grid(alpha=0.3, which="both")
     if spots:
         place_labels(ax, spots, texts, candidates=_LABEL_OFFSETS, fontsize=8,
@@ -126,3 +127,8 @@ def spectrum_figure(frequencies, level_db, partials, *, ident=None, name: str = 
                      gid_prefix="mode", background=True)
         fig.set_layout_engine("none")  # keep the layout the labels were placed in
     return fig
+
+
+def write_spectrum_png(path, frequencies, level_db, partials, *, ident=None, name: str = "") -> None:
+    """:func:`spectrum_figure` written to ``path`` as a PNG (the caller makes it atomic)."""
+    spectrum_figure(frequencies, level_db, partials, ident=ident, name=name).savefig(path, format="png")

@@ -12,6 +12,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from ..notation import cents, mode_label
+
 from .shape import (CMAP, drawn_head, head_words, mode_caption, nodal_lines, physics_words, reference_of,
                     sample, wrap_title)
 
@@ -255,7 +257,7 @@ def mode_grid(modeset, *, count: int = 12, columns: int = 4, reference: tuple[in
 def _short_label(mode) -> str:
     """(m,n) with a shell's branch and head abbreviated, for crowded charts."""
     words = {"in-phase": " in-ph.", "opposed": " opp."}.get(mode.branch or "", "")
-    return f"({mode.m},{mode.n}){words}" + (" res." if mode.head == "resonant" else "")
+    return f"{mode_label(mode.m, mode.n)}{words}" + (" res." if mode.head == "resonant" else "")
 
 
 def ratio_points(modeset, *, fit_modes=None, span: float = 1.3):
@@ -281,7 +283,7 @@ def ratio_points(modeset, *, fit_modes=None, span: float = 1.3):
         h = mode.frequency / f0
         nearest = max(1, int(round(h)))
         points.append({"label": mode.label, "short": _short_label(mode), "m": mode.m, "n": mode.n,
-                       "harmonic_ratio": h, "cents": 1200.0 * np.log2(h / nearest),
+                       "harmonic_ratio": h, "cents": cents(h, nearest),
                        "fitted": modeset.is_fitted(mode, fit)})
     return fit, points
 
