@@ -149,7 +149,7 @@ class Identification:
     modes: ModeSet
     beyond: tuple[Partial, ...] = ()
     uncertainty: float = math.nan
-    physics: str = "stiff"
+    physics: str = "full"
 
     @property
     def rms_cents(self) -> float:
@@ -198,7 +198,7 @@ def weights(partials) -> np.ndarray:
     return w_level * w_sustain
 
 
-def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float = MAX_CENTS,
+def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = MAX_CENTS,
              split_cents: float = SPLIT_CENTS, progress=None) -> Identification:
     """Fit the struck head's tension to measured partials and label them (m, n).
 
@@ -209,7 +209,8 @@ def identify(drum: Drum, partials, *, physics: str = "stiff", max_cents: float =
     partials : sequence of Partial
         Measured partials (any order).
     physics : {"ideal", "stiff", "full"}
-        The model, as in :func:`membrane.solve`.
+        The model, as in :func:`membrane.solve`; full physics (air and body) by default,
+        as ``membrane listen --drum`` has it.
     max_cents : float
         Largest distance of a partial from its mode to count as a match [cents].
     split_cents : float

@@ -229,3 +229,15 @@ def test_a_soft_mallet_preview_with_full_physics_gives_the_tension(kettle, tmp_p
     assert result.tension == pytest.approx(kettle.head.tension, rel=0.01)
     right = [mt for mt in result.matches if nearest(truth, mt.partial.frequency) == (mt.m, mt.n)]
     assert len(right) >= 8
+
+
+def test_library_identify_defaults_to_full_physics_like_the_cli():
+    # the CLI's --physics default (cli/listen.py) and the library's must name the same model
+    import inspect
+
+    from membrane.cli.common import Physics
+    from membrane.cli.listen import listen
+
+    cli_default = inspect.signature(listen).parameters["physics"].default
+    assert cli_default is Physics.full
+    assert inspect.signature(identify).parameters["physics"].default == cli_default.value

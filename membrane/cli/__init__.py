@@ -84,6 +84,22 @@ app = typer.Typer(
     context_settings={"help_option_names": ["-h", "--help"]},
 )
 
+def _show_version(value: bool) -> None:
+    if value:
+        from .. import __version__
+
+        print(f"membrane {__version__}")
+        raise typer.Exit(0)
+
+
+@app.callback()
+def _root(
+    version: bool = typer.Option(False, "--version", is_eager=True, callback=_show_version,
+                                 help="Print the version and exit."),
+) -> None:
+    """Modes, partials, tuning and pictures of circular drumheads."""
+
+
 # Each command module is imported here; the modules import nothing heavy at load
 # (the library is imported inside each command), so --help stays fast.
 from .examples import examples  # noqa: E402

@@ -9,12 +9,13 @@ import typer
 
 from ..drum import builtin_names, builtin_text, load_drum
 from .common import write_atomic
+from .options import Force
 
 
 def examples(
     name: Annotated[Optional[str], typer.Argument(help="Example to print or copy.")] = None,
     out: Annotated[Optional[Path], typer.Option(help="Write the example's drum file here.")] = None,
-    force: Annotated[bool, typer.Option(help="Overwrite --out if it exists.")] = False,
+    force: Force = False,
     films: Annotated[bool, typer.Option("--films", help="List the head films and skins a drum file can "
                                         "name (film = ...), with their data and its sources.")] = False,
 ) -> None:

@@ -10,6 +10,7 @@ import typer
 
 from ..errors import InputError, RecordingError
 from ..notation import mode_label
+from .options import Force
 from .common import Format, Physics, emit, fail, num, signed, t60, write_atomic
 
 COLUMNS = [
@@ -65,7 +66,7 @@ def listen(
     plot: Annotated[Optional[Path], typer.Option(
         help="Also draw the spectrum with the partials and matched modes marked (PNG).",
         metavar="FILE.png")] = None,
-    force: Annotated[bool, typer.Option("--force", help="Overwrite an existing --plot file.")] = False,
+    force: Force = False,
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
 ) -> None:
     """Find the partials of a tap recording: frequency, level and decay time (T60).
@@ -260,7 +261,7 @@ def _load_drum(source: str):
 
 
 def _targets(texts: list[str]) -> list[tuple[tuple[int, int], float]]:
-    from .tune import parse_targets
+    from .options import parse_targets
 
     for text in texts:
         if "=" not in text:
@@ -333,12 +334,11 @@ def shown_partials(analysis):
 
 
 def _draw(path: Path, spectrum, analysis, ident, name: str) -> None:
-    """The spectrum picture (:func:`membrane.render.spectrum.spectrum_figure`) to a PNG."""
-    from ..render.spectrum import spectrum_figure
+    """The spectrum picture, drawn by :mod:`membrane.render.spectrum`."""
+    from ..render.spectrum import write_spectrum_png
 
     freqs, level = spectrum
-    fig = spectrum_figure(freqs, level, shown_partials(analysis), ident=ident, name=name)
-    fig.savefig(path, format="png")
+    write_spectrum_png(path, freqs, level, shown_partials(analysis), ident=ident, name=name)
 
 
 __all__ = ["listen", "parse_channel"]

@@ -10,6 +10,7 @@ from typing import Annotated, List, Optional
 import typer
 
 from ..notation import mode_label
+from .options import Force
 from .common import DrumFile, Format, Physics, drum_from, emit, fail, num, signed, with_drum_flags, write_atomic
 
 SPLIT_COLUMNS = [
@@ -77,7 +78,7 @@ def lugs(
                                        min=1, max=10)] = 3,
     plot: Annotated[Optional[Path], typer.Option(
         help="Draw the rim from above: each lug's deviation and turn, the (1,1) pair's nodal lines (PNG, SVG, PDF).")] = None,
-    force: Annotated[bool, typer.Option(help="Overwrite --plot if it exists.")] = False,
+    force: Force = False,
     format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
 ) -> None:
     """Uneven lugs: which partials split, by how much and which way, and which lugs to turn.
@@ -90,7 +91,8 @@ def lugs(
 
     from .. import lugs as lugmod
     from ..physics.prestress import lug_angles, rim_tension
-    from ..tuning import CAUTIONS, LUG_RULE
+    from ..safety import CAUTIONS
+    from ..tuning import LUG_RULE
     from .tune import parse_lug_pitches
 
     if hoop_stiffness is not None and not (math.isfinite(hoop_stiffness) and hoop_stiffness > 0):

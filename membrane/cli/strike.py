@@ -12,6 +12,7 @@ import typer
 
 from .. import presets, ranges
 from ..notation import PHYSICS_HELP, mode_label
+from .options import Force
 from ..units import to_si
 from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, check_float, check_target,
                      decay_words, drum_from, emit, fail, num, parse_mode, t60, with_drum_flags,
@@ -47,8 +48,7 @@ NOTE_MODEL = ("model: point blow with a half-sine force pulse; far field of the 
               "rigid baffle (approximate for a kettle or shell); the degenerate partner of each "
               "(m>=1) mode has a nodal line through the strike point and is silent")
 NOTE_LEVELS = "levels in dB relative to the loudest partial at the start of the sound"
-NOTE_HEARING = ("caution: the preview peaks at -1 dBFS; start playback quietly. Loud drums damage "
-                "hearing: follow local practice on hearing protection")
+from ..safety import PREVIEW_HEARING as NOTE_HEARING  # noqa: E402  (one wording of the caution)
 
 
 def _parse_best_for(values: list[str] | None, drum_file: str | None,
@@ -155,7 +155,7 @@ def strike(
     ] = None,
     plot: Annotated[Optional[str], typer.Option(
         help="Draw each partial's level against the strike radius to this PNG file.")] = None,
-    force: Annotated[bool, typer.Option(help="Overwrite existing --out and --plot files.")] = False,
+    force: Force = False,
     drum_flags: dict = None,
     physics: Annotated[Physics, typer.Option(
         help=PHYSICS_HELP)

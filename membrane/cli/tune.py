@@ -12,6 +12,7 @@ from ..errors import InputError
 from ..notation import PHYSICS_HELP, mode_label
 from ..units import note_name, parse_pitch
 from .tune_heads import INTERVAL_HELP
+from .options import parse_targets
 from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, check_float, decay_words, drum_from,
                      emit, fail, num, parse_mode, t60, with_drum_flags)
 
@@ -41,23 +42,6 @@ class Free(str, Enum):
 
     areal_density = "areal-density"
     volume = "volume"
-
-
-def parse_targets(texts: list[str], mode: str | None) -> list[tuple[tuple[int, int], float, str]]:
-    """``--target`` values (with ``--mode`` for the bare form) -> ((m, n), Hz, text)."""
-    out = []
-    for text in texts:
-        if "=" in text:
-            left, pitch = text.split("=", 1)
-            m_n = parse_mode(left, key="--target")
-        elif mode is None:
-            fail("--target", text, "say which mode: add --mode M,N, or write the target as M,N=PITCH")
-        else:
-            m_n, pitch = parse_mode(mode), text
-        out.append((m_n, parse_pitch(pitch, key="--target"), text))
-    if mode is not None and all("=" in t for t in texts):
-        fail("--mode", mode, "--mode goes with a bare --target PITCH; with M,N=PITCH targets leave it out")
-    return out
 
 
 def parse_lug_pitches(texts: list[str]) -> tuple[float, ...]:

@@ -15,41 +15,18 @@ from __future__ import annotations
 import re
 import sys
 
-from ..units import parse_pitch
 from .common import Format, decay_words, emit, fail, num, parse_mode, t60
+from .options import parse_targets, split_head
 
-HEAD_WORDS = ("struck", "resonant")
 INTERVAL_HELP = ("Interval between two modes, usually of the two heads: HEAD:M,N=HEAD:M,N+AMOUNT, the "
                  "left mode AMOUNT above the right one; AMOUNT in semitones ('+3st', '-2 semitones') or "
                  "cents ('+300c'); leave it out for unison. The left head's tension is tuned; repeat for more. "
                  "Example: --interval resonant:0,1=struck:0,1+3st")
 
 
-def split_head(text: str, default: str, *, key: str) -> tuple[str, str]:
-    """``"resonant:0,1"`` -> ("resonant", "0,1"); no prefix -> (default, text)."""
-    if ":" in text:
-        head, rest = text.split(":", 1)
-        head = head.strip().lower()
-        if head not in HEAD_WORDS:
-            fail(key, text, "the head before ':' must be struck or resonant, e.g. resonant:0,1=C3")
-        return head, rest
-    return default, text
-
-
 def parse_head_targets(texts, mode: str | None, head: str):
-    """``--target`` values -> ((head, (m, n)), Hz, text)."""
-    out = []
-    for text in texts:
-        who, rest = split_head(text, head, key="--target")
-        if "=" in rest:
-            left, pitch = rest.split("=", 1)
-            m_n = parse_mode(left, key="--target")
-        elif mode is None:
-            fail("--target", text, "say which mode: add --mode M,N, or write the target as [HEAD:]M,N=PITCH")
-        else:
-            m_n, pitch = parse_mode(mode), rest
-        out.append(((who, m_n), parse_pitch(pitch, key="--target"), text))
-    return out
+    """``--target`` values -> ((head, (m, n)), Hz, text) (:func:`.options.parse_targets`)."""
+    return parse_targets(texts, mode, head=head)
 
 
 _AMOUNT = re.compile(r"^\s*([+-]?\s*\d+(?:\.\d+)?)\s*(st|semitones?|c|cents?)\s*$", re.IGNORECASE)
@@ -83,7 +60,7 @@ def parse_interval(text: str, head: str):
 def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max: int, fmt: Format,
         losses: str = "all") -> None:
     """Solve and print a two-headed tuning (targets and intervals on named heads)."""
-    from .. import tuning
+    from .. import safety
     from ..head_tuning import HeadTarget, Interval, find_mode, head_of, pair_spread, tune_heads
 
     result = tune_heads(
@@ -95,13 +72,13 @@ def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max
     for name in result.current:
         h = head_of(result.drum, name)
         t = result.tension[name]
-        s = tuning.stress(h, t)
-        w = tuning.safety_warnings(h, t) if name in result.free else []
+        s = safety.stress(h, t)
+        w = safety.safety_warnings(h, t) if name in result.free else []
         warnings += [f"{name} head: {x}" for x in w]
         heads[name] = {"current_tension_n_per_m": result.current[name], "tension_n_per_m": t,
                        "change_percent": result.change_percent(name), "free": name in result.free,
                        "stress_pa": s, "yield_stress_pa": h.yield_stress,
-                       "practical_minimum_n_per_m": tuning.practical_minimum(h), "warnings": w}
+                       "practical_minimum_n_per_m": safety.practical_minimum(h), "warnings": w}
     notes = []
     if result.modes is not None and result.branches and _distinct(result.drum):
         for t in result.met:
@@ -134,7 +111,7 @@ def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max
         "rms_cents": result.rms_cents, "together": result.together, "statement": statement,
         "pair_spread_cents": spreads,
         "warnings": warnings + notes,
-        "cautions": list(tuning.CAUTIONS),
+        "cautions": list(safety.CAUTIONS),
         "solves": result.solves,
     }
     if result.modes is not None:
@@ -177,7 +154,7 @@ def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max
                       ("ratio", "ratio", num(4)), ("note", "note", str)],
              notes=payload["notes"])
         print()
-    for line in [f"caution: {w}" for w in payload["warnings"]] + list(tuning.CAUTIONS):
+    for line in [f"caution: {w}" for w in payload["warnings"]] + list(safety.CAUTIONS):
         print(line)
 
 

@@ -342,20 +342,9 @@ def unit_table(shape: _Shape, ka_max: float, quadrature: Quadrature) -> Radiatio
                                      "y": (None, space.size, space.size), "k_max": ()})
     if (stored is not None and float(stored["k_max"]) == ka_max
             and stored["x"].shape == stored["y"].shape and len(stored["x"]) > 0):
-        return _restored_table(space, ka_max, stored["x"], stored["y"])
+        return RadiationTable.from_coefficients(space, k_max=ka_max, x=stored["x"], y=stored["y"])
     table = RadiationTable(space, k_max=ka_max, quadrature=quadrature)
     table_cache.store(name, x=table._x, y=table._y, k_max=np.array(table.k_max))
-    return table
-
-
-def _restored_table(space, ka_max: float, x: np.ndarray, y: np.ndarray) -> RadiationTable:
-    """A RadiationTable from stored coefficients, with the attributes its constructor sets."""
-    table = RadiationTable.__new__(RadiationTable)
-    table.k_max = float(ka_max)
-    table.t_max = table.k_max**2
-    table.weight = 2 * np.pi if space.m == 0 else np.pi
-    table.degree = len(x)
-    table._x, table._y = x, y
     return table
 
 

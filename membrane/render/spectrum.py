@@ -127,3 +127,8 @@ def spectrum_figure(frequencies, level_db, partials, *, ident=None, name: str = 
                      gid_prefix="mode", background=True)
         fig.set_layout_engine("none")  # keep the layout the labels were placed in
     return fig
+
+
+def write_spectrum_png(path, frequencies, level_db, partials, *, ident=None, name: str = "") -> None:
+    """:func:`spectrum_figure` written to ``path`` as a PNG (the caller makes it atomic)."""
+    spectrum_figure(frequencies, level_db, partials, ident=ident, name=name).savefig(path, format="png")
