@@ -47,8 +47,7 @@ NOTE_MODEL = ("model: point blow with a half-sine force pulse; far field of the 
               "rigid baffle (approximate for a kettle or shell); the degenerate partner of each "
               "(m>=1) mode has a nodal line through the strike point and is silent")
 NOTE_LEVELS = "levels in dB relative to the loudest partial at the start of the sound"
-NOTE_HEARING = ("caution: the preview peaks at -1 dBFS; start playback quietly. Loud drums damage "
-                "hearing: follow local practice on hearing protection")
+from ..safety import PREVIEW_HEARING as NOTE_HEARING  # noqa: E402  (one wording of the caution)
 
 
 def _parse_best_for(values: list[str] | None, drum_file: str | None,
