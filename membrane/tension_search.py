@@ -12,8 +12,10 @@ upward jumps, and has three outcomes, never a failure to settle:
 * :class:`Beyond`: g keeps its sign up to a bound of the allowed range.
 
 Secant steps (slope clamped to what sqrt(T) scaling and the air allow) find a bracket, then
-a safeguarded regula falsi (Illinois) shrinks it; each evaluation is a model solve, so the
-count matters more than the arithmetic. Used by the single-target tune and meant for every
+regula falsi (Illinois: the end kept is weighted half as much each time) shrinks it, with a
+bisection whenever the bracket is steep (a jump) or has not halved in two steps (a flat
+stretch before a crossing); each evaluation is a model solve, so the count matters more than
+the arithmetic. Used by the single-target tune and meant for every
 tension fit (listen's included).
 """
 
@@ -86,32 +88,44 @@ def search(g, *, x0: float, g0: float, lo: float, hi: float, close: float,
         return Found(x0, g0, 0)
     below = (x0, g0) if g0 < 0 else None  # (x, g) with g < 0, the largest x so far
     above = (x0, g0) if g0 > 0 else None  # (x, g) with g > 0, the smallest x so far
+    # Illinois: the value each end of the bracket is weighted with (halved every time that
+    # end is kept), and the bracket widths of the last steps (bisect when they stall)
+    w_below = w_above = None
+    widths = []
     xa, ga = x0, g0
     xb = min(max(x0 - 2.0 * g0, lo), hi)  # sqrt(T) scaling: the first guess only
-    side = 0  # Illinois: which end was kept last
+    gb = g0
     while solves < max_solves:
         gb = g(xb)
         solves += 1
         if abs(gb) < close:
             return Found(xb, gb, solves)
         if gb < 0:
-            below, side = (xb, gb), (side - 1 if side <= 0 else -1)
+            below = (xb, gb)
+            w_below = gb
+            if w_above is not None:
+                w_above *= 0.5  # the upper end kept once more
         else:
-            above, side = (xb, gb), (side + 1 if side >= 0 else 1)
+            above = (xb, gb)
+            w_above = gb
+            if w_below is not None:
+                w_below *= 0.5
         if below is not None and above is not None:
             (x1, g1), (x2, g2) = below, above
+            if w_below is None:
+                w_below = g1
+            if w_above is None:
+                w_above = g2
             width = x2 - x1
-            if width <= MIN_WIDTH or (g2 - g1) > JUMP_SLOPE * max(width, 1e-300) and width < 1e-3:
+            steep = (g2 - g1) > JUMP_SLOPE * max(width, 1e-300)
+            if width <= MIN_WIDTH or (steep and width < 1e-3):
                 return Jump(x1, x2, g1, g2, solves)
-            # regula falsi, with the kept end's value halved after two keeps (Illinois)
-            w1, w2 = g1, g2
-            if side <= -2:
-                w2 = 0.5 * g2
-            elif side >= 2:
-                w1 = 0.5 * g1
-            x = x1 - w1 * (x2 - x1) / (w2 - w1)
-            if not (x1 + 0.01 * width < x < x2 - 0.01 * width) or (g2 - g1) > JUMP_SLOPE * width:
-                x = 0.5 * (x1 + x2)  # bisect: a steep bracket is split evenly
+            widths.append(width)
+            x = x1 - w_below * (x2 - x1) / (w_above - w_below)
+            stalled = len(widths) >= 3 and widths[-1] > 0.5 * widths[-3]
+            if steep or stalled or not (x1 + 0.01 * width < x < x2 - 0.01 * width):
+                x = 0.5 * (x1 + x2)  # bisect: a steep bracket, or one that shrinks too slowly
+                widths.clear()
             xa, ga, xb = xb, gb, x
             continue
         slope = (gb - ga) / (xb - xa) if xb != xa else 0.5

@@ -1015,6 +1015,21 @@ def _families(drum, *, m_max: int, n_max: int, settings: Settings):
     return orders
 
 
+def order_root_set(drum, *, m: int, n_max: int, settings: Settings = DEFAULT, losses=None,
+                   cross_sign=None) -> "RootSet":
+    """The operators of order m alone, as :func:`solve_drum` builds them (the same radiation
+    tables and duct data), for local solves along a branch (branches.follow_root).
+
+    ``cross_sign`` picks the in-phase (+1) or opposed (-1) problem of identical shell heads.
+    """
+    orders = [o for o in _families(drum, m_max=m, n_max=n_max, settings=settings)
+              if o.m == m and (cross_sign is None or o.cross_sign in (None, cross_sign))]
+    order = orders[0]
+    air = (drum.air.density, drum.air.sound_speed)
+    k_max = [1.6 * max(h.omega[n_max] for h in order.heads) / air[1]]
+    return RootSet([order], [0], air=air, settings=settings, k_max=k_max, losses=losses)
+
+
 def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
                losses=None, only=None) -> list:
     """Every root of every order of a drum, weighed and labelled: a list of OrderRoots.
