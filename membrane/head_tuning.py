@@ -245,7 +245,7 @@ def tune_heads(drum: Drum, *, targets=(), intervals=(), physics: str = "full", o
     with as many targets as free heads this is a root, met to well under 0.01 cent
     where the model can reach it. Each residual evaluation is one solve of the model.
     """
-    from .tuning import _tension_ceiling, slack_tension
+    from .safety import slack_tension, tension_ceiling
 
     targets, intervals = list(targets), list(intervals)
     if not targets and not intervals:
@@ -282,7 +282,7 @@ def tune_heads(drum: Drum, *, targets=(), intervals=(), physics: str = "full", o
         return 1.0
 
     lo = [math.log(max(slack_tension(head_of(drum, h)), 1e-6 * current[h])) for h in free]
-    hi = [math.log(_tension_ceiling(head_of(drum, h))) for h in free]
+    hi = [math.log(tension_ceiling(head_of(drum, h))) for h in free]
     x0 = [min(max(math.log(current[h] * ratio_guess(h)), a + 1e-9), b - 1e-9) for h, a, b in zip(free, lo, hi)]
 
     def residuals_at(f):

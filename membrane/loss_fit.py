@@ -90,7 +90,8 @@ def mechanism_rates(drum, *, m_max: int, n_max: int, names=FITTABLE) -> dict:
     return out
 
 
-def fit_losses(drum, matches, *, m_max: int, n_max: int, names=FITTABLE, fit_on=None) -> LossFit:
+def fit_losses(drum, matches, *, m_max: int, n_max: int, names=FITTABLE, fit_on=None,
+               rates=None) -> LossFit:
     """Fit loss parameters to the measured decay of matched partials.
 
     Parameters
@@ -106,12 +107,16 @@ def fit_losses(drum, matches, *, m_max: int, n_max: int, names=FITTABLE, fit_on=
         Parameters to try, from FITTABLE.
     fit_on : set of (m, n) or None
         Fit on these modes only (the others are predicted); default every usable partial.
+    rates : dict or None
+        :func:`mechanism_rates` of this drum with these names, if already computed (a fit
+        on several subsets of one recording's partials needs them once).
 
     Returns
     -------
     LossFit
     """
-    rates = mechanism_rates(drum, m_max=m_max, n_max=n_max, names=names)
+    if rates is None:
+        rates = mechanism_rates(drum, m_max=m_max, n_max=n_max, names=names)
     labels = dict(zip(FITTABLE, ("tension loss", "rim")))
     names = tuple(names)
     usable = []
@@ -137,16 +142,25 @@ def fit_losses(drum, matches, *, m_max: int, n_max: int, names=FITTABLE, fit_on=
     fitted = {}
     cols = list(names)
     while cols:
-        if len(usable) < len(cols) + 1:
+        if len(usable) < len(cols) + 1:  # too few partials: the last named parameter goes first
             cols = cols[:-1]
             continue
         y = np.array([(r - sum(contribution(m, k, cols) for m in MECHANISMS)) / r for k, r in usable])
         A = np.array([[rates[labels[c]][k] / r for c in cols] for k, r in usable])
         x, cov = _nnls_with_cov(A, y)
-        rel = [math.sqrt(cov[i, i]) / x[i] if x[i] > 0 and cov is not None else math.inf
-               for i in range(len(cols))]
-        if len(cols) > 1 and max(rel) > 1.0:  # a parameter the data cannot pin: fit fewer
-            cols = cols[:-1]
+        sigma = [math.sqrt(cov[i, i]) if cov is not None else math.inf for i in range(len(cols))]
+        if len(cols) > 1 and cov is not None and any(v == 0.0 for v in x):
+            # the data want none of a mechanism (the bound is active): it is fitted as zero,
+            # and the others are fitted again without it
+            for i, c in enumerate(list(cols)):
+                if x[i] == 0.0:
+                    values[c] = 0.0
+                    fitted[c] = (0.0, sigma[i] * UNIT[c])
+                    cols.remove(c)
+            continue
+        rel = [sigma[i] / x[i] if x[i] > 0 else math.inf for i in range(len(cols))]
+        if len(cols) > 1 and max(rel) > 1.0:  # a parameter the data cannot pin: fit without it
+            cols.pop(int(np.argmax(rel)))
             continue
         for i, c in enumerate(cols):
             values[c] = float(x[i]) * UNIT[c]

@@ -64,8 +64,8 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.optimize
 
+from .audio import complex_omega, save_wav, synthesize  # noqa: F401  (their old home: still importable here)
 from .errors import InputError
 from .modes import Mode, ModeSet
 
@@ -205,9 +205,7 @@ def pulse_spectrum(omega, *, contact_time: float):
 
 def _complex_omega(mode: Mode, fallback_t60: float | None = None) -> complex:
     """2 pi f + i * (amplitude decay rate), from the mode's frequency and T60."""
-    t60 = mode.decay if mode.decay is not None else fallback_t60
-    rate = LN1000 / t60 if t60 else 0.0
-    return complex(2 * math.pi * mode.frequency, rate)
+    return complex_omega(mode.frequency, mode.decay if mode.decay is not None else fallback_t60)
 
 
 def _coefficients(mode: Mode) -> np.ndarray:
@@ -256,10 +254,8 @@ def body_stiffness(mode: Mode, drum, omega: complex) -> tuple[complex, complex]:
     a, rho, c = mode.basis.radius, drum.air.density, drum.air.sound_speed
     w1 = _volume_displacement(mode.coefficients, mode.basis)
     w2 = 0j
-    if body.kind == "kettle":
-        length = body.volume / (np.pi * a * a)
-    else:
-        length = body.depth
+    length = drum.air_depth  # the shell's depth, or V / (pi a^2) for a kettle
+    if body.kind == "shell":
         if mode.resonant_coefficients is None:  # an uncoupled head: no plane wave through it
             return 0j, 0j
         w2 = _volume_displacement(mode.resonant_coefficients, mode.resonant_basis)
@@ -433,6 +429,8 @@ def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS
     values = contrast(grid)
     i = int(np.argmax(values))
     a, b = grid[max(i - 1, 0)], grid[min(i + 1, len(grid) - 1)]
+    import scipy.optimize  # only here: its import costs every strike about 0.1 s
+
     res = scipy.optimize.minimize_scalar(lambda x: -float(contrast(x)[0]), bounds=(a, b),
                                          method="bounded", options={"xatol": 1e-5})
     at, best = (float(res.x), -float(res.fun)) if -res.fun >= values[i] else \
@@ -440,70 +438,3 @@ def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS
     partials = strike_partials(modeset, strike=Strike(at=at, contact_time=contact_time, angle=angle),
                                listener=listener)
     return StrikeAdvice(at=at, contrast_db=best, partials=partials, chosen=chosen)
-
-
-def synthesize(partials, *, rate: int, seconds: float, contact_time: float,
-               assume_t60: float | None = None) -> np.ndarray:
-    """The decaying partials as a sound at the listener, peak-normalised to -1 dBFS.
-
-    Each partial is ``Im[B exp(i w t)]`` with ``w = 2 pi f + i 3 ln 10 / T60``, t from the
-    sound's arrival. A raised-cosine onset over the contact time stands in for the blow's
-    rise (the formula holds after the pulse), a 10 ms fade ends the sound without a click.
-    Partials at or above the Nyquist frequency are left out (they would alias).
-
-    Parameters
-    ----------
-    partials : iterable of Partial
-        From :func:`strike_partials`.
-    rate : int
-        Sample rate in Hz.
-    seconds : float
-        Length in s.
-    contact_time : float
-        Mallet contact time in s (the onset ramp).
-    assume_t60 : float or None
-        T60 in s for partials without a modelled decay (vacuum physics); without it such
-        partials are refused.
-
-    Returns
-    -------
-    numpy.ndarray
-        float64 samples in [-1, 1].
-    """
-    n = int(round(rate * seconds))
-    t = np.arange(n) / rate
-    out = np.zeros(n)
-    for part in partials:
-        if part.pressure == 0 or part.frequency >= rate / 2:
-            continue
-        if part.decay is None and assume_t60 is None:
-            raise InputError("physics", "vacuum", "a sound preview needs decay times: use "
-                             "--physics full, or give --assume-t60 S for every partial")
-        w = _complex_omega(part.mode, assume_t60)
-        out += np.imag(part.pressure * np.exp(1j * w.real * t)) * np.exp(-w.imag * t)
-    ramp = t < contact_time
-    out[ramp] *= 0.5 * (1 - np.cos(np.pi * t[ramp] / contact_time))
-    fade = t > seconds - 0.01
-    out[fade] *= 0.5 * (1 + np.cos(np.pi * (t[fade] - (seconds - 0.01)) / 0.01))
-    peak = np.max(np.abs(out)) if n else 0.0
-    if peak == 0:
-        raise InputError("strike", "silent", "no partial reaches the listener from this strike "
-                         "(a strike on the rim, or every partial above the Nyquist frequency)")
-    return out * (10 ** (PEAK_DBFS / 20) / peak)
-
-
-def save_wav(path, samples: np.ndarray, *, rate: int, sample_format: str = "int16") -> None:
-    """Write samples in [-1, 1] to a mono WAV file: 16-bit PCM or 32-bit float.
-
-    Writes ``path`` directly; callers wanting all-or-nothing writing pass a temporary path
-    (see membrane.cli.common.write_atomic).
-    """
-    import scipy.io.wavfile
-
-    if sample_format == "int16":
-        data = np.round(np.clip(samples, -1, 1) * 32767).astype(np.int16)
-    elif sample_format == "float32":
-        data = np.asarray(samples, dtype=np.float32)
-    else:
-        raise InputError("wav format", sample_format, "must be int16 or float32")
-    scipy.io.wavfile.write(str(path), int(rate), data)

@@ -1,4 +1,4 @@
-"""Tuning: the tension that puts chosen modes on target pitches, lug equalisation, safety.
+"""Tuning: the tension that puts chosen modes on target pitches, and lug equalisation.
 
 With air loading and a body, a mode's frequency is not proportional to sqrt(T) (the
 air's added mass and the kettle's air spring do not scale with tension), so the
@@ -6,16 +6,11 @@ tension is found by root-finding on the model in use; the sqrt(T) scaling only
 supplies the first guess. Several targets are met in the least-squares sense in
 cents, optionally freeing the head's areal density or the kettle's volume.
 
-Safety and validity, as used in the output:
+Safety and validity (film stress, the slack limit, the practical minimum, the cautions) live in
+:mod:`membrane.safety`, shared with the strike preview and the handout; their names are
+importable from here as before. A target the model cannot reach above the slack limit is
+refused; a suggestion below it (several targets) gets a caution.
 
-* Stress: film stress T / (plies h) against the film's yield stress (for polyester the
-  producer's stress at 5 % elongation, membrane/data/films.toml). A suggestion above
-  SAFE_STRESS_FRACTION = 0.5 of it gets a caution (a safety factor of 2 on yield:
-  common practice, no source); one that would need more than the tensile strength is
-  refused. The maker's rating of a head always wins over these numbers.
-* Slack limit: the tension D (j11/a)^2 at which bending stiffness holds the (1,1) mode
-  as much as tension does (see :func:`slack_tension`). A target the model cannot reach
-  above it is refused; a suggestion below it (several targets) gets a caution.
 * Lugs: the pitch tapped near a lug is taken as proportional to sqrt(local tension).
   This is a rule of thumb (common practice, no source), not a result of the model,
   which treats the tension as uniform; it is labelled so wherever it is printed.
@@ -35,126 +30,22 @@ from .drum import Drum, Head
 from .errors import InputError, SolverError
 from .modes import ModeSet
 from .notation import cents as _cents
+from .safety import (CAUTIONS, MIN_HOLDING_STRAIN, MIN_RULE, SAFE_STRESS_FRACTION, TENSION_CEILING,  # noqa: F401
+                     below_minimum, practical_minimum, safety_warnings, slack_tension, stress, tension_ceiling)
 from . import tension_search
 from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
-# A suggestion above this fraction of the film's yield stress gets a caution: a
-# safety factor of 2 on yield, as for static loads on ductile materials.
-SAFE_STRESS_FRACTION = 0.5  # common practice, no source
-# A head stretched by less than this strain (T / (E h), one part in 5000) is taken to wrinkle
-# and not hold a pitch. This threshold is our own choice (no published or trade figure behind
-# it): it only flags suggestions far below any tension a playable head is set to (a 26-inch
-# polyester kettledrum head is set near 0.5 % strain).
-MIN_HOLDING_STRAIN = 2e-4  # our own threshold, no source
-MIN_RULE = ("a threshold of our own, not a published figure: a head stretched by less than about "
-            "0.02 % (one part in 5000) is taken to wrinkle and not hold a pitch")
 # Targets count as met together when every residual is within this many cents.
 TOGETHER_CENTS = 1.0
 # The root is polished until the mode is within this many cents of its target.
 TOLERANCE_CENTS = 1e-3
-TENSION_CEILING = 1e5  # N/m: the top of the drum-file range (membrane.drum)
 # the other branch of a crossing is offered only within this factor of the crossing's tension
 BRANCH_RANGE = 1.5  # our choice: beyond it the branch is usually another partial
 TURN_STEP = 1 / 8  # lug changes are rounded to eighths of a turn  # common practice, no source
 
 LUG_RULE = ("rule of thumb: the pitch tapped near a lug is taken as proportional to the square "
             "root of the local tension, so relative tension = (tap pitch / rms tap pitch)^2")
-CAUTIONS = (
-    "An over-tensioned film can tear suddenly and violently: raise tension in small steps "
-    "and keep your face out of the plane of the head while tightening.",
-    "Loud drums damage hearing: wear hearing protection when playing and testing at close range.",
-    "These tensions come from a model: follow the head maker's rating and local practice, "
-    "and never exceed a maker's limit on the strength of a computed number.",
-)
-
 FREE = ("areal-density", "volume")
-
-
-def slack_tension(head: Head) -> float:
-    r"""Tension below which bending stiffness, not tension, sets the (1,1) frequency (N/m).
-
-    In the stiff-membrane equation (DESIGN.md 3.2) a mode of wavenumber k is held by
-    :math:`T k^2` from tension and :math:`D k^4` from bending; they are equal for the
-    (1,1) mode at :math:`T = D (j_{11}/a)^2`. Below it a tension change barely moves
-    the pitch and the head is slack for tuning purposes. A head without bending
-    stiffness (no modulus or thickness given) has no such limit here (returns 0).
-    """
-    return head.slack_tension  # one home for the formula (membrane.drum.Head)
-
-
-def practical_minimum(head: Head) -> float | None:
-    """Lowest tension (N/m) at which the head holds a pitch, by :data:`MIN_RULE`; None if unknown.
-
-    T_min = MIN_HOLDING_STRAIN * E * plies * h, the tension that stretches the film by
-    that strain (E Young's modulus in Pa, h ply thickness in m).
-    """
-    if head.youngs_modulus is None or head.thickness is None:
-        return None
-    return MIN_HOLDING_STRAIN * head.youngs_modulus * head.plies * head.thickness
-
-
-def below_minimum(head: Head, tension: float) -> str | None:
-    """The warning for a tension below the practical minimum, in a maker's words, or None."""
-    t_min = practical_minimum(head)
-    if t_min is None or tension >= t_min:
-        return None
-    strain = tension / (head.youngs_modulus * head.plies * head.thickness)
-    return (f"{tension:.3g} N/m is below the practical minimum of about {t_min:.0f} N/m for this head: "
-            f"the film would be stretched by only {100 * strain:.2g} %, so it would wrinkle and not hold "
-            f"a pitch ({MIN_RULE})")
-
-
-def stress(head: Head, tension: float) -> float | None:
-    """Film stress T / (plies h) in Pa at a tension in N/m, or None without a thickness."""
-    return None if head.thickness is None else tension / (head.plies * head.thickness)
-
-
-def safety_warnings(head: Head, tension: float) -> list[str]:
-    """Cautions for a suggested tension (N/m) on this head: stress and slackness.
-
-    The stress is measured against the film's yield stress; for a film with no known
-    yield but a known breaking stress (taken as elastic to break) against that; for a
-    material with neither (natural skins) no check is made and the output says why.
-    """
-    warnings = []
-    s = stress(head, tension)
-    limit, what = (head.yield_stress, "yield stress") if head.yield_stress is not None else \
-        (head.tensile_strength, "breaking stress (no yield stress is known for this film)")
-    if s is None or limit is None:
-        note = _strength_note(head)
-        warnings.append("no stress check: " + (note if note else "the drum gives no film thickness or "
-                                               "yield stress; follow the head maker's rating"))
-    elif s > limit:
-        warnings.append(f"{tension:.0f} N/m puts the film at {s / 1e6:.1f} MPa, above its {what} "
-                        f"({limit / 1e6:.0f} MPa): it will stretch permanently and may tear")
-    elif s > SAFE_STRESS_FRACTION * limit:
-        warnings.append(f"{tension:.0f} N/m puts the film at {s / 1e6:.1f} MPa, "
-                        f"{100 * s / limit:.0f} % of its {what}, above the "
-                        f"{100 * SAFE_STRESS_FRACTION:.0f} % taken here as a safe limit")
-    low = below_minimum(head, tension)
-    if low:
-        warnings.append(low)
-    slack = slack_tension(head)
-    if tension < slack:
-        warnings.append(f"{tension:.3g} N/m is below the slack limit {slack:.3g} N/m, where bending "
-                        "stiffness sets the (1,1) frequency as much as tension does")
-    return warnings
-
-
-def _strength_note(head: Head) -> str:
-    """The catalogue's plain statement on a film's missing strength data, if it has one."""
-    if head.film is None or head.thickness is None:
-        return ""
-    from . import materials
-
-    return materials.film(head.film).strength_note
-
-
-def _tension_ceiling(head: Head) -> float:
-    """Highest tension the search may try: the film's breaking point, or the file range."""
-    if head.thickness is not None and head.tensile_strength is not None:
-        return min(TENSION_CEILING, head.tensile_strength * head.plies * head.thickness)
-    return TENSION_CEILING
 
 
 # ------------------------------------------------------------------ the model as a function
@@ -318,7 +209,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     f_now = model.frequencies(t_now)
     naive = t_now * float(np.exp(2.0 * np.mean(np.log(wanted / f_now))))
     lo = math.log(max(slack_tension(drum.head), 1e-6 * t_now))
-    hi = math.log(_tension_ceiling(drum.head))
+    hi = math.log(tension_ceiling(drum.head))
     current_value = value = None
 
     if len(targets) == 1 and free is None:

@@ -32,6 +32,36 @@ DIMENSIONS = {
     "mobility": ("[time] / [mass]", "a line mobility such as '1e-4 m/(N*s)'"),
 }
 
+# The units people write most, converted without pint: building pint's registry costs a
+# command about 0.1-0.25 s (import 85 ms, registry 50 ms from its disk cache, 230 ms without),
+# more than the whole solve of a simple drum. Each factor is written from the unit's
+# definition exactly as pint evaluates it (tests/test_unit_table.py checks every one against
+# pint's own conversion, bit for bit); any other spelling or unit goes to pint.
+_INCH = 0.0254  # international inch, exact by definition (1959)
+# lbf/in and in^3 as pint evaluates its chain of definitions (the last bit differs from
+# 0.45359237 * 9.80665 / 0.0254 and 0.0254 ** 3 computed directly)
+_LBF_PER_INCH = 175.12683524647645  # N/m
+_CUBIC_INCH = 1.6387063999999996e-05  # m^3
+FAST_UNITS = {
+    "length": {"m": 1.0, "cm": 0.01, "mm": 0.001, "um": 1e-06, "in": _INCH, "inch": _INCH,
+               "ft": 12 * _INCH, "thou": _INCH / 1000},
+    "tension": {"N/m": 1.0, "kN/m": 1000.0, "lbf/in": _LBF_PER_INCH},
+    "areal_density": {"kg/m^2": 1.0, "g/m^2": 0.001},
+    "volume": {"m^3": 1.0, "L": 0.1 ** 3, "l": 0.1 ** 3, "in^3": _CUBIC_INCH},
+    "density": {"kg/m^3": 1.0, "g/cm^3": 0.001 / 0.01 ** 3},
+    "speed": {"m/s": 1.0},
+    "pressure": {"Pa": 1.0, "kPa": 1000.0, "MPa": 1e6, "GPa": 1e9},
+    "time": {"s": 1.0, "ms": 0.001},
+    "frequency": {"Hz": 1.0, "kHz": 1000.0},
+}
+ZERO_CELSIUS = 273.15  # K
+
+
+def _fast_spelling(unit: str) -> str:
+    """``'kg / m**2'`` -> ``'kg/m^2'``: the spelling the table above is keyed by."""
+    return re.sub(r"\s*([/^])\s*", r"\1", unit.replace("**", "^"))
+
+
 _NUMBER_UNIT = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?|[-+]?nan|[-+]?inf)\s*(.*?)\s*$",
                           re.IGNORECASE)
 
@@ -82,7 +112,10 @@ def to_si(value, kind: str, *, key: str) -> float:
         number, unit = _split(value, key=key, example=example)
         # In the film trade a mil is a thousandth of an inch (pint's 'mil' is an angle).
         unit = re.sub(r"\bmils?\b", "thou", unit)
-        if unit:
+        factor = FAST_UNITS.get(kind, {}).get(_fast_spelling(unit)) if unit else None
+        if factor is not None:
+            number = number * factor  # what pint computes for these units, without pint
+        elif unit:
             ureg = registry()
             try:
                 q = ureg.Quantity(number, unit)
@@ -119,6 +152,11 @@ def _temperature(value, *, key: str) -> float:
         kelvin = float(value)
     elif isinstance(value, str):
         number, unit = _split(value, key=key, example=example)
+        if unit in ("degC", "K", ""):  # the usual spellings, as pint converts them
+            kelvin = number + ZERO_CELSIUS if unit == "degC" else number
+            if not math.isfinite(kelvin) or kelvin <= 0:
+                raise InputError(key, value, f"must be above absolute zero; expected {example}")
+            return kelvin
         ureg = registry()
         try:
             kelvin = float(ureg.Quantity(number, unit or "K").to("K").magnitude)

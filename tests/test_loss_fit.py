@@ -1,8 +1,9 @@
 """Fitting loss parameters to measured decay (membrane/loss_fit.py).
 
-No real recordings ship with the repository, so these are round trips: decay rates made by the
-model with known parameters (and a known scatter) must give the parameters back, and the fit
-on some partials must predict the others. Self-consistency checks, no outside source.
+Round trips: decay rates made by the model with known parameters (and a known scatter) must
+give the parameters back, and the fit on some partials must predict the others.
+Self-consistency checks, no outside source; the check on real recordings is
+tests/test_loss_fit_real.py.
 """
 
 from dataclasses import replace
@@ -90,3 +91,13 @@ def test_fit_through_the_recording_analysis_of_a_preview():
     assert fit.fitted["tension_loss_factor"][0] == pytest.approx(3.5e-3, rel=0.1)
     for row in fit.rows:
         assert 1 / 1.5 < row["predicted_t60_s"] / row["measured_t60_s"] < 1.5, row
+
+
+def test_a_mechanism_the_data_want_none_of_is_fitted_as_zero():
+    # rates flat across the family (a rim loss only): the tension loss factor comes out at
+    # zero, not left at the drum file's value, and the rim's mobility is found
+    true = replace(KETTLE, losses=Losses(tension_loss_factor=0.0, edge_mobility=3e-5))
+    fit = fit_losses(KETTLE, measured(true, {}), m_max=5, n_max=1)
+    assert fit.fitted["tension_loss_factor"][0] == pytest.approx(0.0, abs=1e-4)
+    assert fit.losses.tension_loss_factor == fit.fitted["tension_loss_factor"][0]
+    assert fit.fitted["edge_mobility"][0] == pytest.approx(3e-5, rel=0.05)

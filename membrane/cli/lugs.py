@@ -91,7 +91,8 @@ def lugs(
 
     from .. import lugs as lugmod
     from ..physics.prestress import lug_angles, rim_tension
-    from ..tuning import CAUTIONS, LUG_RULE
+    from ..safety import CAUTIONS
+    from ..tuning import LUG_RULE
     from .tune import parse_lug_pitches
 
     if hoop_stiffness is not None and not (math.isfinite(hoop_stiffness) and hoop_stiffness > 0):

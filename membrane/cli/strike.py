@@ -4,7 +4,6 @@ from __future__ import annotations
 
 import math
 import re
-import textwrap
 from pathlib import Path
 from typing import Annotated, List, Optional
 
@@ -48,8 +47,7 @@ NOTE_MODEL = ("model: point blow with a half-sine force pulse; far field of the 
               "rigid baffle (approximate for a kettle or shell); the degenerate partner of each "
               "(m>=1) mode has a nodal line through the strike point and is silent")
 NOTE_LEVELS = "levels in dB relative to the loudest partial at the start of the sound"
-NOTE_HEARING = ("caution: the preview peaks at -1 dBFS; start playback quietly. Loud drums damage "
-                "hearing: follow local practice on hearing protection")
+from ..safety import PREVIEW_HEARING as NOTE_HEARING  # noqa: E402  (one wording of the caution)
 
 
 def _parse_best_for(values: list[str] | None, drum_file: str | None,
@@ -72,54 +70,6 @@ def _parse_best_for(values: list[str] | None, drum_file: str | None,
         drum_file = others[0]
     modes = [parse_mode(t, key="--best-for") for t in tokens + [t for t in loose if MODE_TOKEN.match(t)]]
     return modes, drum_file
-
-
-def _plot(path, result, *, at, t_c, listener, theta0, chosen, advice, title, head=None) -> None:
-    """Level of each partial against the strike radius (and the search's contrast), as a PNG."""
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
-    import numpy as np
-
-    from .. import strike as model
-
-    radii = np.linspace(0.0, 1.0, 201)
-    p = np.abs(model.pressure_across_radius(result, at=radii, contact_time=t_c, listener=listener,
-                                            angle=theta0))
-    with np.errstate(divide="ignore"):
-        db = np.maximum(20 * np.log10(p / p.max()), -60.0)
-    # the same modes the advice weighs (find(): the struck head's member unless --head names one)
-    ids = {id(result.find(m, n, head=head)) for m, n in chosen}
-    picked = [j for j, mo in enumerate(result.modes) if id(mo) in ids]
-    loudest = picked + [j for j in np.argsort(-db.max(axis=1)) if j not in picked][:max(0, 10 - len(picked))]
-    fig, axes = plt.subplots(2 if advice else 1, 1, figsize=(9.0, 6.5 if advice else 4.5),
-                             sharex=True, squeeze=False)
-    ax = axes[0, 0]
-    for j in loudest:
-        mo = result.modes[j]
-        strong = id(mo) in ids
-        ax.plot(radii, db[j], lw=2.2 if strong else 1.0, ls="-" if strong or not chosen else "--",
-                label=f"{mo.label} {mo.frequency:.0f} Hz")
-    ax.axvline(at, color="k", lw=0.8)
-    ax.set_ylabel("level at the listener (dB re loudest)")
-    ax.set_ylim(-60, 3)
-    ax.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0))
-    ax.set_title(textwrap.fill(title, 110), fontsize=8, loc="left")
-    if advice:
-        with np.errstate(divide="ignore"):
-            power = p ** 2
-            mask = np.array([id(mo) in ids for mo in result])
-            c = 10 * np.log10(power[mask].sum(0)) - 10 * np.log10(power[~mask].sum(0))
-        axes[1, 0].plot(radii, c, color="k")
-        axes[1, 0].axvline(advice.at, color="k", lw=0.8)
-        axes[1, 0].set_ylabel("chosen vs the rest (dB)")
-        axes[1, 0].axvspan(0, presets.SEARCH_RANGE[0], color="0.9")
-        axes[1, 0].axvspan(presets.SEARCH_RANGE[1], 1, color="0.9")
-    axes[-1, 0].set_xlabel("strike radius r/a (0 centre, 1 rim)")
-    fig.tight_layout()
-    fig.savefig(path, dpi=120)
-    plt.close(fig)
 
 
 @with_drum_flags
@@ -227,9 +177,10 @@ def strike(
         notes.append(f"decay not modelled by '{physics.value}' physics: every partial given T60 = {t60:g} s")
     wav = None
     if out is not None:
-        samples = model.synthesize(partials, rate=rate, seconds=seconds, contact_time=t_c,
-                                   assume_t60=t60)
-        write_atomic(out, lambda p: model.save_wav(p, samples, rate=rate, sample_format=wav_format),
+        from ..audio import save_wav, synthesize
+
+        samples = synthesize(partials, rate=rate, seconds=seconds, contact_time=t_c, assume_t60=t60)
+        write_atomic(out, lambda p: save_wav(p, samples, rate=rate, sample_format=wav_format),
                      force=force)
         dropped = [p.mode.label for p in partials if p.frequency >= rate / 2]
         if dropped:
@@ -261,9 +212,12 @@ def strike(
     if wav is not None:
         payload["wav"] = wav
     if plot is not None:
-        write_atomic(plot, lambda path: _plot(path, result, at=at, t_c=t_c, listener=listener,
-                                              theta0=theta0, chosen=chosen, advice=advice,
-                                              title=title, head=head), force=force, key="--plot")
+        from ..render.stills import save
+        from ..render.strike_levels import strike_levels
+
+        figure = strike_levels(result, at=at, contact_time=t_c, listener=listener, angle=theta0,
+                               chosen=chosen, advice=advice, title=title, head=head)
+        write_atomic(plot, lambda path: save(figure, path, dpi=120), force=force, key="--plot")
         payload["plot"] = str(plot)
     columns = COLUMNS if format is not Format.csv else \
         [("m", "m", str), ("n", "n", str)] + [c for c in COLUMNS if c[0] != "mode"] + \

@@ -60,7 +60,7 @@ def parse_interval(text: str, head: str):
 def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max: int, fmt: Format,
         losses: str = "all") -> None:
     """Solve and print a two-headed tuning (targets and intervals on named heads)."""
-    from .. import tuning
+    from .. import safety
     from ..head_tuning import HeadTarget, Interval, find_mode, head_of, pair_spread, tune_heads
 
     result = tune_heads(
@@ -72,13 +72,13 @@ def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max
     for name in result.current:
         h = head_of(result.drum, name)
         t = result.tension[name]
-        s = tuning.stress(h, t)
-        w = tuning.safety_warnings(h, t) if name in result.free else []
+        s = safety.stress(h, t)
+        w = safety.safety_warnings(h, t) if name in result.free else []
         warnings += [f"{name} head: {x}" for x in w]
         heads[name] = {"current_tension_n_per_m": result.current[name], "tension_n_per_m": t,
                        "change_percent": result.change_percent(name), "free": name in result.free,
                        "stress_pa": s, "yield_stress_pa": h.yield_stress,
-                       "practical_minimum_n_per_m": tuning.practical_minimum(h), "warnings": w}
+                       "practical_minimum_n_per_m": safety.practical_minimum(h), "warnings": w}
     notes = []
     if result.modes is not None and result.branches and _distinct(result.drum):
         for t in result.met:
@@ -111,7 +111,7 @@ def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max
         "rms_cents": result.rms_cents, "together": result.together, "statement": statement,
         "pair_spread_cents": spreads,
         "warnings": warnings + notes,
-        "cautions": list(tuning.CAUTIONS),
+        "cautions": list(safety.CAUTIONS),
         "solves": result.solves,
     }
     if result.modes is not None:
@@ -154,7 +154,7 @@ def run(drum, *, targets, intervals, physics: str, other: str, m_max: int, n_max
                       ("ratio", "ratio", num(4)), ("note", "note", str)],
              notes=payload["notes"])
         print()
-    for line in [f"caution: {w}" for w in payload["warnings"]] + list(tuning.CAUTIONS):
+    for line in [f"caution: {w}" for w in payload["warnings"]] + list(safety.CAUTIONS):
         print(line)
 
 

@@ -342,20 +342,9 @@ def unit_table(shape: _Shape, ka_max: float, quadrature: Quadrature) -> Radiatio
                                      "y": (None, space.size, space.size), "k_max": ()})
     if (stored is not None and float(stored["k_max"]) == ka_max
             and stored["x"].shape == stored["y"].shape and len(stored["x"]) > 0):
-        return _restored_table(space, ka_max, stored["x"], stored["y"])
+        return RadiationTable.from_coefficients(space, k_max=ka_max, x=stored["x"], y=stored["y"])
     table = RadiationTable(space, k_max=ka_max, quadrature=quadrature)
     table_cache.store(name, x=table._x, y=table._y, k_max=np.array(table.k_max))
-    return table
-
-
-def _restored_table(space, ka_max: float, x: np.ndarray, y: np.ndarray) -> RadiationTable:
-    """A RadiationTable from stored coefficients, with the attributes its constructor sets."""
-    table = RadiationTable.__new__(RadiationTable)
-    table.k_max = float(ka_max)
-    table.t_max = table.k_max**2
-    table.weight = 2 * np.pi if space.m == 0 else np.pi
-    table.degree = len(x)
-    table._x, table._y = x, y
     return table
 
 
@@ -856,23 +845,9 @@ def _orders(drum, *, m_max: int, n_max: int, settings: Settings):
     count = n_max + settings.extra_modes
     a = head.radius
     kind = body.kind
-    if kind == "kettle":
-        if body.volume is None or not body.volume > 0:
-            raise InputError("body.volume", body.volume, "a kettle needs a volume > 0 (m^3)")
-        depth, faces = body.volume / (np.pi * a * a), 1
-    elif kind == "shell":
-        if body.depth is None or not body.depth > 0:
-            raise InputError("body.depth", body.depth, "a shell needs a depth > 0 (m)")
-        if res is None:
-            raise InputError("resonant_head", None, "a shell needs a [resonant_head]")
-        if abs(res.radius - a) > 1e-9 * a:
-            raise InputError("resonant_head.diameter", 2 * res.radius,
-                             f"must equal the struck head's diameter {2 * a:g} m for a shell")
-        depth, faces = body.depth, 1
-    elif kind == "none":
-        depth, faces = None, 2
-    else:
-        raise InputError("body.kind", kind, "must be one of: none, kettle, shell")
+    # Drum holds its own invariants (a kettle has a volume, a shell a depth and a resonant head
+    # of the same diameter), so nothing is re-validated here
+    depth, faces = (drum.air_depth, 1) if kind in ("kettle", "shell") else (None, 2)
     orders, which, omega0, x0, tags = [], [], [], [], []
     for m in range(m_max + 1):
         h1 = HeadOrder(head, m=m, count=count, rim=settings.rim)

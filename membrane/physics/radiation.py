@@ -249,6 +249,36 @@ class RadiationTable:
         self.degree = degree
         self._x, self._y = x, y
 
+    @classmethod
+    def from_coefficients(cls, space, *, k_max: float, x: np.ndarray, y: np.ndarray) -> "RadiationTable":
+        """A table from Chebyshev coefficients computed before (e.g. read from the disk cache).
+
+        Parameters
+        ----------
+        space : radial space
+            The space the coefficients belong to (its order m sets the angular weight).
+        k_max : float
+            Largest wavenumber of the table, 1/m.
+        x, y : numpy.ndarray
+            Coefficients of X and Y in t = k^2, each (degree, N, N), as :attr:`coefficients`.
+        """
+        x, y = np.asarray(x, dtype=float), np.asarray(y, dtype=float)
+        if x.shape != y.shape or x.ndim != 3 or x.shape[1] != x.shape[2] or len(x) == 0:
+            raise ValueError(f"coefficients of shape {x.shape} and {y.shape}: expected two equal "
+                             "(degree, N, N) arrays")
+        table = cls.__new__(cls)
+        table.k_max = float(k_max)
+        table.t_max = table.k_max**2
+        table.weight = 2 * np.pi if space.m == 0 else np.pi
+        table.degree = len(x)
+        table._x, table._y = x, y
+        return table
+
+    @property
+    def coefficients(self) -> tuple[np.ndarray, np.ndarray]:
+        """Chebyshev coefficients (x, y) of X and Y in t = k^2, each (degree, N, N), m^3."""
+        return self._x, self._y
+
     def _fit(self, space, degree, quadrature):
         nodes = np.cos(np.pi * (np.arange(degree) + 0.5) / degree)  # Chebyshev points
         t = 0.5 * self.t_max * (nodes + 1.0)

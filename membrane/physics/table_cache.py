@@ -46,6 +46,12 @@ def cache_dir() -> Path | None:
     return base / "membrane"
 
 
+# The modules whose code computes the tables, fingerprinted by their source files. They are
+# found, not imported: coupled.py uses this module, so importing it here would be a loop.
+SOURCES = ("membrane.bessel", "membrane.physics.vacuum", "membrane.physics.radiation",
+           "membrane.physics.coupled")
+
+
 def _source_fingerprint() -> str:
     """Hash of the modules whose code computes the tables, and of numpy's and scipy's versions.
 
@@ -54,17 +60,18 @@ def _source_fingerprint() -> str:
     """
     global _fingerprint
     if _fingerprint is None:
+        import importlib.util
+
         import scipy
 
-        from .. import bessel
-        from . import coupled, radiation, vacuum
-
         h = hashlib.sha256(f"{np.__version__} {scipy.__version__}".encode())
-        for mod in (bessel, vacuum, radiation, coupled):
+        for name in SOURCES:
             try:
-                h.update(Path(mod.__file__).read_bytes())
-            except OSError:  # no source at hand (frozen install): versions and FORMAT only
-                h.update(mod.__name__.encode())
+                spec = importlib.util.find_spec(name)
+                h.update(Path(spec.origin).read_bytes())
+            except (OSError, TypeError, AttributeError, ImportError):
+                # no source at hand (frozen install): versions and FORMAT only
+                h.update(name.encode())
         _fingerprint = h.hexdigest()
     return _fingerprint
 

@@ -181,9 +181,8 @@ class RadialBasis:
         """Radial shapes phi_n(r), shape (N, len(r)); r in m, 0 <= r <= a."""
         r = np.atleast_1d(np.asarray(r, dtype=float))
         out = special.jv(self.m, np.outer(self.k1, r))
-        if self.k2 is not None:
-            for i in range(self.size):
-                out[i] += self.c[i] * _i_hat(self.m, self.k2[i], r, self.radius)
+        if self.k2 is not None:  # all modes at once: the same numbers as one at a time
+            out += self.c[:, None] * _i_hat(self.m, self.k2[:, None], r[None, :], self.radius)
         return out
 
     def transform(self, kappa) -> np.ndarray:

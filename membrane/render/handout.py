@@ -25,13 +25,6 @@ MARGIN = 0.75  # inches on every side: inside what office printers can print
 BODY_PT = 10.0
 GLYPH_EM = 0.56  # average glyph width of the default sans-serif, in em (for wrapping)
 
-# Used only if membrane.tuning (which owns the wording) cannot be imported.
-FALLBACK_CAUTIONS = (
-    "An over-tensioned film can tear suddenly and violently: raise tension in small steps.",
-    "Loud drums damage hearing: protect your ears when playing and testing up close.",
-    "The numbers here come from a model: follow the head maker's rating and local practice.",
-)
-
 TABLE_COLUMNS = ("mode", "f (Hz)", "ratio", "note", "cents\noff note", "harmonic\n(fit)",
                  "cents off\nharmonic", "T60 (s)")
 TABLE_ROWS = 30  # what fits on one page with its legend
@@ -40,11 +33,9 @@ ROW_IN = 0.23  # table row height, inches
 
 
 def cautions() -> tuple[str, ...]:
-    """The usual cautions, from :mod:`membrane.tuning` where it provides them."""
-    try:
-        from ..tuning import CAUTIONS
-    except ImportError:
-        return FALLBACK_CAUTIONS
+    """The usual cautions (:data:`membrane.safety.CAUTIONS`, the one wording)."""
+    from ..safety import CAUTIONS
+
     return tuple(CAUTIONS)
 
 
