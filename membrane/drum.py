@@ -1,29 +1,30 @@
-"""The drum: frozen dataclasses for head, body and air, and the drum file (TOML).
+"""The drum: frozen dataclasses for head, body, air and lugs, each holding its own invariants.
 
-Values inside are plain SI floats. Text with units is accepted only at the edge,
-by :func:`parse_drum`, which also checks every value against a physically
-sensible range and names the key when one is wrong.
+Values inside are plain SI floats. What every drum must satisfy to be one is checked when it
+is made, so the physics never re-validates: sizes finite and positive, a known edge and a
+Poisson ratio below 1/2, a kettle with a volume and a shell with a depth and a resonant head
+of the struck head's diameter. A head made with a ``film`` name takes the film's modulus,
+Poisson ratio and strength where none is given (so the tuning can check its stress).
+
+The practical ranges of :mod:`membrane.ranges` are checked where values come in from people:
+the drum file (:mod:`membrane.drumfile`, whose :func:`~membrane.drumfile.load_drum` and
+friends are still importable from here) and the command line.
 """
 
 from __future__ import annotations
 
 import math
-import tomllib
 from dataclasses import dataclass, field, replace
-from importlib import resources
-from pathlib import Path
 
 from . import materials
 from . import ranges as R
 from .errors import InputError
-from .losses import Losses, parse_losses
-from .nesting import check_nesting
+from .losses import Losses
 from .notation import EDGES, POISSON_RATIO
-from .units import parse_pitch, to_si
 
 BODY_KINDS = ("none", "kettle", "shell")
 
-# Gas constants for dry air: R = 287.058 J/(kg K), gamma = 1.4 (SOURCES.md, "Air and pitch").
+# Gas constants for dry air: R = 287.058 J/(kg K), gamma = 1.4 (docs/physics.md, "Air").
 R_DRY_AIR = 287.058
 GAMMA_AIR = 1.4
 # First zero of J_1 (Abramowitz & Stegun Table 9.5), for the slack limit of the (1,1) mode.
@@ -45,6 +46,13 @@ def _require(obj, name: str, *, optional: bool = False) -> None:
         raise InputError(f"{type(obj).__name__}.{name}", value, "must be a finite number > 0 (SI units)")
 
 
+def check_plies(value, *, key: str = "Head.plies") -> int:
+    """The number of plies, a whole number from 1 to 4, or InputError naming ``key``."""
+    if isinstance(value, bool) or not isinstance(value, int) or not 1 <= value <= 4:
+        raise InputError(key, value, "must be a whole number from 1 to 4")
+    return value
+
+
 @dataclass(frozen=True)
 class Head:
     """One drumhead, SI units.
@@ -63,15 +71,22 @@ class Head:
         Number of plies. Plies are taken as free to slide on each other, so their
         bending stiffnesses add (a bonded laminate would be stiffer).
     youngs_modulus : float or None
-        E in Pa, if known; without it the head has no bending stiffness.
-    poisson_ratio : float
-        nu (dimensionless).
+        E in Pa, if known; without it the head has no bending stiffness. With ``film`` and
+        none given, the film's.
+    poisson_ratio : float or None
+        nu (dimensionless); None: the film's, else :data:`membrane.notation.POISSON_RATIO`.
     edge : {"clamped", "hinged"}
         How the rim holds the head (matters only with bending stiffness).
     film : str or None
         Film name from the materials data, if any.
     yield_stress, tensile_strength : float or None
-        The film's strength in Pa, for the tuning cautions.
+        The film's strength in Pa, for the tuning cautions; with ``film`` and none given, the
+        film's (none for natural skins).
+
+    Examples
+    --------
+    >>> Head(radius=0.33, tension=3000.0, areal_density=0.26, film="polyester", thickness=188e-6).yield_stress
+    100000000.0
     """
 
     radius: float
@@ -80,7 +95,7 @@ class Head:
     thickness: float | None = None
     plies: int = 1
     youngs_modulus: float | None = None
-    poisson_ratio: float = POISSON_RATIO
+    poisson_ratio: float | None = None
     edge: str = "clamped"
     film: str | None = None
     yield_stress: float | None = None
@@ -91,11 +106,16 @@ class Head:
         # negative size reaches a solver (the practical ranges are the drum file's job).
         for name in ("radius", "tension", "areal_density"):
             _require(self, name)
+        if self.film is not None:  # the film's data fill what is not given (frozen: set once here)
+            film = materials.film(self.film, key="Head.film")
+            for name in ("youngs_modulus", "poisson_ratio", "yield_stress", "tensile_strength"):
+                if getattr(self, name) is None:
+                    object.__setattr__(self, name, getattr(film, name))
         for name in ("thickness", "youngs_modulus", "yield_stress", "tensile_strength"):
             _require(self, name, optional=True)
-        if isinstance(self.plies, bool) or not isinstance(self.plies, int) or not 1 <= self.plies <= 4:
-            raise InputError("Head.plies", self.plies, "must be a whole number from 1 to 4")
-        R.POISSON_RATIO.check(self.poisson_ratio, key="Head.poisson_ratio")  # 0 <= nu < 0.5
+        check_plies(self.plies)
+        nu = POISSON_RATIO if self.poisson_ratio is None else self.poisson_ratio
+        object.__setattr__(self, "poisson_ratio", R.POISSON_RATIO.check(nu, key="Head.poisson_ratio"))  # 0 <= nu < 0.5
         if self.edge not in EDGES:
             raise InputError("Head.edge", self.edge, f"must be one of: {', '.join(EDGES)}")
 
@@ -116,7 +136,7 @@ class Head:
     def slack_tension(self) -> float:
         r"""Tension below which bending stiffness, not tension, sets the (1,1) frequency (N/m).
 
-        In the stiff-membrane equation (DESIGN.md 3.2) a mode of wavenumber k is held by
+        In the stiff-membrane equation (docs/physics.md, "The stiff membrane") a mode of wavenumber k is held by
         :math:`T k^2` from tension and :math:`D k^4` from bending; they are equal for the
         (1,1) mode at :math:`T = D (j_{11}/a)^2`. Below it a tension change barely moves
         the pitch and the head is slack for tuning purposes. A head without bending
@@ -147,10 +167,10 @@ class Body:
     kind : {"none", "kettle", "shell"}
         ``none``: air on both faces; ``kettle``: a closed bowl under the head;
         ``shell``: an open cylinder with a second (resonant) head at the far end.
-    volume : float or None
-        Kettle volume in m^3.
-    depth : float or None
-        Shell depth in m.
+    volume : float
+        Kettle volume in m^3 (a kettle only, and every kettle).
+    depth : float
+        Shell depth in m (a shell only, and every shell).
     """
 
     kind: str = "none"
@@ -162,6 +182,14 @@ class Body:
             raise InputError("Body.kind", self.kind, f"must be one of: {', '.join(BODY_KINDS)}")
         _require(self, "volume", optional=True)
         _require(self, "depth", optional=True)
+        if self.kind == "kettle" and self.volume is None:
+            raise InputError("Body.volume", None, "missing: a kettle needs its volume, e.g. \"0.17 m^3\"")
+        if self.kind == "shell" and self.depth is None:
+            raise InputError("Body.depth", None, "missing: a shell needs its depth, e.g. \"14 in\"")
+        if self.kind != "kettle" and self.volume is not None:
+            raise InputError("Body.volume", self.volume, f"only a kettle has a volume (body.kind is {self.kind!r})")
+        if self.kind != "shell" and self.depth is not None:
+            raise InputError("Body.depth", self.depth, f"only a shell has a depth (body.kind is {self.kind!r})")
 
 
 @dataclass(frozen=True)
@@ -268,318 +296,50 @@ class Drum:
     name: str = "drum"
     description: str = ""
 
+    def __post_init__(self) -> None:
+        for name, kind in (("head", Head), ("body", Body), ("air", Air)):
+            if not isinstance(getattr(self, name), kind):
+                raise InputError(f"Drum.{name}", getattr(self, name), f"must be a membrane.{kind.__name__}")
+        res = self.resonant_head
+        if res is not None and self.body.kind != "shell":
+            raise InputError("Drum.resonant_head", "...",
+                             f"only a shell has a resonant head (body.kind is {self.body.kind!r})")
+        if self.body.kind == "shell":
+            if res is None:
+                raise InputError("Drum.resonant_head", None, "missing: a shell needs a [resonant_head] table")
+            if not isinstance(res, Head):
+                raise InputError("Drum.resonant_head", res, "must be a membrane.Head")
+            if abs(res.radius - self.head.radius) > 1e-9 * self.head.radius:
+                raise InputError("Drum.resonant_head.diameter", 2 * res.radius,
+                                 f"must equal the struck head's diameter {2 * self.head.radius:g} m for a shell")
+
+    @property
+    def air_depth(self) -> float | None:
+        """Length of the body's air column in m: the shell's depth, or V / (pi a^2) for a kettle.
+
+        The kettle is modelled as the cylinder of the head's area holding the bowl's volume
+        (docs/physics.md, "The body"); None without a body.
+        """
+        if self.body.kind == "kettle":
+            return self.body.volume / (math.pi * self.head.radius ** 2)
+        return self.body.depth
+
     def with_tension(self, tension: float) -> "Drum":
         """The same drum with the struck head at another tension (N/m)."""
         return replace(self, head=replace(self.head, tension=float(tension)))
 
 
-# ------------------------------------------------------------------ the drum file
-_HEAD_KEYS = {"diameter", "radius", "film", "thickness", "plies", "density", "areal_density",
-              "youngs_modulus", "poisson_ratio", "tension", "edge", "yield_stress",
-              "tensile_strength"}
-_BODY_KEYS = {"kind", "volume", "depth"}
-_AIR_KEYS = {"temperature", "pressure", "density", "sound_speed"}
-_LUG_KEYS = {"pitches", "cents_per_turn", "tensions"}
-_TOP_KEYS = {"name", "description", "head", "body", "resonant_head", "air", "lugs", "losses"}
 
 
-def _ranged(table: dict, key: str, kind: str, where: str, rng: R.Range) -> float | None:
-    """The value at ``key`` in SI units, checked against its practical range; None if absent."""
-    if key not in table:
-        return None
-    name = f"{where}.{key}"
-    return rng.check(to_si(table[key], kind, key=name), key=name, given=table[key])
+# The drum file's names, at their old address (they live in membrane.drumfile). Resolved on
+# first use, so the file layer (pint, TOML) loads only when a drum file is read.
+_FILE_NAMES = {"load_drum", "parse_drum", "override_table", "read_drum_table", "builtin_names",
+               "builtin_text", "MAX_FILE_BYTES"}
 
 
-def _check_keys(table, allowed: set[str], where: str) -> None:
-    if not isinstance(table, dict):
-        raise InputError(where, table, "must be a table")
-    for key in table:
-        if key not in allowed:
-            raise InputError(f"{where}.{key}" if where else key, table[key],
-                             f"unknown key; allowed keys here: {', '.join(sorted(allowed))}")
+def __getattr__(name):
+    if name in _FILE_NAMES:
+        from . import drumfile
 
-
-def _parse_head(table: dict, where: str) -> Head:
-    _check_keys(table, _HEAD_KEYS, where)
-    if "diameter" in table and "radius" in table:
-        raise InputError(f"{where}.radius", table["radius"], "give diameter or radius, not both")
-    diameter = _ranged(table, "diameter", "length", where, R.DIAMETER)
-    radius = _ranged(table, "radius", "length", where, R.RADIUS)
-    if diameter is None and radius is None:
-        raise InputError(f"{where}.diameter", None, "missing: give diameter (or radius), e.g. \"26 in\"")
-    radius = radius if radius is not None else diameter / 2
-    tension = _ranged(table, "tension", "tension", where, R.TENSION)
-    if tension is None:
-        raise InputError(f"{where}.tension", None, "missing: give tension per unit length, e.g. \"4000 N/m\"")
-    plies = table.get("plies", 1)
-    if isinstance(plies, bool) or not isinstance(plies, int) or not 1 <= plies <= 4:
-        raise InputError(f"{where}.plies", plies, "must be a whole number from 1 to 4")
-    edge = table.get("edge", "clamped")
-    if edge not in EDGES:
-        raise InputError(f"{where}.edge", edge, f"must be one of: {', '.join(EDGES)}")
-
-    film = materials.film(table["film"], key=f"{where}.film") if "film" in table else None
-    thickness = _ranged(table, "thickness", "length", where, R.THICKNESS)
-    density = _ranged(table, "density", "density", where, R.DENSITY)
-    areal = _ranged(table, "areal_density", "areal_density", where, R.AREAL_DENSITY)
-    if areal is None:
-        rho = density if density is not None else (film.density if film else None)
-        if rho is None or thickness is None:
-            raise InputError(f"{where}.areal_density", None,
-                             "missing: give areal_density, or film (or density) with thickness")
-        areal = rho * thickness * plies
-        if not R.AREAL_DENSITY.contains(areal):
-            raise InputError(f"{where}.areal_density", f"{areal:.4g} kg/m^2",
-                             f"(density x thickness x plies) {R.AREAL_DENSITY.text()}")
-    modulus = _ranged(table, "youngs_modulus", "pressure", where, R.YOUNGS_MODULUS)
-    if modulus is None and film is not None:
-        modulus = film.youngs_modulus
-    nu = table.get("poisson_ratio", film.poisson_ratio if film else POISSON_RATIO)
-    if isinstance(nu, bool) or not R.POISSON_RATIO.contains(nu):
-        raise InputError(f"{where}.poisson_ratio", nu, R.POISSON_RATIO.text())
-    yield_stress = _ranged(table, "yield_stress", "pressure", where, R.STRENGTH)
-    strength = _ranged(table, "tensile_strength", "pressure", where, R.STRENGTH)
-    head = Head(
-        radius=radius, tension=tension, areal_density=areal, thickness=thickness, plies=plies,
-        youngs_modulus=modulus, poisson_ratio=float(nu), edge=edge,
-        film=film.name if film else None,
-        yield_stress=yield_stress if yield_stress is not None else (film.yield_stress if film else None),
-        tensile_strength=strength if strength is not None else (film.tensile_strength if film else None),
-    )
-    slack = head.slack_tension
-    if tension < slack:
-        raise InputError(f"{where}.tension", table["tension"],
-                         f"must be at least this head's slack limit, {slack:.4g} N/m (below it bending "
-                         f"stiffness, not tension, sets the pitch), and at most {R.TENSION.hi:g} N/m")
-    return head
-
-
-def _parse_body(table: dict) -> Body:
-    _check_keys(table, _BODY_KEYS, "body")
-    kind = table.get("kind", "none")
-    if kind not in BODY_KINDS:
-        raise InputError("body.kind", kind, f"must be one of: {', '.join(BODY_KINDS)}")
-    volume = _ranged(table, "volume", "volume", "body", R.VOLUME)
-    depth = _ranged(table, "depth", "length", "body", R.DEPTH)
-    if kind == "kettle" and volume is None:
-        raise InputError("body.volume", None, "missing: a kettle needs its volume, e.g. \"0.17 m^3\"")
-    if kind == "shell" and depth is None:
-        raise InputError("body.depth", None, "missing: a shell needs its depth, e.g. \"14 in\"")
-    if kind != "kettle" and volume is not None:
-        raise InputError("body.volume", table["volume"], f"only a kettle has a volume (body.kind is {kind!r})")
-    if kind != "shell" and depth is not None:
-        raise InputError("body.depth", table["depth"], f"only a shell has a depth (body.kind is {kind!r})")
-    return Body(kind=kind, volume=volume, depth=depth)
-
-
-def _parse_air(table: dict) -> Air:
-    _check_keys(table, _AIR_KEYS, "air")
-    direct = {"density", "sound_speed"} & table.keys()
-    if direct and ({"temperature", "pressure"} & table.keys()):
-        raise InputError("air", table, "give temperature (and pressure), or density and sound_speed, not both")
-    if direct:
-        if direct != {"density", "sound_speed"}:
-            raise InputError("air", table, "give both density and sound_speed")
-        return Air(density=_ranged(table, "density", "density", "air", R.AIR_DENSITY),
-                   sound_speed=_ranged(table, "sound_speed", "speed", "air", R.SOUND_SPEED))
-    temperature = to_si(table.get("temperature", 293.15), "temperature", key="air.temperature")
-    R.TEMPERATURE.check(temperature, key="air.temperature", given=table.get("temperature"))
-    pressure = _ranged(table, "pressure", "pressure", "air", R.PRESSURE)
-    return Air.from_conditions(temperature=temperature, pressure=pressure or 101325.0)
-
-
-def _parse_lugs(table: dict) -> Lugs:
-    _check_keys(table, _LUG_KEYS, "lugs")
-    if "pitches" not in table and "tensions" not in table:
-        raise InputError("lugs", sorted(table), "give pitches (tap pitch near each lug) and/or tensions")
-    hz = None
-    if "pitches" in table:
-        pitches = table["pitches"]
-        if not isinstance(pitches, list) or len(pitches) < 3:
-            raise InputError("lugs.pitches", pitches, "must be a list of at least 3 tap pitches, one per lug")
-        hz = tuple(parse_pitch(p, key=f"lugs.pitches[{i}]") for i, p in enumerate(pitches))
-    tensions = None
-    if "tensions" in table:
-        values = table["tensions"]
-        if not isinstance(values, list) or len(values) < 3:
-            raise InputError("lugs.tensions", values, "must be a list of at least 3 tensions, one per lug")
-        tensions = tuple(to_si(v, "tension", key=f"lugs.tensions[{i}]") for i, v in enumerate(values))
-        for i, (v, t) in enumerate(zip(values, tensions)):
-            R.TENSION.check(t, key=f"lugs.tensions[{i}]", given=v)
-        if hz is not None and len(hz) != len(tensions):
-            raise InputError("lugs.tensions", values, f"must have one tension per lug ({len(hz)} pitches given)")
-    per_turn = table.get("cents_per_turn")
-    if per_turn is not None and (isinstance(per_turn, bool) or not R.CENTS_PER_TURN.contains(per_turn)):
-        raise InputError("lugs.cents_per_turn", per_turn, R.CENTS_PER_TURN.text())
-    return Lugs(pitches=hz, cents_per_turn=None if per_turn is None else float(per_turn), tensions=tensions)
-
-
-def parse_drum(table: dict) -> Drum:
-    """Build a validated :class:`Drum` from a drum-file table (as read from TOML).
-
-    Raises
-    ------
-    InputError
-        Naming the key, the value and what is allowed, for the first problem found.
-    """
-    _check_keys(table, _TOP_KEYS, "")
-    if "head" not in table:
-        raise InputError("head", None, "missing: a drum file needs a [head] table")
-    head = _parse_head(table["head"], "head")
-    body = _parse_body(table.get("body", {}))
-    resonant = None
-    if "resonant_head" in table:
-        if body.kind != "shell":
-            raise InputError("resonant_head", "...", f"only a shell has a resonant head (body.kind is {body.kind!r})")
-        resonant = _parse_head(table["resonant_head"], "resonant_head")
-    elif body.kind == "shell":
-        raise InputError("resonant_head", None, "missing: a shell needs a [resonant_head] table")
-    air = _parse_air(table.get("air", {}))
-    lugs = _parse_lugs(table["lugs"]) if "lugs" in table else None
-    for key in ("name", "description"):
-        if key in table and not isinstance(table[key], str):
-            raise InputError(key, table[key], "must be text")
-    losses = parse_losses(table["losses"]) if "losses" in table else Losses()
-    return Drum(head=head, body=body, air=air, resonant_head=resonant, lugs=lugs, losses=losses,
-                name=table.get("name", "drum"), description=table.get("description", ""))
-
-
-# ------------------------------------------------------------------ files and examples
-def builtin_names() -> list[str]:
-    """Names of the built-in example drums (invented demo data)."""
-    folder = resources.files("membrane").joinpath("data/examples")
-    return sorted(p.name.removesuffix(".toml") for p in folder.iterdir() if p.name.endswith(".toml"))
-
-
-def builtin_text(name: str) -> str:
-    """The drum-file text of a built-in example."""
-    if name not in builtin_names():
-        raise InputError("example", name, f"unknown example; built-in examples: {', '.join(builtin_names())}")
-    return resources.files("membrane").joinpath(f"data/examples/{name}.toml").read_text(encoding="utf-8")
-
-
-MAX_FILE_BYTES = 1_000_000  # a drum file is a few hundred bytes; common practice, no source
-
-
-def read_drum_table(source: str | Path) -> dict:
-    """The raw table of a drum file, or of a built-in example given by name.
-
-    A path that exists is read as a file; otherwise a built-in example's name
-    (``kettledrum``, ``snare``) selects that example.
-    """
-    path = Path(source)
-    if path.is_file():
-        try:
-            if path.stat().st_size > MAX_FILE_BYTES:
-                raise InputError("drum file", str(source), f"is larger than {MAX_FILE_BYTES // 1000} kB; "
-                                 "a drum file is a few hundred bytes of text")
-            text = path.read_text(encoding="utf-8")
-        except (OSError, UnicodeDecodeError) as exc:
-            raise InputError("drum file", str(source), f"cannot be read as UTF-8 text ({exc.__class__.__name__})") from None
-    elif str(source) in builtin_names():
-        text = builtin_text(str(source))
-    else:
-        raise InputError("drum file", str(source),
-                         f"no such file, and not a built-in example ({', '.join(builtin_names())})")
-    check_nesting(text, key="drum file", source=str(source))
-    try:
-        return tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError("drum file", str(source), f"is not valid TOML: {exc}") from None
-    except RecursionError:  # the scan above should have refused it; never a traceback
-        raise InputError("drum file", str(source), "nests too deeply to read") from None
-
-
-def load_drum(source: str | Path, **overrides) -> Drum:
-    """Load a drum file (or built-in example) and apply overrides.
-
-    Parameters
-    ----------
-    source : str or Path
-        A drum file, or the name of a built-in example.
-    **overrides
-        Values as :func:`override_table` takes them (text with units or SI numbers).
-    """
-    return parse_drum(override_table(read_drum_table(source), **overrides))
-
-
-def override_table(table: dict | None, *, diameter=None, radius=None, tension=None,
-                   areal_density=None, film=None, thickness=None, body=None, volume=None,
-                   depth=None, keys: dict | None = None) -> dict:
-    """A copy of a drum-file table with command-line values laid over it.
-
-    A new diameter replaces the file's radius and vice versa; a new film or thickness
-    replaces the file's areal density; a new body kind drops the old kind's size.
-    With ``body="shell"`` and no resonant head, the struck head is used for both.
-    ``keys`` maps (table, key), e.g. ``("resonant_head", "tension")``, to a value laid
-    over that key after the rest (see :func:`_lay_keys` for what each one replaces).
-    """
-    # Copy only the levels changed here (a deep copy would recurse through whatever the
-    # file holds); parse_drum refuses anything that is not a table where one belongs.
-    table = dict(table) if table else {}
-    for part, value in table.items():
-        if isinstance(value, dict):
-            table[part] = dict(value)
-    for part in ("head", "body", "resonant_head"):
-        if part in table and not isinstance(table[part], dict):
-            raise InputError(part, table[part], "must be a table")
-    head = table.setdefault("head", {})
-    # a shell's two heads share one diameter, so a new size applies to both
-    sized = [head] + ([table["resonant_head"]] if isinstance(table.get("resonant_head"), dict) else [])
-    for part in sized:
-        if diameter is not None:
-            part.pop("radius", None)
-            part["diameter"] = diameter
-        if radius is not None:
-            part.pop("diameter", None)
-            part["radius"] = radius
-    if tension is not None:
-        head["tension"] = tension
-    if film is not None or thickness is not None:
-        head.pop("areal_density", None)
-        if film is not None:
-            head["film"] = film
-            head.pop("density", None)
-        if thickness is not None:
-            head["thickness"] = thickness
-    if areal_density is not None:
-        head["areal_density"] = areal_density
-    bod = table.setdefault("body", {})
-    if body is not None and body != bod.get("kind", "none"):
-        bod.clear()
-        bod["kind"] = body
-        if body != "shell":
-            table.pop("resonant_head", None)
-        elif "resonant_head" not in table:
-            table["resonant_head"] = dict(head)
-    if volume is not None:
-        bod["volume"] = volume
-    if depth is not None:
-        bod["depth"] = depth
-    if keys:
-        _lay_keys(table, keys)
-    return table
-
-
-# What a key laid over a file replaces there, so the file and the flags never disagree:
-# a film, thickness or density replaces an areal density (and a film a custom density);
-# air given by temperature and pressure replaces air given by density and sound speed.
-_HEAD_REPLACES = {"film": ("areal_density", "density"), "thickness": ("areal_density",),
-                  "density": ("areal_density",)}
-_AIR_REPLACES = {"temperature": ("density", "sound_speed"), "pressure": ("density", "sound_speed"),
-                 "density": ("temperature", "pressure"), "sound_speed": ("temperature", "pressure")}
-
-
-def _lay_keys(table: dict, keys: dict) -> None:
-    """Lay (table, key) -> value pairs over a drum-file table, in place."""
-    for (where, key), value in keys.items():
-        if where == "resonant_head" and "resonant_head" not in table:
-            # a resonant head described by flags alone starts as a copy of the struck head
-            table["resonant_head"] = dict(table.get("head", {}))
-        part = table.setdefault(where, {})
-        if not isinstance(part, dict):
-            raise InputError(where, part, "must be a table")
-        for old in (_AIR_REPLACES if where == "air" else _HEAD_REPLACES).get(key, ()):
-            part.pop(old, None)
-        part[key] = value
+        return getattr(drumfile, name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

@@ -103,11 +103,13 @@ class Mode:
 
         ``"(0,1) in-phase, resonant head"``: the head named is the one the mode grows
         from (its in-vacuum origin, the head that moves most); see :data:`HEAD_NOTE`.
+        Any root with a head fraction in :data:`HYBRID` is marked ``hybrid``, head and air
+        rows alike (``"(0,1) hybrid"``).
         """
         if self.kind == "air":
             q, p = self.air_mode
             return air_label(self.m, q, p, hybrid=self.hybrid)
-        return mode_label(self.m, self.n, branch=self.branch, head=self.head)
+        return mode_label(self.m, self.n, branch=self.branch, head=self.head, hybrid=self.hybrid)
 
     @property
     def hybrid(self) -> bool:

@@ -51,13 +51,15 @@ def cents(frequency, reference):
     return 1200.0 * np.log2(np.asarray(frequency, dtype=float) / np.asarray(reference, dtype=float))
 
 
-def mode_label(m: int, n: int, *, branch: str | None = None, head: str | None = None) -> str:
+def mode_label(m: int, n: int, *, branch: str | None = None, head: str | None = None,
+               hybrid: bool = False) -> str:
     """A head mode as the package writes it: ``"(m,n)"``, m nodal diameters and n nodal circles.
 
     ``branch`` (a shell's ``"in-phase"`` / ``"opposed"``) and ``head`` (``"struck"`` /
-    ``"resonant"``) follow in words: ``"(0,1) in-phase, resonant head"``.
+    ``"resonant"``) follow in words: ``"(0,1) in-phase, resonant head"``; ``hybrid`` (a root
+    shared between head and body air) last: ``"(0,1) hybrid"``.
     """
-    words = [w for w in (branch, f"{head} head" if head else None) if w]
+    words = [w for w in (branch, f"{head} head" if head else None, "hybrid" if hybrid else None) if w]
     return f"({m},{n})" + (" " + ", ".join(words) if words else "")
 
 

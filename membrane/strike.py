@@ -254,10 +254,8 @@ def body_stiffness(mode: Mode, drum, omega: complex) -> tuple[complex, complex]:
     a, rho, c = mode.basis.radius, drum.air.density, drum.air.sound_speed
     w1 = _volume_displacement(mode.coefficients, mode.basis)
     w2 = 0j
-    if body.kind == "kettle":
-        length = body.volume / (np.pi * a * a)
-    else:
-        length = body.depth
+    length = drum.air_depth  # the shell's depth, or V / (pi a^2) for a kettle
+    if body.kind == "shell":
         if mode.resonant_coefficients is None:  # an uncoupled head: no plane wave through it
             return 0j, 0j
         w2 = _volume_displacement(mode.resonant_coefficients, mode.resonant_basis)

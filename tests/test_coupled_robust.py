@@ -81,3 +81,47 @@ def test_the_bowl_air_resonance_is_a_root_of_its_own():
     f, hf, lab = min(air, key=lambda a: abs(a[0] - f_air))
     assert lab[1:] == (0, 0)  # (q, p) = (0, 0): no nodal circle, no node along the depth
     assert abs(f / f_air - 1) < 0.1 and hf < 0.5
+
+
+def test_a_long_kettle_ladder_of_air_resonances_is_scanned():
+    # a 7-inch head over a 0.18 m^3 kettle: a 7.25 m air column, whose longitudinal
+    # resonances lie c / 2L = 24 Hz apart (a rigid-walled pipe closed at both ends, from
+    # memory); the (4,n) head modes sit among dozens of them and are all found
+    from membrane.drum import parse_drum
+
+    drum = parse_drum({"name": "generated drum (invented)",
+                       "head": {"diameter": "7 in", "film": "polyester", "thickness": "0.19 mm",
+                                "plies": 1, "tension": "2000 N/m"},
+                       "body": {"kind": "kettle", "volume": "0.18 m^3"}})
+    od = solve_drum(drum, m_max=4, n_max=3, only=4, losses=drum.losses)[0]
+    heads = [r for r, lab in enumerate(od.labels) if lab is not None and lab[0] == "head"]
+    assert [od.labels[r][2] for r in heads] == [1, 2, 3]
+    assert np.all(od.omega.imag > 0)  # every root decays
+
+
+def test_no_lossless_root_sits_on_a_rigid_walled_resonance():
+    # with the walls' boundary-layer losses every root of the loaded bowl decays; the exact
+    # rigid-walled resonances c sqrt(gamma^2 + (p pi / L)^2) (gamma: zeros of J_m', A&S
+    # Table 9.5) are poles of the operator, not modes, and must not come back as rows
+    from membrane.physics.cavity import duct_wavenumbers
+
+    drum = load_drum("kettledrum")
+    od = solve_drum(drum, m_max=9, n_max=10, only=9, losses=drum.losses)[0]
+    assert np.all(od.omega.imag > 1e-9 * np.abs(od.omega))
+    a, L = drum.head.radius, od.order.depth
+    gamma = duct_wavenumbers(m=9, count=12, radius=a)
+    rigid = drum.air.sound_speed * np.hypot(gamma[:, None], np.arange(40)[None, :] * np.pi / L)
+    gap = np.min(np.abs(od.omega.real[:, None] - rigid.ravel()[None, :]), axis=1)
+    assert np.all(gap > 1e-8 * od.omega.real)
+    # and the head modes keep their spacing: (9,9) and (9,10) are next to each other, as the
+    # in-vacuum j_9,n (A&S Table 9.5) are
+    f = {lab[2]: w.real for w, lab in zip(od.omega, od.labels) if lab and lab[0] == "head"}
+    assert f[10] - f[9] < 1.5 * (f[9] - f[8])
+
+
+def test_hybrid_head_rows_are_marked_in_the_table():
+    # a root with 20-80 % of its energy in the head is a hybrid, head row or air row
+    drum = load_drum("kettledrum")
+    for md in full_modes(drum, m_max=1, n_max=2, losses=drum.losses, air=True):
+        assert md.hybrid == (0.2 <= md.head_fraction <= 0.8)
+        assert ("hybrid" in md.label) == md.hybrid, md.label

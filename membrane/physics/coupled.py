@@ -845,23 +845,9 @@ def _orders(drum, *, m_max: int, n_max: int, settings: Settings):
     count = n_max + settings.extra_modes
     a = head.radius
     kind = body.kind
-    if kind == "kettle":
-        if body.volume is None or not body.volume > 0:
-            raise InputError("body.volume", body.volume, "a kettle needs a volume > 0 (m^3)")
-        depth, faces = body.volume / (np.pi * a * a), 1
-    elif kind == "shell":
-        if body.depth is None or not body.depth > 0:
-            raise InputError("body.depth", body.depth, "a shell needs a depth > 0 (m)")
-        if res is None:
-            raise InputError("resonant_head", None, "a shell needs a [resonant_head]")
-        if abs(res.radius - a) > 1e-9 * a:
-            raise InputError("resonant_head.diameter", 2 * res.radius,
-                             f"must equal the struck head's diameter {2 * a:g} m for a shell")
-        depth, faces = body.depth, 1
-    elif kind == "none":
-        depth, faces = None, 2
-    else:
-        raise InputError("body.kind", kind, "must be one of: none, kettle, shell")
+    # Drum holds its own invariants (a kettle has a volume, a shell a depth and a resonant head
+    # of the same diameter), so nothing is re-validated here
+    depth, faces = (drum.air_depth, 1) if kind in ("kettle", "shell") else (None, 2)
     orders, which, omega0, x0, tags = [], [], [], [], []
     for m in range(m_max + 1):
         h1 = HeadOrder(head, m=m, count=count, rim=settings.rim)
