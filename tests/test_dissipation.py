@@ -208,3 +208,28 @@ def test_kettle_forms_are_the_two_ended_forms_with_a_rigid_far_end():
     two = dz.duct_wall_forms(k, gamma=gamma, norms=norms, radius=a, depth=L, m=m, heads=2)
     for x, y in zip(one, two):
         assert np.allclose(x, y[:, :12, :12], rtol=1e-12, atol=0)
+
+
+def test_open_faces_damp_as_a_stokes_layer_under_the_moving_head():
+    # Stokes' second problem (Landau & Lifshitz, Fluid Mechanics, 2nd ed., sec. 24): a wall
+    # sliding in its plane at velocity u under air dissipates Re(z_v)|u|^2/2 per unit area,
+    # z_v = (1+i) rho sqrt(omega nu / 2). In the subsonic limit of dissipation.py the air slides
+    # over each open face as fast as the face moves, so a mode of a head alone (two open faces)
+    # decays at Im omega = 2 Re(z_v) / (2 (sigma + m_a)), m_a the air's added mass per area,
+    # read from the shift of the mode against the same head in vacuum: (omega_vac/omega)^2 - 1.
+    # A heavy head, so that the air's loading is a small correction and that estimate of it holds.
+    head = Head(radius=0.2, tension=2000.0, areal_density=1.0)
+    air = AIR
+    layers = Losses(tension_loss_factor=0.0, film_loss_factor=0.0, boundary_layers=True, edge_mobility=0.0)
+    drum = Drum(head=head, air=air, losses=layers)
+    mu = dz.air_viscosity(air_temperature := dz.air_temperature(air.sound_speed))
+    assert air_temperature == pytest.approx(293.15, rel=1e-9)
+    rad = {(mo.m, mo.n): mo.omega for mo in solve(drum, "full", m_max=6, n_max=2, losses="radiation")}
+    lossy = {(mo.m, mo.n): mo.omega for mo in solve(drum, "full", m_max=6, n_max=2, losses="all")}
+    vac = {(mo.m, mo.n): mo.omega.real for mo in solve(drum, "ideal", m_max=6, n_max=2)}
+    for key in [(2, 1), (4, 1), (6, 1), (4, 2)]:  # membrane wavenumber well above the acoustic one
+        omega = lossy[key].real
+        zv = dz.viscous_layer_impedance(omega, density=air.density, viscosity=mu)
+        added = (vac[key] / rad[key].real) ** 2 - 1.0
+        expected = 2 * zv.real / (2 * head.areal_density * (1 + added))
+        assert lossy[key].imag - rad[key].imag == pytest.approx(expected, rel=0.005), key
