@@ -26,15 +26,19 @@ LOSS_CHOICES = ("radiation", "all")
 # Loss factor of the stretched head, as mounted, applied as a complex tension. Set from
 # measured decay of real kettledrums: the (2,1)..(4,1) partials of three timpani recordings
 # (issue 19: T60 3.4-11.5 s at about 95-250 Hz) give 1/Q = 2 ln(1000) / (omega T60) of about
-# 1e-3 to 5e-3; we take 2e-3. Not a film datasheet value: linear membrane theory has no
-# first-order in-plane strain for the film's own viscoelasticity to act on (docs/losses.md).
+# 1e-3 to 5e-3; we take 2e-3. Checked on the recordings in tests/data (tests/test_loss_fit_real.py):
+# every measured (m,1) partial, m = 1..5, within a factor 3 of the model with these defaults.
+# Not a film datasheet value: linear membrane theory has no first-order in-plane strain for the
+# film's own viscoelasticity to act on (docs/losses.md).
 TENSION_LOSS_FACTOR = 2.0e-3
 # Loss tangent of polyester (PET) film at room temperature in the audio band, about 0.01-0.02
 # (from memory: the beta relaxation of PET, McCrum, Read & Williams, Anelastic and Dielectric
 # Effects in Polymeric Solids, 1967); it damps the bending part of the head's stiffness.
 FILM_LOSS_FACTOR = 0.015
-# Resistive line mobility of the rim and hoop: no published value for drums is known to us,
-# so the default is none; a fit to a recording can set it (docs/losses.md).
+# Resistive line mobility of the rim and hoop: no published value for drums is known to us.
+# Fitted on the three recordings in tests/data it is 0.7e-4 to 3.5e-4 m/(N s), a factor 5 from
+# drum to drum, and a joint value predicts them no better than the tension loss factor alone
+# (docs/losses.md), so the default is none; `listen --drum` fits it where a recording shows it.
 EDGE_MOBILITY = 0.0
 
 

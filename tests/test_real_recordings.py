@@ -95,8 +95,12 @@ def test_strongest_partial_is_a_drum_partial(analysed, name):
 @pytest.mark.parametrize("name", [
     "timpani_low_1.flac", "timpani_mid_1.flac",
     pytest.param("timpani_high_1.flac", marks=pytest.mark.xfail(
-        strict=True, reason="a 1028 Hz partial (T60 1.2 s) comes out at -17 dB at 20 ms; the "
-        "long-window spectrum has it near -30 dB: its level is not yet right")),
+        strict=True, reason="the recording has a line near 1041 Hz (T60 1.7 s) at about -17 "
+        "dB re its strongest line (the (2,1), 147.7 Hz) 20 ms after the onset (1 s Hann "
+        "window, energy within 3 Hz, decay from windows 50 ms apart): the -20 dB criterion "
+        "does not hold for this recording itself. The analysis also over-reports there: "
+        "1040.4 Hz at -6.7 dB and 1045.4 Hz at -9.5 dB (a pair that partly cancels), and "
+        "1028.2 Hz at -18 dB where the same measure gives -28 dB")),
 ])
 def test_timpani_nothing_loud_above_1_khz(analysed, name):
     # a timpano's partials above 1 kHz are weak (Rossing, Science of Percussion Instruments,
@@ -178,3 +182,69 @@ def test_a_timpano_with_a_plausible_drum_file_labels_and_tension(analysed, tmp_p
     target = tension_for(drum, targets=[((1, 1), ref[0])], physics="full").tension
     assert result.tension == pytest.approx(target, rel=0.10)
     assert 0 < result.uncertainty < 0.1 * result.tension
+
+
+def long_window_level_check(name, analysis, *, window_s=1.0, band_hz=3.0, min_t60=0.3,
+                            strong_db=-20.0, f_max=1000.0):
+    """Each strong line's energy in a long window of the recording, against what the
+    reported partials predict there; returns [(frequency Hz, predicted - measured dB)].
+
+    The measurement is independent of the analysis: one Hann window (scipy.signal) of
+    ``window_s`` from 20 ms after the onset (the first sample above a tenth of the peak),
+    its DFT, and the energy of the bins within ``band_hz`` of each strong peak of the
+    reference spectrum (:func:`reference_peaks`, within ``strong_db`` of its highest).
+    The prediction carries each reported partial in that band from its level at the
+    reference time through the window with its measured decay: a damped line of amplitude
+    A and decay rate r puts (N / 4) A^2 sum_t w(t)^2 exp(-2 r t) into its bins of an
+    N-point DFT (Parseval; partials a few Hz apart add their energies). A band counts
+    when partials with T60 above ``min_t60`` carry most of its predicted energy, and not
+    when a gliding partial crosses it (a glide spreads over the band in a long window).
+    Relative levels agree when predicted minus measured is the same for every band.
+    """
+    x, rate = soundfile.read(DATA / name, always_2d=True)
+    x = x.mean(axis=1)
+    onset = int(np.argmax(np.abs(x) > 0.1 * np.abs(x).max()))
+    n = int(window_s * rate)
+    w = scipy.signal.get_window("hann", n)
+    start = onset + int(round(0.02 * rate))
+    spectrum = np.abs(np.fft.rfft(x[start:start + n] * w)) ** 2
+    freqs = np.fft.rfftfreq(n, 1.0 / rate)
+    t = 0.02 + np.arange(n) / rate - (analysis.reference_time - analysis.strike_time)
+    out = []
+    for f, level in reference_peaks(DATA / name):
+        if level < strong_db or f > f_max:
+            continue
+        near = [p for p in analysis.partials if abs(p.frequency - f) <= band_hz]
+        if any("glide" in p.flags and min(p.settled, p.frequency) - band_hz <= f
+               <= max(p.settled, p.frequency) + band_hz for p in analysis.partials):
+            continue
+        energy = [n / 4 * p.amplitude**2 * np.sum(w**2 * np.exp(-2 * p.decay_rate * t))
+                  for p in near]
+        long_ = sum(e for e, p in zip(energy, near) if p.t60 is not None and p.t60 > min_t60)
+        if not near or long_ < 0.5 * sum(energy):
+            continue
+        measured = float(np.sum(spectrum[np.abs(freqs - f) <= band_hz]))
+        out.append((f, 10 * np.log10(sum(energy) / measured)))
+    return out
+
+
+@pytest.mark.parametrize("name", [
+    pytest.param("timpani_low_1.flac", marks=pytest.mark.xfail(strict=True, reason=(
+        "the principal band (64.5 Hz) is predicted 7.5 dB above the median: the analysis "
+        "reports two partials 0.5 Hz apart (63.98 and 64.49 Hz) whose amplitudes partly "
+        "cancel; 97.6 Hz (the (2,1)) -9.2 dB, 105.9 Hz +6.5 dB, 161.2 Hz -3.9 dB, 376.0 Hz "
+        "-3.7 dB; 9 of 14 bands within 3 dB"))),
+    pytest.param("timpani_mid_1.flac", marks=pytest.mark.xfail(strict=True, reason=(
+        "the principal band (73.3 Hz) is predicted 6.7 dB above the median: two partials "
+        "0.2 Hz apart (73.17 and 73.37 Hz, closer than 1/(2T) of the 2 s excerpt) whose "
+        "amplitudes cancel"))),
+    pytest.param("timpani_high_1.flac", marks=pytest.mark.xfail(strict=True, reason=(
+        "11 of 17 bands within 3 dB; 90.1 Hz -3.7, 178.4 Hz -6.5, 278.5 Hz -4.1, 284.0 Hz "
+        "-4.4, 297.0 Hz -7.7, 565.3 Hz -4.0 dB"))),
+])
+def test_levels_agree_with_a_long_window_of_the_recording(analysed, name):
+    rows = long_window_level_check(name, analysed[name])
+    assert len(rows) >= 2, rows
+    offset = float(np.median([d for _, d in rows]))
+    off = [(round(f, 1), round(d - offset, 1)) for f, d in rows if abs(d - offset) > 3.0]
+    assert not off, (name, off, [(round(f, 1), round(d - offset, 1)) for f, d in rows])

@@ -1,4 +1,4 @@
-r"""The head coupled to the air on its faces and in its body: complex frequencies (DESIGN.md 3.5).
+r"""The head coupled to the air on its faces and in its body: complex frequencies (docs/physics.md "Solving").
 
 For each angular order m the head's displacement is expanded over a Ritz space: its in-vacuum
 modes (ideal or exact stiff) plus one *rim function*, the head's static response to a pressure
@@ -29,7 +29,8 @@ resonance or by a neighbour it hybridises with. A root that cannot be followed r
 
 All roots of all orders are iterated together (batched linear solves; the radiation matrices
 come from Chebyshev tables in :math:`(ka)^2` that depend on dimensionless geometry only and
-are cached per process), which is what makes the full table fast.
+are cached in the process and kept on disk between runs, table_cache.py), which is what makes
+the full table fast.
 """
 
 from __future__ import annotations
@@ -951,7 +952,7 @@ def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) 
     head mode that are mostly air (head fraction < 0.5) are air rows, named by the nearest
     rigid-walled resonance of the body.
     """
-    from scipy.optimize import linear_sum_assignment
+    from ..assignment import linear_sum_assignment  # scipy's algorithm without scipy.optimize's import
 
     R = len(omega)
     labels = [None] * R
