@@ -32,7 +32,7 @@ Striking and listening
 Uneven tension
     split_table, estimate_lugs, prescribe_turns
 Notation
-    cents, note_name, parse_pitch, mode_label
+    cents, note_name, parse_pitch, mode_label, mode_list
 Errors
     MembraneError, InputError, SolverError, RecordingError
 
@@ -67,7 +67,7 @@ _WHERE = {
     # uneven tension
     "estimate_lugs": "lugs", "prescribe_turns": "lugs", "split_table": "lugs",
     # notation
-    "cents": "notation", "mode_label": "notation", "note_name": "units", "parse_pitch": "units",
+    "cents": "notation", "mode_label": "notation", "mode_list": "notation", "note_name": "units", "parse_pitch": "units",
     # errors
     "InputError": "errors", "MembraneError": "errors", "RecordingError": "errors", "SolverError": "errors",
 }

@@ -225,7 +225,7 @@ class Air:
         Notes
         -----
         rho = P / (R T), c = sqrt(gamma R T) with R = 287.058 J/(kg K) and gamma = 1.4:
-        343.24 m/s and 1.2041 kg/m^3 at 20 degC and 101.325 kPa (SOURCES.md). Humidity
+        343.24 m/s and 1.2041 kg/m^3 at 20 degC and 101.325 kPa (docs/references.md, "Air and pitch"). Humidity
         is neglected (it raises c by well under 1 % at room temperature).
         """
         for key, value in (("temperature", temperature), ("pressure", pressure)):
