@@ -51,7 +51,7 @@ class Track:
 
 def order_roots(drum, *, m: int, n_max: int, cross_sign=None, losses=None):
     """The OrderRoots of order m (the branch ``cross_sign`` of identical shell heads)."""
-    from .physics.coupled import solve_drum
+    from .physics.assembly import solve_drum
 
     for od in solve_drum(drum, m_max=m, n_max=n_max, only=m, losses=losses):
         if od.order.m == m and (cross_sign is None or od.order.cross_sign in (None, cross_sign)):
@@ -127,7 +127,7 @@ def follow(make_drum, values, *, m: int, n_max: int, cross_sign=None, roots=None
 
 def order_root_set(drum, *, m: int, n_max: int, losses=None, cross_sign=None):
     """The operators of order m alone (coupled.order_root_set), for local solves."""
-    from .physics.coupled import order_root_set
+    from .physics.assembly import order_root_set
 
     return order_root_set(drum, m=m, n_max=n_max, losses=losses, cross_sign=cross_sign)
 
@@ -168,7 +168,7 @@ def follow_root(drum_at, *, m: int, n_max: int, x0: float, omega0: complex, vect
     re-solving the drum at every value.
     """
     from .physics import spectrum, tracking
-    from .physics.coupled import DEFAULT
+    from .physics.operator import DEFAULT
 
     sets = {} if sets is None else sets
 
@@ -195,7 +195,7 @@ def follow_roots(drum_at, *, m: int, n_max: int, x0: float, omega0, vectors0, x1
     As :func:`follow_root`, with ``omega0`` (R,) and ``vectors0`` (R, size).
     """
     from .physics import spectrum, tracking
-    from .physics.coupled import DEFAULT
+    from .physics.operator import DEFAULT
 
     sets = {} if sets is None else sets
 
@@ -230,7 +230,7 @@ def rigid_resonances(order, sound_speed: float, top_hz: float) -> np.ndarray:
     c sqrt(gamma_q^2 + (p pi / L)^2) / 2 pi: gamma_q the zeros of J_m' over the head's radius
     (the duct's cross modes), p half-waves along the depth L. Empty without a body.
     """
-    from .physics.coupled import order_duct_gammas
+    from .physics.assembly import order_duct_gammas
 
     if order.depth is None:
         return np.zeros(0)

@@ -24,7 +24,6 @@ import math
 from dataclasses import dataclass, replace
 
 import numpy as np
-from scipy import optimize
 
 from .drum import Drum, Head
 from .errors import InputError, SolverError
@@ -82,7 +81,7 @@ class _Model:
         """Order m -> its coupled.OrderRoots at a tension (full physics on one head only)."""
         key = (float(tension), free, value)
         if key not in self.roots:
-            from .physics.coupled import solve_drum
+            from .physics.assembly import solve_drum
 
             drum = self.variant(tension, free, value)
             losses = drum.losses if self.losses == "all" else None
@@ -226,7 +225,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     One target: a root of ln(f_mn(T) / f*) in ln T (membrane.tension_search), to within
     0.001 cent, or a refusal in words (below the slack limit, beyond the film's strength,
     or across an air resonance of the body, where the labelled mode jumps). Several: least squares in cents over
-    ln T (and the free parameter's log) with scipy's trust-region solver.
+    ln T (and the free parameter's log), tension_search.fit (scipy's trust-region solver).
     """
     targets = [((int(m), int(n)), float(hz)) for (m, n), hz in targets]
     if not targets:
@@ -271,10 +270,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
             v = math.exp(p[1]) if free else None
             return _cents(model.frequencies(math.exp(p[0]), free, v), wanted)
 
-        fit = optimize.least_squares(residuals, x0, bounds=bounds, x_scale=0.1, diff_step=1e-6,
-                                     xtol=1e-12, ftol=1e-12, gtol=1e-12)
-        if not np.all(np.isfinite(fit.fun)):
-            raise SolverError(f"the least-squares fit did not converge ({fit.message})")
+        fit = tension_search.fit(residuals, x0=x0, lower=bounds[0], upper=bounds[1])
         tension = math.exp(fit.x[0])
         value = math.exp(fit.x[1]) if free else None
 

@@ -1,6 +1,6 @@
 r"""Every root of one order of the coupled operator in a frequency window: scan, refine, weigh.
 
-The operator :math:`Z(\omega) = K + S(\omega) - \omega^2 (M + A(\omega))` (coupled.py) has
+The operator :math:`Z(\omega) = K + S(\omega) - \omega^2 (M + A(\omega))` (operator.py) has
 poles where the body's air, with the heads held still, resonates: the duct terms
 :math:`\cot(\beta L)/\beta` and :math:`\csc(\beta L)/\beta`. For the contour method
 (contour.py) the operator must be analytic, so the duct modes that can propagate in the
@@ -70,7 +70,7 @@ class OrderProblem:
 
     Parameters
     ----------
-    rs : membrane.physics.coupled.RootSet
+    rs : membrane.physics.operator.RootSet
         The drum's operators.
     i : int
         Order index in ``rs``.
