@@ -94,6 +94,10 @@ class HeadsTuning:
     solves: int
     branches: dict = None  # (head, m, n) -> its pair member in the drum as given (coupled shell)
 
+    def __repr__(self) -> str:
+        heads = ", ".join(f"{h} {self.current[h]:.1f} -> {self.tension[h]:.1f} N/m" for h in self.tension)
+        return f"HeadsTuning({heads}, {len(self.met)} goals, rms {self.rms_cents:.3f} cents, other head {self.other})"
+
     @property
     def rms_cents(self) -> float:
         """Root-mean-square residual over targets and intervals, cents."""

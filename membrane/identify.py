@@ -53,6 +53,7 @@ from .drum import Drum
 from .errors import InputError, SolverError
 from .modes import ModeSet
 from . import notation
+from .callable_module import make_callable
 from .recording import Partial
 from .solver import solve
 
@@ -157,6 +158,10 @@ class Identification:
     beyond: tuple[Partial, ...] = ()
     uncertainty: float = math.nan
     physics: str = "full"
+
+    def __repr__(self) -> str:
+        return (f"Identification({self.tension:.1f} N/m fitted, {len(self.matches)} partials matched, "
+                f"{len(self.unmatched)} unmatched, rms {self.rms_cents:.1f} cents, {self.physics} physics)")
 
     @property
     def rms_cents(self) -> float:
@@ -626,3 +631,6 @@ def _result(drum, tension, t0, parts, pairs, labels, freqs, modes, cover, uncert
                           splits=tuple(sorted(splits, key=lambda sp: sp.low.frequency)),
                           modes=modes, beyond=tuple(p for p in parts if p.settled > cover),
                           uncertainty=uncertainty, physics=physics)
+
+
+make_callable(__name__, "identify")  # membrane.identify(...) is this module's identify(...)

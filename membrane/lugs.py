@@ -75,6 +75,11 @@ class SplitTable:
     method: str
     notes: tuple = ()
 
+    def __repr__(self) -> str:
+        worst = max(self.splits, key=lambda s: s.beat_hz, default=None)
+        most = f", widest ({worst.m},{worst.n}) beating {worst.beat_hz:.2f} Hz" if worst is not None else ""
+        return f"SplitTable({len(self.splits)} modes, {self.physics} physics, {self.method}{most})"
+
     def find(self, m: int, n: int) -> Split:
         """The split of (m, n)."""
         for s in self.splits:
@@ -167,6 +172,11 @@ class LugEstimate:
     seen: tuple
     unseen: tuple
     rms_residual: float
+
+    def __repr__(self) -> str:
+        return (f"LugEstimate({self.count} lugs, mean {self.mean_tension:.1f} N/m, "
+                f"{'tensions per lug' if self.tensions is not None else 'no per-lug tensions'}, "
+                f"rms residual {self.rms_residual:.2f})")
 
     def rim(self) -> RimTension | None:
         """The estimated rim tension (smooth spread), or None without lug tensions."""

@@ -11,6 +11,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from .drum import Drum
 from .errors import InputError
 from .physics.vacuum import RadialBasis
 from .notation import air_label, cents, mode_label
@@ -110,6 +111,10 @@ class Mode:
             q, p = self.air_mode
             return air_label(self.m, q, p, hybrid=self.hybrid)
         return mode_label(self.m, self.n, branch=self.branch, head=self.head, hybrid=self.hybrid)
+
+    def __repr__(self) -> str:
+        t60 = f", T60 {self.decay:.3g} s" if self.decay else ""
+        return f"Mode({self.label}, {self.frequency:.2f} Hz{t60})"
 
     @property
     def hybrid(self) -> bool:
@@ -233,9 +238,17 @@ class ModeSet:
 
     modes: tuple
     physics: str
-    drum: object
+    drum: Drum
     notes: tuple = ()
     losses: str = "all"
+
+    def __repr__(self) -> str:
+        name = getattr(self.drum, "name", None)
+        span = ""
+        if self.modes:
+            lo, hi = self.modes[0], self.modes[-1]
+            span = f": {lo.label} {lo.frequency:.2f} Hz ... {hi.label} {hi.frequency:.2f} Hz"
+        return f"ModeSet({name!r}, {self.physics} physics, {len(self.modes)} modes{span})"
 
     def __iter__(self):
         return iter(self.modes)

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
+from .blas import one_blas_thread
 from .drum import Drum, Head
 from .errors import InputError
 from .losses import Losses, check_choice
@@ -61,6 +62,7 @@ def vacuum_modes(drum: Drum, *, m_max: int, n_max: int, stiff: bool) -> list[Mod
     return modes
 
 
+@one_blas_thread  # many small matrix products: threads only contend (membrane/blas.py)
 def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3,
           losses: str = "all") -> ModeSet:
     """Solve a drum's modes.

@@ -66,10 +66,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from .audio import complex_omega, save_wav, synthesize  # noqa: F401  (their old home: still importable here)
+from .callable_module import make_callable
 from .errors import InputError
 from .modes import Mode, ModeSet
 
-from .notation import LN1000  # noqa: E402  (60 dB of decay: rate * t = 3 ln 10)
+from .notation import LN1000, mode_list  # noqa: E402  (60 dB of decay: rate * t = 3 ln 10)
 
 # Presets (strike point, mallets, listener) are rules of thumb kept in presets.py.
 from .presets import (DEFAULT_AT, DEFAULT_LISTENER_ANGLE, DEFAULT_LISTENER_DISTANCE,  # noqa: E402,F401
@@ -159,6 +160,9 @@ class Partial:
     shape_at_strike: float
     level_db: float
 
+    def __repr__(self) -> str:
+        return f"Partial({self.mode.label}, {self.frequency:.2f} Hz, {self.level_db:+.1f} dB)"
+
 
 @dataclass(frozen=True)
 class StrikeAdvice:
@@ -180,6 +184,10 @@ class StrikeAdvice:
     contrast_db: float
     partials: tuple
     chosen: tuple
+
+    def __repr__(self) -> str:
+        return (f"StrikeAdvice(at r/a = {self.at:.3f} for {mode_list(self.chosen)}, "
+                f"contrast {self.contrast_db:+.1f} dB, {len(self.partials)} partials)")
 
 
 def pulse_spectrum(omega, *, contact_time: float):
@@ -438,3 +446,6 @@ def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS
     partials = strike_partials(modeset, strike=Strike(at=at, contact_time=contact_time, angle=angle),
                                listener=listener)
     return StrikeAdvice(at=at, contrast_db=best, partials=partials, chosen=chosen)
+
+
+make_callable(__name__, "strike_partials")  # membrane.strike(modeset, ...) is strike_partials(...)

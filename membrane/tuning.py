@@ -137,6 +137,11 @@ class Tuning:
     warnings: tuple
     solves: int
 
+    def __repr__(self) -> str:
+        goals = ", ".join(f"({t.m},{t.n}) {t.target_hz:.2f} Hz" for t in self.targets)
+        return (f"Tuning({self.current_tension:.1f} -> {self.tension:.1f} N/m ({self.change_percent:+.1f} %), "
+                f"targets {goals}, rms {self.rms_cents:.3f} cents, {len(self.warnings)} warnings)")
+
     @property
     def change_percent(self) -> float:
         """Tension change in % of the current tension."""

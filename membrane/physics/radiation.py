@@ -48,6 +48,7 @@ import numpy as np
 from numpy.polynomial import chebyshev
 from scipy import special
 
+from ..blas import one_blas_thread
 from ..errors import SolverError
 
 
@@ -225,6 +226,7 @@ class RadiationTable:
         Relative size of the discarded Chebyshev coefficients.
     """
 
+    @one_blas_thread
     def __init__(self, space, *, k_max: float, quadrature: Quadrature = Quadrature(),
                  tol: float = 1e-11):
         self.k_max = float(k_max)

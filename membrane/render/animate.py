@@ -64,6 +64,28 @@ def _quiet_vtk() -> None:
     vtkLogger.SetStderrVerbosity(vtkLogger.VERBOSITY_ERROR)
 
 
+def _offscreen_plotter(pv, size):
+    """An off-screen pyvista Plotter, without pyvista's display probe.
+
+    Creating a Plotter first asks whether the system can show windows (on Linux it runs
+    ``xset`` and, failing that, opens a throwaway OpenGL render window) only to decide
+    whether to warn about a missing X server. Off screen there is nothing to show, so
+    the probe is skipped through pyvista's own switch for it, ALLOW_PLOTTING, set for
+    this call only.
+    """
+    import os
+
+    before = os.environ.get("ALLOW_PLOTTING")
+    os.environ["ALLOW_PLOTTING"] = "true"
+    try:
+        return pv.Plotter(off_screen=True, window_size=size)
+    finally:
+        if before is None:
+            del os.environ["ALLOW_PLOTTING"]
+        else:
+            os.environ["ALLOW_PLOTTING"] = before
+
+
 def _depth(drum) -> float:
     """Drawn depth of the body below the rim, in radii (a shell to scale, else a hint)."""
     body = getattr(drum, "body", None)
@@ -107,7 +129,7 @@ class HeadScene:
 
         _quiet_vtk()
         self.view = view
-        p = pv.Plotter(off_screen=True, window_size=(view.width, view.height))
+        p = _offscreen_plotter(pv, (view.width, view.height))
         # vtk's default multisampling costs 3-5x per frame in software rendering
         # (no GPU); the mesh is fine enough that the edges stay clean without it.
         p.disable_anti_aliasing()

@@ -63,8 +63,10 @@ def sample(mode, *, radial: int = RADIAL_POINTS, angular: int = ANGULAR_POINTS,
     a = mode.basis.radius if not resonant else mode.resonant_basis.radius
     r = np.linspace(0.0, 1.0, radial)
     theta = np.linspace(0.0, 2.0 * np.pi, angular)
-    rr, tt = np.meshgrid(r * a, theta)
-    w = mode.field(rr, tt, resonant=resonant)
+    # w = shape(r) cos(m theta) (Mode.field): the radial shape on the grid's radii once, not
+    # at every grid point (the Bessel sums are the cost of a picture)
+    shape = mode.radial_shape(r * a, resonant=resonant)
+    w = np.cos(mode.m * theta)[:, None] * shape[None, :]
     return PolarField(r=r, theta=theta, w=w)
 
 
@@ -100,10 +102,9 @@ def nodal_lines(mode, *, resonant: bool = False) -> NodalLines | None:
     The angular part of every solved mode is cos(m theta), so its m nodal diameters sit
     at theta = (2k + 1) pi / (2m); the nodal circles are the sign changes of the
     radial shape (:meth:`Mode.radial_shape`, the solver's mode vector), refined by
-    Brent's method. None when the mode has no radial shape to read (draw a contour).
+    regula falsi (all circles at once). None when the mode has no radial shape to read
+    (draw a contour).
     """
-    from scipy.optimize import brentq
-
     shape = getattr(mode, "radial_shape", None)
     basis = mode.resonant_basis if resonant else getattr(mode, "basis", None)
     if shape is None or basis is None:
@@ -117,12 +118,15 @@ def nodal_lines(mode, *, resonant: bool = False) -> NodalLines | None:
     if not np.all(np.isfinite(w)) or peak == 0:
         return NodalLines(diameters=diameters, circles=()) if peak == 0 else None
     loud = np.abs(w) > QUIET * peak
-    circles = []
+    lo, hi = [], []
     for i in np.flatnonzero((np.sign(w[1:]) * np.sign(w[:-1]) <= 0) & loud[:-1]):
         j = i + 1 + int(np.argmax(loud[i + 1:])) if not loud[i + 1] else i + 1  # across a zero sample
         if j >= r.size or not loud[j] or np.sign(w[j]) == np.sign(w[i]):
             continue
-        root = brentq(lambda x: float(shape(np.array([x]), resonant=resonant)[0]), r[i], r[j], xtol=1e-12 * a)
+        lo.append(r[i])
+        hi.append(r[j])
+    circles = []
+    for root in _zeros_in(lambda x: shape(x, resonant=resonant), np.array(lo), np.array(hi)):
         if root < a * (1 - RIM_GAP) and (not circles or root / a - circles[-1] > 1e-6):
             circles.append(root / a)
     # A sign change that bounds a region moving less than LOBE_FLOOR of the peak (e.g.
@@ -137,6 +141,30 @@ def nodal_lines(mode, *, resonant: bool = False) -> NodalLines | None:
         k = weak[0]
         circles.pop(k if k < len(circles) else k - 1)  # the circle bounding the weak region
     return NodalLines(diameters=diameters, circles=tuple(circles))
+
+
+def _zeros_in(f, lo: np.ndarray, hi: np.ndarray) -> np.ndarray:
+    """The zero of the vectorised f in each bracket [lo, hi] (f changes sign across each).
+
+    Illinois regula falsi on all brackets at once (the solver's edge-root finder), to a
+    relative 1e-13; bisection to the same width if that does not converge.
+    """
+    from ..physics.vacuum import _illinois
+
+    if lo.size == 0:
+        return lo
+    roots = _illinois(f, lo, hi, rtol=1e-13)
+    if roots is not None:
+        return roots
+    a, b = lo.astype(float), hi.astype(float)
+    fa = f(a)
+    while np.any(b - a > 1e-13 * np.abs(b)):
+        c = 0.5 * (a + b)
+        fc = f(c)
+        left = np.sign(fc) == np.sign(fa)
+        a, fa = np.where(left, c, a), np.where(left, fc, fa)
+        b = np.where(left, b, c)
+    return 0.5 * (a + b)
 
 
 def drawn_head(mode) -> bool:
