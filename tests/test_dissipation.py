@@ -233,3 +233,59 @@ def test_open_faces_damp_as_a_stokes_layer_under_the_moving_head():
         added = (vac[key] / rad[key].real) ** 2 - 1.0
         expected = 2 * zv.real / (2 * head.areal_density * (1 + added))
         assert lossy[key].imag - rad[key].imag == pytest.approx(expected, rel=0.005), key
+
+
+@pytest.mark.parametrize("heads", [1, 2])
+def test_wall_and_face_forms_against_direct_quadrature(heads):
+    # the closed forms of duct_wall_forms (side wall and both end faces, several duct modes,
+    # complex k) against scipy quadrature of int p^2 dS and int (grad_t p)^2 dS of the field
+    # they describe (bilinear, no conjugate: the forms enter a complex-symmetric operator)
+    from scipy import integrate, special
+
+    from membrane.physics.cavity import duct_norms, duct_wavenumbers
+
+    a, L, m = 0.3, 0.45, 2
+    gamma = duct_wavenumbers(m=m, count=3, radius=a)
+    norms = duct_norms(m=m, gamma=gamma, radius=a)
+    k = 11.0 - 0.03j  # between the first and second cut-on of m = 2
+    rng = np.random.default_rng(7)
+    w = rng.normal(size=heads * 3)  # amplitudes w_1 (and w_2 for a second head at u = 0)
+    pi, ups = dz.duct_wall_forms(np.array([k]), gamma=gamma, norms=norms, radius=a, depth=L, m=m,
+                                 heads=heads)
+    b = 1j * np.sqrt(gamma**2 - k * k + 0j)  # axial wavenumber, as in dissipation.py
+
+    def axial(u, d=0):
+        """Sum over q of psi-amplitude times e_1q(u) (and e_2q), or its u-derivative (d=1)."""
+        s = np.sin(b * L)
+        e1 = (np.cos(b * u) if d == 0 else -b * np.sin(b * u)) / (b * s)
+        out = e1 * w[:3]
+        if heads == 2:
+            e2 = (np.cos(b * (L - u)) if d == 0 else b * np.sin(b * (L - u))) / (b * s)
+            out = out + e2 * w[3:]
+        return out
+
+    def quad_c(f, lo, hi):
+        re = integrate.quad(lambda x: f(x).real, lo, hi, limit=200, epsabs=0, epsrel=1e-11)[0]
+        im = integrate.quad(lambda x: f(x).imag, lo, hi, limit=200, epsabs=0, epsrel=1e-11)[0]
+        return re + 1j * im
+
+    ang = np.pi  # int cos^2(m theta) = int sin^2(m theta) over a turn, m > 0
+    jw = special.jv(m, gamma * a)
+    side_p2 = a * ang * quad_c(lambda u: np.sum(jw * axial(u)) ** 2, 0, L)
+    side_g2 = a * ang * quad_c(lambda u: np.sum(jw * axial(u, 1)) ** 2 + (m / a) ** 2 * np.sum(jw * axial(u)) ** 2,
+                               0, L)
+
+    def face(u):
+        amp = axial(u)
+        p2 = quad_c(lambda r: np.sum(special.jv(m, gamma * r) * amp) ** 2 * r, 0, a)
+        g2 = quad_c(lambda r: (np.sum(gamma * special.jvp(m, gamma * r) * amp) ** 2
+                               + (m / r) ** 2 * np.sum(special.jv(m, gamma * r) * amp) ** 2) * r, 1e-12, a)
+        return ang * p2, ang * g2
+
+    (p_top, g_top), (p_bot, g_bot) = face(L), face(0.0)
+    assert w @ pi[0] @ w == pytest.approx(side_p2 + p_top + p_bot, rel=1e-8)
+    assert w @ ups[0] @ w == pytest.approx(side_g2 + g_top + g_bot, rel=1e-8)
+    pi_s, ups_s = dz.duct_wall_forms(np.array([k]), gamma=gamma, norms=norms, radius=a, depth=L, m=m,
+                                     heads=heads, faces=False)
+    assert w @ pi_s[0] @ w == pytest.approx(side_p2, rel=1e-8)
+    assert w @ ups_s[0] @ w == pytest.approx(side_g2, rel=1e-8)

@@ -101,3 +101,29 @@ def test_a_mechanism_the_data_want_none_of_is_fitted_as_zero():
     assert fit.fitted["tension_loss_factor"][0] == pytest.approx(0.0, abs=1e-4)
     assert fit.losses.tension_loss_factor == fit.fitted["tension_loss_factor"][0]
     assert fit.fitted["edge_mobility"][0] == pytest.approx(3e-5, rel=0.05)
+
+
+def test_listen_drum_reports_the_fit_and_which_losses_made_the_prediction(tmp_path):
+    # the CLI path: a strike preview of the built-in drum (default losses) read back by
+    # listen --drum gives back the default tension loss factor, says which losses made the
+    # predicted T60s, and puts the prediction and the dominant mechanism on the partial rows
+    import json
+
+    from typer.testing import CliRunner
+
+    from membrane.cli import app
+
+    wav = tmp_path / "preview.wav"
+    runner = CliRunner()
+    made = runner.invoke(app, ["strike", "kettledrum", "--out", str(wav), "--rate", "16000", "--seconds", "3",
+                               "--m-max", "5", "--n-max", "1", "--format", "json"])
+    assert made.exit_code == 0, made.output
+    heard = runner.invoke(app, ["listen", str(wav), "--drum", "kettledrum", "--format", "json"])
+    assert heard.exit_code == 0, heard.output
+    out = json.loads(heard.stdout)
+    fit = out["loss_fit"]
+    assert fit["parameters"]["tension_loss_factor"]["value"] == pytest.approx(2e-3, rel=0.1)
+    assert fit["losses"].startswith("decay times (T60) with --losses all")
+    rows = [r for r in out["partials"] if r.get("m") in (2, 3, 4) and r.get("n") == 1]
+    assert rows and all(r["predicted_decay_s"] == pytest.approx(r["decay_s"], rel=0.15) for r in rows)
+    assert {r["dominant_loss"] for r in rows} <= {"tension loss", "radiation"}

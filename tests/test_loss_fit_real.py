@@ -150,15 +150,16 @@ def held_out(name, m, names=("tension_loss_factor", "edge_mobility")):
 
 
 @pytest.mark.parametrize("name", list(RECORDINGS))
-def test_the_principal_is_found_by_the_analysis_and_most_partials_are_measured(name):
+def test_the_principal_is_found_by_the_analysis_and_the_partials_measured(name):
     r = recording(name)
     assert 55.0 < r["f1"] < 110.0
     # the recording analysis finds the principal the independent spectrum shows (within 1.5 Hz)
     assert min(min(abs(p.frequency - r["f1"]), abs(p.settled - r["f1"])) for p in r["found"]) < 1.5
     assert r["modes"][1].frequency == pytest.approx(r["f1"], abs=0.01)
-    # one (m,1) of each excerpt shows no free decay: it rises and falls by a few dB over the
-    # 2 s (beating with something, or fed), and the recording analysis finds no decaying
-    # partial there either (mid (2,1), high (4,1): flagged steady; low (2,1): T60 of 39 s)
+    # one (m,1) of each excerpt shows no free decay: its envelope rises and falls over the 2 s
+    # (beating with something, or fed), so the band variants disagree or rise, and the
+    # recording analysis finds no decaying partial there either (mid (2,1), high (4,1): flagged
+    # steady; low (2,1): a weak partial with a T60 of 39 s)
     assert set(range(1, M_MAX + 1)) - set(r["measured"]) == {UNMEASURED[name]}, r["measured"]
 
 

@@ -225,18 +225,24 @@ def _fit_losses(ident, rows, payload, notes) -> None:
     except SolverError as exc:
         notes.append(f"no loss fit: {' '.join(str(exc).split())}")
         return
+    from ..losses import decay_note
+
     payload["loss_fit"] = {
         "parameters": {k: {"value": v, "uncertainty": u} for k, (v, u) in lf.fitted.items()},
+        # which losses made predicted_decay_s: all of them, with the fitted parameters
+        "losses": decay_note(lf.losses),
         "fitted_on": [{"m": m, "n": n, "branch": b} for m, n, b in lf.used],
         "rms_log_ratio": lf.rms_log_ratio,
         "partials": [{k: v for k, v in r.items() if k != "head"} for r in lf.rows],
     }
     by = {(r["m"], r["n"], r["branch"]): r for r in lf.rows}
-    for row in rows:
+    # the JSON's partials are copies of the table rows, in the same order: both get the prediction
+    for row, out in zip(rows, payload.get("partials", rows)):
         r = by.get((row.get("m"), row.get("n"), row.get("branch")))
         if r is not None:
-            row["predicted_decay_s"] = r["predicted_t60_s"]
-            row["dominant_loss"] = r["dominant"]
+            for d in {id(row): row, id(out): out}.values():
+                d["predicted_decay_s"] = r["predicted_t60_s"]
+                d["dominant_loss"] = r["dominant"]
     if lf.fitted:
         said = ", ".join(f"{k.replace('_', ' ')} {v:.3g}" + (f" +- {u:.2g}" if u is not None else "")
                          for k, (v, u) in lf.fitted.items())

@@ -951,7 +951,7 @@ def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) 
     head mode that are mostly air (head fraction < 0.5) are air rows, named by the nearest
     rigid-walled resonance of the body.
     """
-    from scipy.optimize import linear_sum_assignment
+    from ..assignment import linear_sum_assignment  # scipy's algorithm without scipy.optimize's import
 
     R = len(omega)
     labels = [None] * R

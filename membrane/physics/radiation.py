@@ -133,19 +133,21 @@ def radiation_integral(space, k, *, quadrature: Quadrature = Quadrature()) -> np
     k = complex(k)
     a = space.radius
     k0 = space.pole_bound + abs(k) + q.margin / a
+    # On the real axis (every node of a table fit) the arc and the straight path are real:
+    # the transforms then take real Bessel functions, about twice as fast as complex ones.
+    kk = k.real if k.imag == 0.0 else k
     xs, ws = _legendre(q.arc)
     phi = 0.5 * np.pi * xs
-    kap = k * np.sin(phi)
-    f = space.transform(kap)
-    total = -1j * (f * (0.5 * np.pi * ws * kap)) @ f.T
+    kap = kk * np.sin(phi)
     # straight path in u from 0 to U0, split into panels of about panel_width / a
-    u0 = np.sqrt(k0 * k0 - k * k)
+    u0 = np.sqrt(k0 * k0 - kk * kk)
     panels = max(1, int(np.ceil(abs(u0) * a / q.panel_width)))
     xp, wp = _legendre(q.panel)
     s = (np.arange(panels)[:, None] + xp[None, :]).ravel() / panels
     wu = np.tile(wp, panels) / panels * u0
-    f = space.transform(np.sqrt(k * k + (u0 * s) ** 2))
-    total = total + (f * wu) @ f.T
+    both = space.transform(np.concatenate([kap, np.sqrt(kk * kk + (u0 * s) ** 2)]))
+    f, g = both[:, :kap.size], both[:, kap.size:]
+    total = -1j * ((f * (0.5 * np.pi * ws * kap)) @ f.T) + (g * wu) @ g.T
     # tails beyond K0: rotated H1 H1 (up), H2 H2 (down), mixed on the real axis
     xl, wl = _laguerre(q.laguerre)
     t = xl / (2 * a)

@@ -24,7 +24,9 @@ def _canvas(fig):
         from matplotlib.backends.backend_agg import FigureCanvasAgg
 
         FigureCanvasAgg(fig)
-    fig.canvas.draw()  # runs the layout engine, so positions below are final
+    # runs the layout engine, so positions below are final, without rasterising the figure
+    # (a full draw of a ratio chart costs more than placing all its labels)
+    fig.draw_without_rendering()
     return fig.canvas.get_renderer()
 
 

@@ -129,6 +129,10 @@ def draw_field(ax, mode, *, signs: bool = False, hatch: bool = False, radial: in
     ax.set_xlim(-1.08, 1.08)
     ax.set_ylim(-1.08, 1.08)
     ax.set_axis_off()
+    # No ticks at all (the axis is off, so none is drawn): otherwise the layout still sets
+    # out every tick label of every panel, most of the time of saving a grid.
+    ax.set_xticks([])
+    ax.set_yticks([])
     return mesh
 
 
