@@ -22,7 +22,8 @@ The search: a global start over tension, every pairing of a strong partial with 
 mode proposing a tension (the model's table scaled by sqrt(T)). With ``physics="full"``
 that table is the full model's own, solved once at the drum file's tension with radiation
 damping only (air loading lowers the low modes by far more than a match's width, so the
-in-vacuum pattern pairs the wrong modes on a kettledrum); the start is then refined on the
+in-vacuum pattern pairs the wrong modes on a kettledrum), the cheapest few start tensions
+judged again on the full model solved at each; the start is then refined on the
 full model with :func:`membrane.tension_search.search` (the shared search, which knows the
 jumps at the body's air resonances), and finished by one solve with every loss of the
 drum file. With ``"stiff"`` or ``"ideal"`` the start and the refinement use that model.
@@ -67,6 +68,9 @@ MAX_TENSION_FACTOR = 25.0  # search within this factor of the drum's nominal ten
 MAX_RANGE = {"ideal": 10.0, "stiff": 10.0, "full": 4.5}
 _SECANT_TOL = 1e-4  # in ln T: 0.01 %, far below the 1 % the fit can promise
 _MAX_ROUNDS = 6  # assignment / tension rounds
+START_MARGIN = 0.05  # start tensions costing within 5 % of the cheapest are judged again
+START_RIVALS = 4  # at most this many, each a full-model solve
+START_DISTINCT = 0.05  # in ln T: start tensions closer than 5 % are one
 MIN_MATCHED = 3  # fewer matched partials than this: the drum is not identified
 MAX_FIT_PARTIALS = 24  # the heaviest partials fitted (bounded work; the rest are labelled)
 SPLIT_MIN_T60_S = 0.3  # both halves of a split ring at least this long
@@ -277,15 +281,40 @@ def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = 
         labels = [(md.m, md.n, md.branch, md.head) for md in modes.modes]
         edge = [k for k, lb in enumerate(labels) if lb[:2] in ((m_max, 1), (0, n_max))]
         double = np.array([md.multiplicity == 2 for md in modes.modes])
-        best = _start(fp, w, split_ok, _by_label(modes, labels), t0, double, edge, max_cents,
-                      split_cents, MAX_TENSION_FACTOR)
-        if best is None or len(best[2]) < 2:
+        ranked = [c for c in _starts(fp, w, split_ok, _by_label(modes, labels), t0, double,
+                                     edge, max_cents, split_cents, MAX_TENSION_FACTOR)
+                  if len(c[2]) >= 2]
+        if not ranked:
             raise SolverError("no tension within a factor of 25 of the drum's puts two of its "
                               "modes on the partials; check the drum file (diameter, film)")
-        _, tension, pairs = best
+        # sqrt(T) scaling of one table misjudges tensions far from the drum file's (air
+        # loading does not scale so): the cheapest few, at distinct tensions, within
+        # START_MARGIN of the cheapest, are each judged on the full model solved there
+        rivals = []
+        for c in ranked:
+            if c[0] > ranked[0][0] * (1.0 + START_MARGIN) or len(rivals) == START_RIVALS:
+                break
+            if all(abs(math.log(c[1] / r[1])) > START_DISTINCT for r in rivals):
+                rivals.append(c)
+        seen = {}
+        if len(rivals) > 1:
+            say(f"judging {len(rivals)} start tensions on the full model: "
+                + ", ".join(f"{r[1]:.0f}" for r in rivals) + " N/m")
+            judged = []
+            for r in rivals:
+                x_r = math.log(r[1])
+                seen[x_r] = solve(drum.with_tension(r[1]), "full", m_max=m_max, n_max=n_max,
+                                  losses="radiation")
+                g_r = _by_label(seen[x_r], labels)
+                cost, pairs_r = _assign(fp, g_r, double, max_cents, split_cents,
+                                        cover=np.nanmin(g_r[edge]), weight=w, split_ok=split_ok)
+                judged.append((cost, r[1], pairs_r))
+            _, tension, pairs = min(judged, key=lambda c: c[0])
+        else:
+            _, tension, pairs = rivals[0]
         tension, pairs, modes, last, scale = _refine_full(
             drum, fp, w, split_ok, pairs, labels, tension, t0, m_max, n_max, double, edge,
-            max_cents, split_cents, say)
+            max_cents, split_cents, say, seen=seen, start=modes)
         tension = tension * math.exp(last)
     else:
         # the table reaches 1.6 times the partials' span (the lowest partial may be the
@@ -326,7 +355,14 @@ def _start(fp, w, split_ok, f_base, t_base, double, edge, max_cents, split_cents
     ``f_base`` are the model's modes at ``t_base`` [N/m], scaled by sqrt(T / t_base) to each
     trial; trials are limited to within ``factor`` of ``t_base``.
     """
-    best = None
+    ranked = _starts(fp, w, split_ok, f_base, t_base, double, edge, max_cents, split_cents,
+                     factor)
+    return ranked[0] if ranked else None
+
+
+def _starts(fp, w, split_ok, f_base, t_base, double, edge, max_cents, split_cents, factor):
+    """Every trial of :func:`_start` as (cost, tension, pairs), cheapest first."""
+    out = []
     for i in np.argsort(-w)[:6]:
         for k in range(min(12, f_base.size)):
             if not np.isfinite(f_base[k]):
@@ -337,9 +373,8 @@ def _start(fp, w, split_ok, f_base, t_base, double, edge, max_cents, split_cents
             g = f_base * math.sqrt(t / t_base)
             cost, pairs = _assign(fp, g, double, max_cents, split_cents,
                                   cover=np.nanmin(g[edge]), weight=w, split_ok=split_ok)
-            if best is None or cost < best[0] - 1e-9:
-                best = (cost, t, pairs)
-    return best
+            out.append((cost, t, pairs))
+    return sorted(out, key=lambda c: c[0])
 
 
 BEAT_RING_DB = 40.0  # a split pair beats at least once before its shorter member falls this far
@@ -392,7 +427,7 @@ SEARCH_CLOSE = 1e-4  # in ln f: 0.17 cents, where the search stops; the last ste
 
 
 def _refine_full(drum, fp, w, split_ok, pairs, labels, tension, t0, m_max, n_max, double,
-                 edge, max_cents, split_cents, say):
+                 edge, max_cents, split_cents, say, seen=None, start=None):
     """The tension on the full model: the shared search, then one solve with every loss.
 
     For fixed pairs, G(x) = mean_w ln(f_mode(e^x) / f_partial) rises with x = ln T, with
@@ -405,6 +440,11 @@ def _refine_full(drum, fp, w, split_ok, pairs, labels, tension, t0, m_max, n_max
     losses move frequencies by under a cent) is taken with the slope of ln f against ln T
     that the search saw (1/2, the sqrt law, if it saw none).
 
+    ``start`` is the table at the drum file's tension ``t0`` that the global start used:
+    scaled by sqrt(T) it stands in for the model at the start's tension in the first
+    round (when that tension was not solved already), so a start already on target costs
+    no radiation solve there; the solve with every loss follows in any case.
+
     Returns the last table's tension [N/m], the pairs, that table, the last step in ln T and
     the factor it moves the table's frequencies by.
     """
@@ -413,7 +453,7 @@ def _refine_full(drum, fp, w, split_ok, pairs, labels, tension, t0, m_max, n_max
     x = math.log(tension)
     lo = math.log(t0 / MAX_TENSION_FACTOR)
     hi = math.log(t0 * MAX_TENSION_FACTOR)
-    seen: dict[float, ModeSet] = {}
+    seen: dict[float, ModeSet] = {} if seen is None else seen  # radiation tables by ln T
 
     def offset(modes, pairs_):
         i = np.array([a for a, _ in pairs_])
@@ -438,8 +478,14 @@ def _refine_full(drum, fp, w, split_ok, pairs, labels, tension, t0, m_max, n_max
             f"(round {round_ + 1}), from {math.exp(x):.1f} N/m")
         fixed = list(pairs)
         g = lambda xx: offset(table(xx), fixed)  # noqa: E731
-        g0 = g(x)
+        if round_ == 0 and start is not None and x not in seen:
+            # the start table carried by sqrt(T): the pairs' offset there, without a solve
+            g0 = offset(start, fixed) + 0.5 * (x - math.log(t0))
+        else:
+            g0 = g(x)
         found = search(g, x0=x, g0=g0, lo=lo, hi=hi, close=SEARCH_CLOSE, max_solves=12)
+        if isinstance(found, Found) and found.solves == 0 and x not in seen:
+            break  # on target by the start table already: the solve with every loss checks
         if isinstance(found, Found):
             x = found.x
         elif isinstance(found, Jump):
