@@ -7,9 +7,7 @@ each trial tension. This compares the naive sqrt(T) answer with the full model's
 Run ``python examples/tune_kettledrum.py``.
 """
 
-from membrane import load_drum, solve
-from membrane.tuning import tension_for
-from membrane.units import cents, parse_pitch
+from membrane import cents, load_drum, parse_pitch, solve, tension_for
 
 DRUM = load_drum("kettledrum")  # invented demo data
 TARGET_HZ = parse_pitch("C3")

@@ -119,6 +119,12 @@ class Head:
         if self.edge not in EDGES:
             raise InputError("Head.edge", self.edge, f"must be one of: {', '.join(EDGES)}")
 
+    def vibrates_like(self, other: "Head") -> bool:
+        """Whether ``other`` has exactly this head's modes in vacuum: the same radius, tension,
+        areal density, Poisson ratio, edge and bending stiffness (film and strength aside)."""
+        keys = ("radius", "tension", "areal_density", "poisson_ratio", "edge", "bending_stiffness")
+        return all(getattr(self, k) == getattr(other, k) for k in keys)
+
     @property
     def diameter(self) -> float:
         """Diameter in m."""
@@ -225,7 +231,7 @@ class Air:
         Notes
         -----
         rho = P / (R T), c = sqrt(gamma R T) with R = 287.058 J/(kg K) and gamma = 1.4:
-        343.24 m/s and 1.2041 kg/m^3 at 20 degC and 101.325 kPa (SOURCES.md). Humidity
+        343.24 m/s and 1.2041 kg/m^3 at 20 degC and 101.325 kPa (docs/references.md, "Air and pitch"). Humidity
         is neglected (it raises c by well under 1 % at room temperature).
         """
         for key, value in (("temperature", temperature), ("pressure", pressure)):

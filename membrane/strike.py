@@ -239,7 +239,7 @@ def _volume_displacement(coef, basis) -> complex:
 def body_stiffness(mode: Mode, drum, omega: complex) -> tuple[complex, complex]:
     r"""The body's uniform-pressure term :math:`c^T S c` and its omega-derivative.
 
-    DESIGN.md 3.4, the duct's plane-wave (q = 0) term, as a generalised stiffness. For a
+    docs/physics.md "The body", the duct's plane-wave (q = 0) term, as a generalised stiffness. For a
     duct of length L, the struck head's volume displacement :math:`W_1 = \int w\, dA =
     2\pi \sum_n c_n \Phi_n(0)` and, for a shell, the resonant head's :math:`W_2` (both
     outward), the plane-wave pressure on the heads gives

@@ -40,3 +40,31 @@ def installed_command() -> list[str]:
     if exe is None:
         pytest.fail("the membrane console script is not installed (pip install . first)")
     return [exe]
+
+
+# ------------------------------------------------------------------ shared fixtures and helpers
+@pytest.fixture(scope="session")
+def kettledrum():
+    """The built-in 26-inch kettledrum (invented demo data), read once per session."""
+    from membrane import load_drum
+
+    return load_drum("kettledrum")
+
+
+@pytest.fixture
+def cli():
+    """Run the command line in-process: ``cli("modes", "kettledrum", "--physics", "ideal")``."""
+    from typer.testing import CliRunner
+
+    from membrane.cli import app
+
+    runner = CliRunner()
+    return lambda *args: runner.invoke(app, [str(a) for a in args])
+
+
+def one_line_error(result, words: str) -> None:
+    """The bad-input contract (README): exit 2, one line on stderr containing ``words``, no traceback."""
+    assert result.exit_code == 2, result.output
+    lines = [line for line in result.stderr.splitlines() if line.strip()]
+    assert len(lines) == 1 and words in lines[0], result.stderr
+    assert "Traceback" not in result.output

@@ -17,14 +17,9 @@ from membrane.errors import InputError
 from membrane.render.animate import View, check_view, memory_needed
 from membrane.units import parse_pitch
 
+from conftest import one_line_error  # noqa: E402  (the shared bad-input check)
+
 runner = CliRunner()
-
-
-def one_line_error(result, words):
-    assert result.exit_code == 2, result.output
-    lines = [line for line in result.stderr.splitlines() if line.strip()]
-    assert len(lines) == 1 and words in lines[0], result.stderr
-    assert "Traceback" not in result.output
 
 
 @pytest.mark.parametrize("args, words", [

@@ -1,23 +1,19 @@
 """Options several commands share: one spelling of --force, one parser of --target."""
 
 import pytest
-import typer
-from typer.testing import CliRunner
+from conftest import one_line_error
 
-from membrane.cli import app
 from membrane.cli.options import parse_targets
 from membrane.errors import InputError
-
-runner = CliRunner()
 
 # the commands that write files (common practice, no source: every one overwrites only with --force)
 WRITERS = ["examples", "strike", "listen", "lugs", "render", "handout"]
 
 
 @pytest.mark.parametrize("command", WRITERS)
-def test_force_spelled_once(command):
+def test_force_spelled_once(command, cli):
     # a plain flag: no --no-force twin (click's bool options grow one unless named)
-    result = runner.invoke(app, command.split() + ["--help"], env={"COLUMNS": "200", "TERM": "dumb"})
+    result = cli(*command.split(), "--help")
     assert result.exit_code == 0, result.output
     assert "--force" in result.output
     assert "--no-force" not in result.output
@@ -46,3 +42,4 @@ def test_targets_refused(texts, mode, head, key):
     with pytest.raises(InputError) as err:
         parse_targets(texts, mode, head=head)
     assert err.value.key == key
+

@@ -18,14 +18,9 @@ from membrane.cli import app
 from membrane.cli.common import TEMP_PREFIX, write_atomic
 from membrane.errors import InputError
 
+from conftest import one_line_error  # noqa: E402  (the shared bad-input check)
+
 runner = CliRunner()
-
-
-def one_line_error(result, words):
-    assert result.exit_code == 2, result.output
-    lines = [line for line in result.stderr.splitlines() if line.strip()]
-    assert len(lines) == 1 and words in lines[0], result.stderr
-    assert "Traceback" not in result.output
 
 
 @pytest.mark.skipif(not hasattr(os, "mkfifo"), reason="no FIFOs on this system")

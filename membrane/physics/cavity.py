@@ -1,4 +1,4 @@
-r"""Air inside the body: the kettle (one head) and the shell (two heads), DESIGN.md 3.4.
+r"""Air inside the body: the kettle (one head) and the shell (two heads), docs/physics.md "The body".
 
 The body is a rigid-walled cylinder of the head's radius a and depth L (a kettle of volume V
 becomes L = V / (pi a^2): the bowl's shape enters only through its volume; say so in output).

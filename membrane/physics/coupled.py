@@ -1,4 +1,4 @@
-r"""The head coupled to the air on its faces and in its body: complex frequencies (DESIGN.md 3.5).
+r"""The head coupled to the air on its faces and in its body: complex frequencies (docs/physics.md "Solving").
 
 For each angular order m the head's displacement is expanded over a Ritz space: its in-vacuum
 modes (ideal or exact stiff) plus one *rim function*, the head's static response to a pressure
@@ -29,7 +29,8 @@ resonance or by a neighbour it hybridises with. A root that cannot be followed r
 
 All roots of all orders are iterated together (batched linear solves; the radiation matrices
 come from Chebyshev tables in :math:`(ka)^2` that depend on dimensionless geometry only and
-are cached per process), which is what makes the full table fast.
+are cached in the process and kept on disk between runs, table_cache.py), which is what makes
+the full table fast.
 """
 
 from __future__ import annotations
@@ -834,9 +835,7 @@ def track_roots(rs: RootSet, omega0, vectors0, *, settings: Settings = DEFAULT):
 
 # ----------------------------------------------------------------------------- the drum
 def _identical(h1, h2) -> bool:
-    keys = ("radius", "tension", "areal_density", "poisson_ratio", "edge")
-    return all(getattr(h1, k) == getattr(h2, k) for k in keys) and \
-        h1.bending_stiffness == h2.bending_stiffness
+    return h1.vibrates_like(h2)  # one home: membrane.drum.Head.vibrates_like
 
 
 def _orders(drum, *, m_max: int, n_max: int, settings: Settings):

@@ -1,7 +1,7 @@
 r"""Air on an open, baffled face: the modal added-mass-and-damping matrix.
 
 For radial shapes :math:`\phi_n(r)\cos m\theta` on a disk of radius a in an infinite rigid
-baffle, the Rayleigh integral becomes, in the wavenumber domain (DESIGN.md 3.3),
+baffle, the Rayleigh integral becomes, in the wavenumber domain (docs/physics.md, "Air on an open face"),
 
 .. math::
 

@@ -56,10 +56,7 @@ def strike_advice(modeset):
     (StrikeAdvice or None, list of str)
         The advice (None without a fit or a strike model) and sentences saying it.
     """
-    try:
-        from ..strike import DEFAULT_MALLET, best_strike_radius
-    except ImportError:
-        return None, ["(No strike model in this version.)"]
+    from ..strike import DEFAULT_MALLET, best_strike_radius
     from ..errors import MembraneError
 
     fit = modeset.harmonic_fit()
