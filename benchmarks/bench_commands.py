@@ -1,6 +1,6 @@
 """Whole commands as a user runs them: CPU seconds per process, and the ratio to a reference.
 
-Run: python benchmarks/bench_commands.py [--repeat 5] [--only modes,tune]
+Run: python benchmarks/bench_commands.py [--repeat 5] [--only modes,tune] [--skip two-target]
 
 Each command runs as a fresh process of the installed ``membrane`` script (the one next to
 this interpreter), so imports, the drum file, the solve and the printing are all counted.
@@ -72,9 +72,12 @@ def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--repeat", type=int, default=5, help="paired repetitions (median reported)")
     parser.add_argument("--only", default="", help="comma-separated words; run commands whose name has one")
+    parser.add_argument("--skip", default="", help="comma-separated words; leave out commands whose name has one")
     args = parser.parse_args()
     words = [w for w in args.only.split(",") if w]
-    chosen = [c for c in COMMANDS if not words or any(w in c[0] for w in words)]
+    skip = [w for w in args.skip.split(",") if w]
+    chosen = [c for c in COMMANDS if (not words or any(w in c[0] for w in words))
+              and not any(w in c[0] for w in skip)]
 
     exe = script()
     with tempfile.TemporaryDirectory() as tmp:

@@ -17,7 +17,7 @@ Drums
     load_drum, parse_drum, builtin_names -- the drum file (TOML) and the built-in examples
 Modes
     solve -- the modes of a drum under "ideal", "stiff" or "full" physics -> ModeSet
-    Mode, ModeSet, HarmonicFit, harmonic_fit
+    Mode, ModeSet, HarmonicFit (ModeSet.harmonic_fit), harmonic_series (raw frequencies)
 Tuning
     tension_for, Tuning, Target -- the tension that puts modes on target pitches
     tune_heads, HeadTarget, Interval, HeadsTuning -- both heads of a shell
@@ -50,7 +50,8 @@ _WHERE = {
     "Air": "drum", "Body": "drum", "Drum": "drum", "Head": "drum", "Lugs": "drum",
     "load_drum": "drumfile", "parse_drum": "drumfile", "builtin_names": "drumfile",
     # modes
-    "HarmonicFit": "modes", "Mode": "modes", "ModeSet": "modes", "harmonic_fit": "modes",
+    "HarmonicFit": "harmonics", "Mode": "modes", "ModeSet": "modes", "harmonic_series": "harmonics",
+    "harmonic_fit": "harmonics",  # the older name of harmonic_series
     "solve": "solver",
     # tuning
     "tension_for": "tuning", "Tuning": "tuning", "Target": "tuning", "equalise_lugs": "tuning",

@@ -119,6 +119,12 @@ class Head:
         if self.edge not in EDGES:
             raise InputError("Head.edge", self.edge, f"must be one of: {', '.join(EDGES)}")
 
+    def vibrates_like(self, other: "Head") -> bool:
+        """Whether ``other`` has exactly this head's modes in vacuum: the same radius, tension,
+        areal density, Poisson ratio, edge and bending stiffness (film and strength aside)."""
+        keys = ("radius", "tension", "areal_density", "poisson_ratio", "edge", "bending_stiffness")
+        return all(getattr(self, k) == getattr(other, k) for k in keys)
+
     @property
     def diameter(self) -> float:
         """Diameter in m."""

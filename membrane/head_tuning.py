@@ -24,14 +24,15 @@ Everything here takes and returns SI floats (N/m, Hz) and cents.
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass, replace
 
 import numpy as np
 from scipy import optimize
 
-from .drum import Body, Drum
+from .drum import Body, Drum, Head
 from .errors import InputError, SolverError
-from .modes import ModeSet
+from .modes import Mode, ModeSet
 from .notation import cents as _cents
 from .solver import solve
 
@@ -108,7 +109,7 @@ class HeadsTuning:
         return 100.0 * (self.tension[head] / self.current[head] - 1.0)
 
 
-def head_of(drum: Drum, head: str):
+def head_of(drum: Drum, head: str) -> Head:
     """The Head object of ``"struck"`` or ``"resonant"``."""
     if head not in HEADS:
         raise InputError("head", head, "must be struck or resonant")
@@ -136,7 +137,7 @@ def alone(drum: Drum, head: str) -> Drum:
     return replace(drum, head=h, resonant_head=None, body=Body(kind="kettle", volume=volume))
 
 
-def find_mode(modes: ModeSet, head: str, m: int, n: int):
+def find_mode(modes: ModeSet, head: str, m: int, n: int) -> Mode:
     """The mode (m, n) that belongs to ``head`` in a solved table.
 
     On a shell with two different heads each root carries the head it grows from.
@@ -215,7 +216,7 @@ class _Model:
         return self.cache[key]
 
 
-def tune_heads(drum: Drum, *, targets=(), intervals=(), physics: str = "full", other: str = "free",
+def tune_heads(drum: Drum, *, targets: Sequence[HeadTarget] = (), intervals: Sequence[Interval] = (), physics: str = "full", other: str = "free",
                m_max: int = 6, n_max: int = 3, table: bool = True, losses: str = "all") -> HeadsTuning:
     """Tensions of one or both heads that put modes on pitches and intervals between heads.
 

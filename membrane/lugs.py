@@ -32,6 +32,7 @@ lug's pull, the pull being T 2 pi a / N).
 from __future__ import annotations
 
 import math
+from collections.abc import Sequence
 from dataclasses import dataclass
 
 import numpy as np
@@ -201,8 +202,9 @@ def tensions_from_pitches(pitches, *, mean_tension: float) -> np.ndarray:
     return mean_tension * rel
 
 
-def estimate_lugs(drum: Drum, *, count: int, tensions=None, pitches=None, splits=(),
-                  physics: str = "stiff", radial=(1,)) -> LugEstimate:
+def estimate_lugs(drum: Drum, *, count: int, tensions: Sequence[float] | None = None,
+                  pitches: Sequence[float] | None = None, splits: Sequence[MeasuredSplit] = (),
+                  physics: str = "stiff", radial: Sequence[int] = (1,)) -> LugEstimate:
     """Least-squares lug tensions from lug tensions, tap pitches and/or measured splits.
 
     Parameters
@@ -356,7 +358,7 @@ class Turns:
     tap_cents: np.ndarray
 
 
-def prescribe_turns(drum: Drum, tensions, *, cents_per_turn: float | None = None,
+def prescribe_turns(drum: Drum, tensions: Sequence[float], *, cents_per_turn: float | None = None,
                     turns_per_newton: float | None = None, physics: str = "stiff") -> Turns:
     """Turns per lug that clear the splits and keep the principal (1,1) on pitch.
 

@@ -14,10 +14,11 @@ import numpy as np
 from .drum import Drum
 from .errors import InputError
 from .physics.vacuum import RadialBasis
-from .notation import air_label, cents, mode_label
+from .harmonics import MIN_FIT_MODES, HarmonicFit, harmonic_fit, harmonic_series  # noqa: F401
+from .notation import PHYSICS_MODELS, air_label, cents, mode_label
 from .units import note_name
 
-PHYSICS = ("ideal", "stiff", "full")
+PHYSICS = PHYSICS_MODELS  # one home: membrane.notation
 # a root with a head fraction in this range is a hybrid of head and body air (our choice)
 HYBRID = (0.2, 0.8)
 
@@ -25,13 +26,6 @@ HEAD_NOTE = ("', struck head' or ', resonant head' after a mode names the head i
              "that moves most in it; in-phase: both heads move outward from the shell together, "
              "opposed: one moves out as the other moves in (identical heads share every mode alike, "
              "so their modes carry no head word)")
-
-# The harmonic-series fit takes the lowest fitted mode as harmonic 1 up to this
-# number and keeps the best; two fits within TIE_CENTS rms keep the higher f0.
-MAX_LOWEST_HARMONIC = 4
-TIE_CENTS = 1.0
-# Any two frequencies sit on some harmonic series; three are the fewest a fit can test.
-MIN_FIT_MODES = 3
 
 
 def principal_mode(drum) -> tuple[int, int]:
@@ -157,65 +151,6 @@ def _realising_phase(coef: np.ndarray) -> complex:
     return complex(np.exp(-0.5j * np.angle(s)))
 
 
-@dataclass(frozen=True)
-class HarmonicFit:
-    """The harmonic series that best fits chosen modes.
-
-    Attributes
-    ----------
-    fundamental : float
-        f0 in Hz.
-    harmonics : dict
-        (m, n) -> harmonic number of each fitted mode.
-    rms_cents : float
-        Root-mean-square deviation of the fitted modes from their harmonics.
-    fitted : tuple of (int, int)
-        The modes the fit used.
-    """
-
-    fundamental: float
-    harmonics: dict
-    rms_cents: float
-    fitted: tuple
-
-
-def harmonic_fit(frequencies, *, max_lowest: int = MAX_LOWEST_HARMONIC) -> tuple[float, np.ndarray, float]:
-    """Least-squares harmonic series through some frequencies, in cents.
-
-    For each choice of the lowest frequency's harmonic number (1..max_lowest), the
-    harmonic numbers are assigned by rounding and f0 refitted (the least-squares f0
-    in log frequency is the geometric mean of f_i / h_i) until the assignment
-    settles. The fit with the smallest rms deviation wins; fits within 1 cent of
-    it keep the highest f0, since a lower f0 can always fit as well.
-
-    Parameters
-    ----------
-    frequencies : array_like
-        Positive frequencies in Hz.
-    max_lowest : int
-        Highest harmonic number the lowest frequency may take.
-
-    Returns
-    -------
-    (float, numpy.ndarray, float)
-        f0 in Hz, integer harmonic numbers, rms deviation in cents.
-    """
-    f = np.asarray(frequencies, dtype=float)
-    low = f.min()
-    best = None
-    for h_low in range(1, max_lowest + 1):
-        f0 = low / h_low
-        h = np.maximum(1, np.rint(f / f0))
-        for _ in range(20):
-            f0 = float(np.exp(np.mean(np.log(f / h))))
-            new = np.maximum(1, np.rint(f / f0))
-            if np.array_equal(new, h):
-                break
-            h = new
-        rms = float(np.sqrt(np.mean(cents(f, h * f0) ** 2)))
-        if best is None or rms < best[2] - TIE_CENTS:
-            best = (f0, h.astype(int), rms)
-    return best
 
 
 @dataclass(frozen=True)
@@ -313,7 +248,7 @@ class ModeSet:
             chosen = [self.find(m, n) for m, n in named]
         if len(chosen) < MIN_FIT_MODES:
             return None
-        f0, h, rms = harmonic_fit([mode.frequency for mode in chosen])
+        f0, h, rms = harmonic_series([mode.frequency for mode in chosen])
         return HarmonicFit(fundamental=f0,
                            harmonics={(mo.m, mo.n): int(k) for mo, k in zip(chosen, h)},
                            rms_cents=rms, fitted=tuple((mo.m, mo.n) for mo in chosen))

@@ -9,6 +9,11 @@ physics models. Light to import (no numpy at module load), so the command line's
 from __future__ import annotations
 
 import math
+from typing import TYPE_CHECKING
+
+if TYPE_CHECKING:  # for the annotations only: numpy loads when an array is given
+    import numpy as np
+    from numpy.typing import ArrayLike
 
 #: ln 1000 = 3 ln 10: an amplitude decaying as exp(-r t) has fallen 60 dB when r t = ln 1000,
 #: so T60 = LN1000 / r (r in 1/s).
@@ -26,7 +31,7 @@ PHYSICS_MODELS = ("ideal", "stiff", "full")
 PHYSICS_HELP = "ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body."
 
 
-def cents(frequency, reference):
+def cents(frequency: float | ArrayLike, reference: float | ArrayLike) -> float | np.ndarray:
     """Interval from ``reference`` up to ``frequency`` in cents, 1200 log2(frequency / reference).
 
     Parameters

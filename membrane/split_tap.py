@@ -14,10 +14,13 @@ from __future__ import annotations
 import math
 from dataclasses import replace
 
+from .lugs import SplitTable
+from .modes import ModeSet
 from .strike import Listener, Strike, strike_partials
 
 
-def split_partials(modeset, table, *, strike: Strike = Strike(), listener: Listener = Listener()) -> list:
+def split_partials(modeset: ModeSet, table: SplitTable, *, strike: Strike = Strike(),
+                   listener: Listener = Listener()) -> list:
     """Partials of a tap on the uneven head, ready for :func:`membrane.strike.synthesize`.
 
     Parameters

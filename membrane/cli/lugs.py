@@ -138,7 +138,7 @@ def lugs(
         analysis = analyse(read_wav(recording))
         # the full model's fit takes seconds a solve; the splits need only the labels
         fit_physics = "stiff" if physics.value == "full" else physics.value
-        ident = identify(drum, analysis.partials, physics=fit_physics)
+        ident = identify(drum, analysis.partials, physics=fit_physics, splits="resolved")
         measured = lugmod.measured_splits(ident)
         drum = ident.drum
         notes.append(f"tension fitted to the recording: {ident.tension:.1f} N/m ({fit_physics} model)")

@@ -88,8 +88,8 @@ def strike(
         help="Mallet contact time, e.g. '2 ms' (overrides --mallet).")] = None,
     listener_angle: Annotated[float, typer.Option(
         help="Listener's angle from the head's axis, degrees (0 on the axis hears only m = 0).")
-    ] = 45.0,
-    listener_distance: Annotated[str, typer.Option(help="Listener's distance, e.g. '1.5 m'.")] = "1.5 m",
+    ] = round(math.degrees(presets.DEFAULT_LISTENER_ANGLE), 6),
+    listener_distance: Annotated[str, typer.Option(help="Listener's distance, e.g. '1.5 m'.")] = f"{presets.DEFAULT_LISTENER_DISTANCE:g} m",
     listener_azimuth: Annotated[Optional[float], typer.Option(
         help="Listener's azimuth, degrees, on the strike angle's scale; default the strike's.")] = None,
     best_for: Annotated[Optional[List[str]], typer.Option(

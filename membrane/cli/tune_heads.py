@@ -167,9 +167,7 @@ OTHER_NOTE = {
 
 
 def _distinct(drum) -> bool:
-    from ..physics.coupled import _identical
-
-    return drum.resonant_head is not None and not _identical(drum.head, drum.resonant_head)
+    return drum.resonant_head is not None and not drum.head.vibrates_like(drum.resonant_head)
 
 
 def _value(kind: str, v: float) -> str:
