@@ -111,7 +111,14 @@ def test_timpani_nothing_loud_above_1_khz(analysed, name):
     assert not loud_high, (name, loud_high)
 
 
-@pytest.mark.parametrize("name", ["tom_low_1.flac", "tom_mid_1.flac", "tom_high_1.flac"])
+@pytest.mark.parametrize("name", [
+    "tom_low_1.flac", "tom_mid_1.flac", "tom_high_1.flac",
+    pytest.param("tom_floor_1.flac", marks=pytest.mark.xfail(strict=True, reason=(
+        "the floor tom falls from 78.6 to 70.1 Hz (-197 cents) mostly within 0.1 s, beside "
+        "a partial at 67.4 Hz: the 0.1 s frames of the glide tracker blend the two, its "
+        "ridge is lost at 0.115-0.14 s, and the comb (80.3, 75.1, 71.1, 69.4 Hz) stays "
+        "unmerged"))),
+])
 def test_a_gliding_tom_fundamental_is_one_partial_with_its_glide(analysed, name):
     # the independent glide: the spectral peak of the fundamental in a 0.1 s Hann window
     # at 20 ms after the onset and in one at 0.4 s, within 20 % below the first
