@@ -34,7 +34,7 @@ def clear_caches():
     from membrane.physics import coupled, vacuum
 
     for cache in (bessel._jn_zeros_cached, bessel._jnp_zeros_cached, vacuum.stiff_roots,
-                  coupled.unit_space, coupled.unit_table, coupled._unit_duct):
+                  coupled.unit_space, coupled.unit_table, coupled.unit_duct):
         cache.cache_clear()
     if hasattr(bessel, "_table"):
         bessel._table.cache_clear()

@@ -1,6 +1,7 @@
 """Full physics over many generated drums: every solve must succeed and every T60 be shown.
 
 Run: python benchmarks/sweep_drums.py [COUNT] [SEED]     (default 300 drums, seed 1)
+     python benchmarks/sweep_drums.py --continuity [COUNT] [SEED]   (default 20 drums, seed 11)
 
 Drums are drawn at random from what people build (invented, not real instruments):
 6-32 inch heads of polyester, 0.1-0.4 mm in 1 or 2 plies, or a custom areal density with
@@ -10,6 +11,12 @@ deep whose resonant head is equal, nearly equal (relative 1e-12..1e-4) or unequa
 -10..40 degC. Each is solved with the default table (m 0..6, n 1..3). Prints failures (with
 the drum), blank T60s, and the time per drum against a reference solve of the builtin
 kettledrum in the same run. tests/test_sweep.py runs a small sample of the same drums.
+
+With --continuity, each drum's roots of one order (m = index mod 3; the head modes n = 1, 2
+and every air row below them) are followed in tension from T to 2T and from T to T/2
+(membrane.branches.follow, five values each way): every root must be followed to the end,
+with |d ln f / d ln T| <= 0.6 between the values (the tension's share of the stiffness, over
+2, is at most 1/2), and the roots reached at 2T are looked up in a whole solve there.
 """
 
 from __future__ import annotations
@@ -94,7 +101,73 @@ def check(drum, *, m_max=6, n_max=3):
     return problems
 
 
+SLOPE = 0.6  # |d ln f / d ln T| allowed between two values of a track
+
+
+def continuity(drum, index):
+    """Follow one order's roots over T/2..2T; (problems, roots followed, steps)."""
+    from dataclasses import replace
+
+    from membrane.branches import follow, order_roots
+
+    m = index % 3
+    t0 = drum.head.tension
+
+    def at(x):  # both heads of a shell scaled together (equal heads stay equal)
+        k = math.exp(x) / t0
+        d = drum.with_tension(t0 * k)
+        if drum.resonant_head is not None:
+            d = replace(d, resonant_head=replace(drum.resonant_head,
+                                                 tension=drum.resonant_head.tension * k))
+        return d
+
+    start = order_roots(drum, m=m, n_max=2, losses=drum.losses)
+    top = max(start.omega[r].real for r, lab in enumerate(start.labels)
+              if lab is not None and lab[0] == "head")
+    pick = [r for r, lab in enumerate(start.labels) if lab is not None and start.omega[r].real <= top]
+    problems, steps = [], 0
+    for factor in (2.0, 0.5):
+        xs = np.linspace(math.log(t0), math.log(factor * t0), 5)
+        track = follow(at, xs, m=m, n_max=2, roots=pick, losses=drum.losses, labels=False)
+        steps += track.steps
+        f = track.frequencies()
+        if not np.all(np.isfinite(f)):
+            problems.append(f"x{factor:g}: followed only to value {int(np.sum(np.all(np.isfinite(f), axis=1)))} of 5")
+            continue
+        slope = np.abs(np.diff(np.log(f), axis=0)) / np.abs(np.diff(xs))[:, None]
+        if np.any(slope > SLOPE):
+            problems.append(f"x{factor:g}: a jump, d ln f / d ln T = {slope.max():.2f}")
+        if factor == 2.0:
+            end = order_roots(at(xs[-1]), m=m, n_max=2, losses=drum.losses)
+            lost = [(start.labels[r], w) for r, w in zip(pick, track.omega[-1])
+                    if np.min(np.abs(end.omega - w)) > 1e-6 * abs(w)]
+            for lab, w in lost:
+                problems.append(f"x2: the root from {lab} at {w.real / (2 * np.pi):.2f} Hz is not in "
+                                "the whole solve there")
+    return problems, len(pick), steps
+
+
+def main_continuity(count: int, seed: int) -> None:
+    failures = 0
+    start = time.perf_counter()
+    for i, (drum, table) in enumerate(drums(count, seed)):
+        t = time.perf_counter()
+        problems, roots, steps = continuity(drum, i)
+        failures += bool(problems)
+        print(f"drum {i} (m = {i % 3}, {table.get('body', {}).get('kind', 'none')}): {roots} roots, "
+              f"{steps} local steps, {time.perf_counter() - t:.1f} s" +
+              ("" if not problems else "\n   " + "\n   ".join(problems)), flush=True)
+    print(f"{count} drums followed over T/2..2T, {failures} with a problem; "
+          f"{time.perf_counter() - start:.0f} s")
+
+
 def main() -> None:
+    args = sys.argv[1:]
+    if args and args[0] == "--continuity":
+        count = int(args[1]) if len(args) > 1 else 20
+        seed = int(args[2]) if len(args) > 2 else 11
+        main_continuity(count, seed)
+        return
     count = int(sys.argv[1]) if len(sys.argv) > 1 else 300
     seed = int(sys.argv[2]) if len(sys.argv) > 2 else 1
     from membrane import load_drum, solve

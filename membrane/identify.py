@@ -16,21 +16,29 @@ Partials count by weight: strong, long-ringing partials most (a level and a sust
 factor, :func:`weights`); partials flagged steady (hum) are left out, and a gliding
 partial is fitted at its settled frequency (the head's small-amplitude tension, which the
 model describes). A split pair is claimed only for two steady components, each with its
-own decay, never for a glide.
+own decay, that beat audibly (:func:`beats`), never for a glide.
 
-The search: a global start over tension with the stiff model (cheap), every pairing of a
-strong partial with a low mode proposing a tension; with ``physics="full"`` the stiff
-result is then refined with the full model (a few solves at the paired orders only).
+The search: a global start over tension, every pairing of a strong partial with a low
+mode proposing a tension (the model's table scaled by sqrt(T)). With ``physics="full"``
+that table is the full model's own, solved once at the drum file's tension with radiation
+damping only (air loading lowers the low modes by far more than a match's width, so the
+in-vacuum pattern pairs the wrong modes on a kettledrum), the cheapest few start tensions
+judged again on the full model solved at each; the start is then refined on the
+full model with :func:`membrane.tension_search.search` (the shared search, which knows the
+jumps at the body's air resonances), and finished by one solve with every loss of the
+drum file. With ``"stiff"`` or ``"ideal"`` the start and the refinement use that model.
 
 The result carries the matched count, the rms cents, the tension's uncertainty (the
 weighted scatter of the pairs over the root of their count, through the slope of
 ln f against ln T) and a verdict: fewer than :data:`MIN_MATCHED` matched partials is "not
 identified"; a film stress past the film's yield is "implausible".
 
-Approximations: the model's frequencies at a trial tension come from sqrt(T) scaling
-only to find the starting point (exact for the ideal membrane); every refinement solves
-the model at the trial tension, so stiffness and air loading (which break the sqrt(T)
-law) are honoured.
+Approximations: the start scales one table by sqrt(T) (exact for the ideal membrane);
+every refinement solves the model at the trial tension, so stiffness and air loading
+(which break the sqrt(T) law) are honoured. The full model's refinement uses radiation
+damping only (the other losses move a frequency by under a cent: 0.8 cents at most on the
+built-in kettledrum); its last solve has every loss, and the step left (well under a cent)
+is taken along the slope of ln f against ln T that the search measured.
 """
 
 from __future__ import annotations
@@ -60,6 +68,9 @@ MAX_TENSION_FACTOR = 25.0  # search within this factor of the drum's nominal ten
 MAX_RANGE = {"ideal": 10.0, "stiff": 10.0, "full": 4.5}
 _SECANT_TOL = 1e-4  # in ln T: 0.01 %, far below the 1 % the fit can promise
 _MAX_ROUNDS = 6  # assignment / tension rounds
+START_MARGIN = 0.05  # start tensions costing within 5 % of the cheapest are judged again
+START_RIVALS = 4  # at most this many, each a full-model solve
+START_DISTINCT = 0.05  # in ln T: start tensions closer than 5 % are one
 MIN_MATCHED = 3  # fewer matched partials than this: the drum is not identified
 MAX_FIT_PARTIALS = 24  # the heaviest partials fitted (bounded work; the rest are labelled)
 SPLIT_MIN_T60_S = 0.3  # both halves of a split ring at least this long
@@ -168,7 +179,9 @@ class Identification:
 
     @property
     def verdict(self) -> str:
-        """``"identified"``, ``"not identified: ..."`` or ``"implausible: ..."``."""
+        """``"identified"``, ``"not identified: ..."`` or ``"implausible: ..."`` (past the
+        film's yield, or below the tension at which the head holds a pitch at all:
+        :func:`membrane.safety.practical_minimum`)."""
         head = self.drum.head
         if len(self.matches) < MIN_MATCHED:
             return (f"not identified: {len(self.matches)} partials matched, at least "
@@ -177,6 +190,11 @@ class Identification:
                 self.stress > head.yield_stress:
             return (f"implausible: film stress {self.stress / 1e6:.0f} MPa at this tension is "
                     f"past the film's yield stress {head.yield_stress / 1e6:.0f} MPa")
+        from .safety import below_minimum
+
+        slack = below_minimum(head, self.tension)
+        if slack is not None:
+            return f"implausible: {slack}"
         return "identified"
 
     @property
@@ -204,7 +222,8 @@ def weights(partials) -> np.ndarray:
 
 
 def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = MAX_CENTS,
-             split_cents: float = SPLIT_CENTS, progress=None) -> Identification:
+             split_cents: float = SPLIT_CENTS, splits: str = "beating",
+             progress=None) -> Identification:
     """Fit the struck head's tension to measured partials and label them (m, n).
 
     Parameters
@@ -220,6 +239,10 @@ def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = 
         Largest distance of a partial from its mode to count as a match [cents].
     split_cents : float
         Partials closer than this are taken as one split degenerate mode [cents].
+    splits : {"beating", "resolved"}
+        Which close pairs are claimed as a split mode: ``"beating"`` (default) only pairs
+        that beat audibly (:func:`beats`); ``"resolved"`` every pair the analysis resolved,
+        however slowly it beats (a lug estimate from a clean recording reads those too).
     progress : callable or None
         Called with a short message at each stage (the full model takes seconds a solve).
 
@@ -240,6 +263,8 @@ def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = 
         raise InputError("max_cents", max_cents, "between 0 and 600 cents")
     if not 0 <= split_cents < max_cents:
         raise InputError("split_cents", split_cents, f"between 0 and max_cents ({max_cents})")
+    if splits not in ("beating", "resolved"):
+        raise InputError("splits", splits, "beating or resolved")
     usable = sorted((p for p in partials if "steady" not in p.flags), key=lambda p: p.settled)
     if len(usable) < 2:
         raise InputError("partials", len(usable), "need at least two partials that decay (not "
@@ -251,48 +276,74 @@ def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = 
     split_ok = _splittable(parts)
     t0 = drum.head.tension
     say = progress or (lambda message: None)
-    # the global search runs on the stiff model (or the ideal one, if asked for): cheap
-    # solves; the full model refines the result
-    search = "stiff" if physics == "full" else physics
-    # the table reaches 1.6 times the partials' span (the lowest partial may be the (1,1),
-    # 1.59 times the (0,1), when the (0,1) is missed), at most MAX_RANGE times the (0,1)
-    m_max, n_max = _orders(fp.max() / fp.min() * 1.6, MAX_RANGE.get(search, 6.0))
-    say(f"searching tensions with the {search} model, m <= {m_max}, n <= {n_max}")
-    base = solve(drum, search, m_max=m_max, n_max=n_max)
-    labels = [(md.m, md.n, md.branch, md.head) for md in base.modes]
-    edge = [k for k, lb in enumerate(labels) if lb[:2] in ((m_max, 1), (0, n_max))]
-    double = np.array([md.multiplicity == 2 for md in base.modes])
-    f_base = np.array([md.frequency for md in base.modes])
-
-    # start: every pairing of a strong partial with a low mode proposes a tension (sqrt law)
-    best = _start(fp, w, split_ok, f_base, t0, double, edge, max_cents, split_cents,
-                  MAX_TENSION_FACTOR)
-    if best is None or len(best[2]) < 2:
-        raise SolverError("no tension within a factor of 25 of the drum's puts two of its modes "
-                          "on the partials; check the drum file (diameter, film)")
-    _, tension, pairs = best
     scale = 1.0
-    tension, pairs, modes = _refine(drum, search, fp, w, split_ok, pairs, labels, tension,
-                                    m_max, n_max, double, max_cents, split_cents, say,
-                                    known=None)
     if physics == "full":
+        # the global start on the full model's own modes (radiation damping only: the other
+        # losses move a frequency by under a cent) at the drum file's tension, scaled by
+        # sqrt(T): air loading lowers the low modes by far more than a match's width, so
+        # the in-vacuum pattern would pair the wrong modes
         m_max, n_max = _orders(fp.max() / fp.min() * 1.6, MAX_RANGE["full"])
-        say(f"refining with the full model at {tension:.0f} N/m, m <= {m_max}, n <= {n_max}")
-        modes = solve(drum.with_tension(tension), "full", m_max=m_max, n_max=n_max)
+        say(f"global start on the full model at {t0:.0f} N/m, m <= {m_max}, n <= {n_max}")
+        modes = solve(drum, "full", m_max=m_max, n_max=n_max, losses="radiation")
         labels = [(md.m, md.n, md.branch, md.head) for md in modes.modes]
         edge = [k for k, lb in enumerate(labels) if lb[:2] in ((m_max, 1), (0, n_max))]
         double = np.array([md.multiplicity == 2 for md in modes.modes])
-        g = _by_label(modes, labels)
-        # the same global start on the full model's own modes, near the stiff tension: air
-        # loading moves the low modes by more than a match's width
-        found = _start(fp, w, split_ok, g, tension, double, edge, max_cents, split_cents, 2.0)
-        pairs = found[2] if found is not None and len(found[2]) >= 2 else \
-            _assign(fp, g, double, max_cents, split_cents, cover=np.nanmin(g[edge]),
-                    weight=w, split_ok=split_ok)[1]
-        t_tab, pairs, modes, last, scale = _refine_full(
-            drum, fp, w, split_ok, pairs, modes, labels, tension, m_max, n_max, double, edge,
-            max_cents, split_cents, say)
-        tension = t_tab * math.exp(last)
+        ranked = [c for c in _starts(fp, w, split_ok, _by_label(modes, labels), t0, double,
+                                     edge, max_cents, split_cents, MAX_TENSION_FACTOR)
+                  if len(c[2]) >= 2]
+        if not ranked:
+            raise SolverError("no tension within a factor of 25 of the drum's puts two of its "
+                              "modes on the partials; check the drum file (diameter, film)")
+        # sqrt(T) scaling of one table misjudges tensions far from the drum file's (air
+        # loading does not scale so): the cheapest few, at distinct tensions, within
+        # START_MARGIN of the cheapest, are each judged on the full model solved there
+        rivals = []
+        for c in ranked:
+            if c[0] > ranked[0][0] * (1.0 + START_MARGIN) or len(rivals) == START_RIVALS:
+                break
+            if all(abs(math.log(c[1] / r[1])) > START_DISTINCT for r in rivals):
+                rivals.append(c)
+        seen = {}
+        if len(rivals) > 1:
+            say(f"judging {len(rivals)} start tensions on the full model: "
+                + ", ".join(f"{r[1]:.0f}" for r in rivals) + " N/m")
+            judged = []
+            for r in rivals:
+                x_r = math.log(r[1])
+                seen[x_r] = solve(drum.with_tension(r[1]), "full", m_max=m_max, n_max=n_max,
+                                  losses="radiation")
+                g_r = _by_label(seen[x_r], labels)
+                cost, pairs_r = _assign(fp, g_r, double, max_cents, split_cents,
+                                        cover=np.nanmin(g_r[edge]), weight=w, split_ok=split_ok)
+                judged.append((cost, r[1], pairs_r))
+            _, tension, pairs = min(judged, key=lambda c: c[0])
+        else:
+            _, tension, pairs = rivals[0]
+        tension, pairs, modes, last, scale = _refine_full(
+            drum, fp, w, split_ok, pairs, labels, tension, t0, m_max, n_max, double, edge,
+            max_cents, split_cents, say, seen=seen, start=modes)
+        tension = tension * math.exp(last)
+    else:
+        # the table reaches 1.6 times the partials' span (the lowest partial may be the
+        # (1,1), 1.59 times the (0,1), when the (0,1) is missed), at most MAX_RANGE times
+        # the (0,1)
+        m_max, n_max = _orders(fp.max() / fp.min() * 1.6, MAX_RANGE.get(physics, 6.0))
+        say(f"searching tensions with the {physics} model, m <= {m_max}, n <= {n_max}")
+        base = solve(drum, physics, m_max=m_max, n_max=n_max)
+        labels = [(md.m, md.n, md.branch, md.head) for md in base.modes]
+        edge = [k for k, lb in enumerate(labels) if lb[:2] in ((m_max, 1), (0, n_max))]
+        double = np.array([md.multiplicity == 2 for md in base.modes])
+        f_base = np.array([md.frequency for md in base.modes])
+        # start: every pairing of a strong partial with a low mode proposes a tension
+        best = _start(fp, w, split_ok, f_base, t0, double, edge, max_cents, split_cents,
+                      MAX_TENSION_FACTOR)
+        if best is None or len(best[2]) < 2:
+            raise SolverError("no tension within a factor of 25 of the drum's puts two of its "
+                              "modes on the partials; check the drum file (diameter, film)")
+        _, tension, pairs = best
+        tension, pairs, modes = _refine(drum, physics, fp, w, split_ok, pairs, labels, tension,
+                                        m_max, n_max, double, max_cents, split_cents, say,
+                                        known=None)
     g = _by_label(modes, labels) * scale  # the table carried to the fitted tension
     cover = np.nanmin(g[edge])
     # every usable partial labelled at the fitted tension (the fit used the heaviest)
@@ -301,7 +352,8 @@ def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = 
                         weight=weights(usable), split_ok=_splittable(usable))[1]
     sigma = _uncertainty(fp, w, pairs, g, tension)
     return _result(drum, tension, t0, usable, all_pairs, labels, g, modes, cover=cover,
-                   uncertainty=sigma, physics=physics, split_cents=split_cents)
+                   uncertainty=sigma, physics=physics, split_cents=split_cents,
+                   need_beat=splits == "beating")
 
 
 def _start(fp, w, split_ok, f_base, t_base, double, edge, max_cents, split_cents, factor):
@@ -310,7 +362,14 @@ def _start(fp, w, split_ok, f_base, t_base, double, edge, max_cents, split_cents
     ``f_base`` are the model's modes at ``t_base`` [N/m], scaled by sqrt(T / t_base) to each
     trial; trials are limited to within ``factor`` of ``t_base``.
     """
-    best = None
+    ranked = _starts(fp, w, split_ok, f_base, t_base, double, edge, max_cents, split_cents,
+                     factor)
+    return ranked[0] if ranked else None
+
+
+def _starts(fp, w, split_ok, f_base, t_base, double, edge, max_cents, split_cents, factor):
+    """Every trial of :func:`_start` as (cost, tension, pairs), cheapest first."""
+    out = []
     for i in np.argsort(-w)[:6]:
         for k in range(min(12, f_base.size)):
             if not np.isfinite(f_base[k]):
@@ -321,9 +380,27 @@ def _start(fp, w, split_ok, f_base, t_base, double, edge, max_cents, split_cents
             g = f_base * math.sqrt(t / t_base)
             cost, pairs = _assign(fp, g, double, max_cents, split_cents,
                                   cover=np.nanmin(g[edge]), weight=w, split_ok=split_ok)
-            if best is None or cost < best[0] - 1e-9:
-                best = (cost, t, pairs)
-    return best
+            out.append((cost, t, pairs))
+    return sorted(out, key=lambda c: c[0])
+
+
+BEAT_RING_DB = 40.0  # a split pair beats at least once before its shorter member falls this far
+BEAT_LEVEL_DB = 20.0  # and its weaker member is within this of the stronger (an audible beat)
+
+
+def beats(low: Partial, high: Partial) -> bool:
+    """Whether two partials of one mode are resolved as a split pair that beats.
+
+    Each has its own envelope, and one beat period 1 / (f_high - f_low) fits in the time
+    the shorter-ringing one takes to fall :data:`BEAT_RING_DB` (T60 x 40 / 60), with the
+    weaker within :data:`BEAT_LEVEL_DB` of the stronger; otherwise the two cannot be told
+    from one partial with a slow swell (common practice, no source).
+    """
+    if low.t60 is None or high.t60 is None or high.frequency <= low.frequency:
+        return False
+    ring = min(low.t60, high.t60) * BEAT_RING_DB / 60.0
+    return 1.0 / (high.frequency - low.frequency) <= ring and \
+        abs(low.level_db - high.level_db) <= BEAT_LEVEL_DB
 
 
 def _splittable(parts) -> np.ndarray:
@@ -352,49 +429,97 @@ def _refine(drum, physics, fp, w, split_ok, pairs, labels, tension, m_max, n_max
     return tension, pairs, modes
 
 
-FULL_SOLVES = 4  # full-model tables solved in the refinement, at most
-FULL_STEP = 2.5e-3  # in ln T: a step this small from the latest table is taken by the sqrt law
+FULL_ROUNDS = 3  # tension searches on the full model, each followed by pairing again
+SEARCH_CLOSE = 1e-4  # in ln f: 0.17 cents, where the search stops; the last step does the rest
 
 
-def _refine_full(drum, fp, w, split_ok, pairs, modes, labels, tension, m_max, n_max, double,
-                 edge, max_cents, split_cents, say):
-    """The tension on the full model in a few solves (each takes a second or more).
+def _refine_full(drum, fp, w, split_ok, pairs, labels, tension, t0, m_max, n_max, double,
+                 edge, max_cents, split_cents, say, seen=None, start=None):
+    """The tension on the full model: the shared search, then one solve with every loss.
 
-    From the latest table (solved at T_tab) the pairs give the tension by the slope of
-    ln f against ln T, T = T_tab exp(mean_w ln(f_partial / f_mode) / slope); the model is solved there, the partials
-    paired again, and so on until the step is below :data:`FULL_STEP` or
-    :data:`FULL_SOLVES` tables have been solved. That last small step is taken by the
-    slope of ln f against ln T that the last two tables show (the sqrt law's 1/2 before
-    there are two): over 0.25 % of tension the model's frequencies follow that slope to far
-    less than a hundredth of a cent.
+    For fixed pairs, G(x) = mean_w ln(f_mode(e^x) / f_partial) rises with x = ln T, with
+    upward jumps where a paired label passes an air resonance of the body:
+    :func:`membrane.tension_search.search` finds its root (or the jump, or the bound),
+    each evaluation a full-model table with radiation damping only. The partials are then
+    paired again on the last table and the search repeated (at most :data:`FULL_ROUNDS`
+    times) until the pairs hold. Last, the full model with every loss of the drum file
+    (``solve(..., losses="all")``) is solved there once and the small remaining step (the
+    losses move frequencies by under a cent) is taken with the slope of ln f against ln T
+    that the search saw (1/2, the sqrt law, if it saw none).
 
-    Returns the last table's tension [N/m], the pairs, the table, the last step in ln T
-    and the factor it moves the table's frequencies by.
+    ``start`` is the table at the drum file's tension ``t0`` that the global start used:
+    scaled by sqrt(T) it stands in for the model at the start's tension in the first
+    round (when that tension was not solved already), so a start already on target costs
+    no radiation solve there; the solve with every loss follows in any case.
+
+    Returns the last table's tension [N/m], the pairs, that table, the last step in ln T and
+    the factor it moves the table's frequencies by.
     """
-    t_tab = tension
-    slope, before = 0.5, None  # d ln f / d ln T: the sqrt law, then the tables' own secant
-    for count in range(1, FULL_SOLVES + 1):
-        g = _by_label(modes, labels)
-        i = np.array([a for a, _ in pairs])
-        ln_g = np.log(g[[k for _, k in pairs]])
-        ok = np.isfinite(ln_g)
+    from .tension_search import Beyond, Found, Jump, search
+
+    x = math.log(tension)
+    lo = math.log(t0 / MAX_TENSION_FACTOR)
+    hi = math.log(t0 * MAX_TENSION_FACTOR)
+    seen: dict[float, ModeSet] = {} if seen is None else seen  # radiation tables by ln T
+
+    def offset(modes, pairs_):
+        i = np.array([a for a, _ in pairs_])
+        r = np.log(_by_label(modes, labels)[[k for _, k in pairs_]] / fp[i])
+        ok = np.isfinite(r)
         if not ok.any():
             raise SolverError("the paired modes vanished from the full model's table")
-        mean_g = float(np.sum(w[i][ok] * ln_g[ok]) / np.sum(w[i][ok]))
-        mean_f = float(np.sum(w[i][ok] * np.log(fp[i][ok])) / np.sum(w[i][ok]))
-        if before is not None and before[0] != math.log(t_tab) and before[2] == pairs:
-            slope = min(max((mean_g - before[1]) / (math.log(t_tab) - before[0]), 0.2), 1.0)
-        step = (mean_f - mean_g) / slope
-        if abs(step) < FULL_STEP or count == FULL_SOLVES:
-            return t_tab, pairs, modes, step, math.exp(slope * step)
-        before = (math.log(t_tab), mean_g, pairs)
-        t_tab = t_tab * math.exp(step)
-        say(f"full model at {t_tab:.1f} N/m ({count + 1} of at most {FULL_SOLVES} solves)")
-        modes = solve(drum.with_tension(t_tab), "full", m_max=m_max, n_max=n_max)
-        g = _by_label(modes, labels)
-        pairs = _assign(fp, g, double, max_cents, split_cents, cover=np.nanmin(g[edge]),
-                        weight=w, split_ok=split_ok)[1]
-    return t_tab, pairs, modes, 0.0, 1.0
+        return float(np.sum(w[i][ok] * r[ok]) / np.sum(w[i][ok]))
+
+    def table(xx, losses="radiation"):
+        if losses == "radiation" and xx in seen:
+            return seen[xx]
+        modes = solve(drum.with_tension(math.exp(xx)), "full", m_max=m_max, n_max=n_max,
+                      losses=losses)
+        if losses == "radiation":
+            seen[xx] = modes
+        return modes
+
+    slope = 0.5
+    for round_ in range(FULL_ROUNDS):
+        say(f"full model: searching the tension for {len(pairs)} paired partials "
+            f"(round {round_ + 1}), from {math.exp(x):.1f} N/m")
+        fixed = list(pairs)
+        g = lambda xx: offset(table(xx), fixed)  # noqa: E731
+        if round_ == 0 and start is not None and x not in seen:
+            # the start table carried by sqrt(T): the pairs' offset there, without a solve
+            g0 = offset(start, fixed) + 0.5 * (x - math.log(t0))
+        else:
+            g0 = g(x)
+        found = search(g, x0=x, g0=g0, lo=lo, hi=hi, close=SEARCH_CLOSE, max_solves=12)
+        if isinstance(found, Found) and found.solves == 0 and x not in seen:
+            break  # on target by the start table already: the solve with every loss checks
+        if isinstance(found, Found):
+            x = found.x
+        elif isinstance(found, Jump):
+            # the pairs' mean jumps over the target at an air resonance: the nearer end
+            x = found.x_lo if abs(found.g_lo) <= abs(found.g_hi) else found.x_hi
+        else:
+            x = found.x
+        known = sorted(seen)
+        if len(known) >= 2:
+            xa, xb = known[-2], known[-1]
+            ga, gb = offset(seen[xa], fixed), offset(seen[xb], fixed)
+            if xb != xa and 0.1 < (gb - ga) / (xb - xa) < 1.5:
+                slope = (gb - ga) / (xb - xa)
+        modes = table(x)
+        g_tab = _by_label(modes, labels)
+        new_pairs = _assign(fp, g_tab, double, max_cents, split_cents,
+                            cover=np.nanmin(g_tab[edge]), weight=w, split_ok=split_ok)[1]
+        if new_pairs == pairs or isinstance(found, Beyond):
+            break
+        pairs = new_pairs
+    say(f"full model with every loss at {math.exp(x):.1f} N/m")
+    modes = table(x, losses="all")
+    g_tab = _by_label(modes, labels)
+    pairs = _assign(fp, g_tab, double, max_cents, split_cents, cover=np.nanmin(g_tab[edge]),
+                    weight=w, split_ok=split_ok)[1]
+    step = -offset(modes, pairs) / slope
+    return math.exp(x), pairs, modes, step, math.exp(slope * step)
 
 
 def _uncertainty(fp, w, pairs, g, tension) -> float:
@@ -526,7 +651,7 @@ def _fit_tension(drum, physics, fp, pairs, labels, tension, *, weight=None, know
 
 
 def _result(drum, tension, t0, parts, pairs, labels, freqs, modes, cover, uncertainty=math.nan,
-            physics="stiff", split_cents=SPLIT_CENTS) -> Identification:
+            physics="stiff", split_cents=SPLIT_CENTS, need_beat=True) -> Identification:
     matches, splits, by_mode = [], [], {}
     for i, k in pairs:
         m, n, branch, head = labels[k]
@@ -538,10 +663,16 @@ def _result(drum, tension, t0, parts, pairs, labels, freqs, modes, cover, uncert
         if len(group) == 2:
             low, high = sorted(group, key=lambda p: p.frequency)
             splits.append(SplitPair(m=labels[k][0], n=labels[k][1], low=low, high=high))
-    # a split is two partials close to each other, not merely each close to the mode
-    kept = [sp for sp in splits if sp.cents <= split_cents]
-    dropped = {id(sp.high if sp.high.amplitude < sp.low.amplitude else sp.low)
-               for sp in splits if sp.cents > split_cents}
+    # a split is two partials close to each other, not merely each close to the mode, and
+    # heard as one: they beat (see :func:`beats`); otherwise the mode keeps the partial
+    # that the assignment gains most by (its weight times what it saves on MAX_CENTS)
+    kept = [sp for sp in splits
+            if sp.cents <= split_cents and (beats(sp.low, sp.high) or not need_beat)]
+    gain = {id(p): (MAX_CENTS - abs(notation.cents(p.settled, freqs[k]))) * wt
+            for (i, k), wt in zip(pairs, weights([parts[i] for i, _ in pairs]))
+            for p in (parts[i],)}
+    dropped = {id(min((sp.low, sp.high), key=lambda p: gain[id(p)]))
+               for sp in splits if sp not in kept}
     splits = kept
     matches = [mt for mt in matches if id(mt.partial) not in dropped]
     paired = {i for i, _ in pairs if id(parts[i]) not in dropped}

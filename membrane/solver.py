@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from dataclasses import replace
+
 import numpy as np
 
 from .blas import one_blas_thread
@@ -106,7 +108,7 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3,
             raise InputError("m_max, n_max", f"{m_max}, {n_max}",
                              f"with full physics at most m_max = {FULL_M_MAX} and n_max = {FULL_N_MAX} "
                              "(the coupled solve grows fast; use --physics stiff for bigger tables)")
-        from .physics.coupled import full_modes, model_notes
+        from .physics.assembly import model_notes
 
         params = drum.losses if losses == "all" else None
         modes = full_modes(drum, m_max=m_max, n_max=n_max, losses=params, air=True)
@@ -136,3 +138,90 @@ def material_notes(drum: Drum) -> list[str]:
             seen.add(note)
             notes.append(note if drum.resonant_head is None else f"{where}: {note}")
     return notes
+
+
+def full_modes(drum, *, m_max: int, n_max: int, settings=None,
+               losses=None, air: bool = False) -> list:
+    """Modes of a drum with air on its faces and in its body (``--physics full``).
+
+    Parameters
+    ----------
+    drum : membrane.drum.Drum
+        The drum (body ``none``: air on both faces; ``kettle``; ``shell`` with a resonant head).
+    m_max, n_max : int
+        Orders 0..m_max and n = 1..n_max per order (and per branch for a shell).
+    settings : membrane.physics.operator.Settings or None
+        Numerical settings (None: the defaults, which converge the frequencies to about 1e-5 or better).
+    losses : membrane.losses.Losses or None
+        Losses besides radiation (film, air boundary layers, rim: dissipation.py); None
+        for radiation damping only.
+
+    Returns
+    -------
+    list of membrane.modes.Mode
+        (m, n) is the root that is most the in-vacuum mode (m, n) (see physics.assembly.label_roots);
+        for a shell each (m, n) appears once per branch, ``"in-phase"`` or ``"opposed"``.
+        Decay is T60 from radiation damping only. With ``air``, the roots that are mostly
+        the body's air are rows of their own (kind "air", n = -1, -2, ... in order of
+        frequency within their m, a key no head mode has).
+    """
+    from .physics.assembly import decay_time, solve_drum
+    from .physics.operator import DEFAULT
+
+    solved = solve_drum(drum, m_max=m_max, n_max=n_max, settings=settings or DEFAULT, losses=losses)
+    bases = {}
+    out = []
+    pair = {}
+    for od in solved:
+        order = od.order
+        m = order.m
+        h1 = order.heads[0]
+        if m not in bases:
+            bases[m] = h1.basis()
+        for r, lab in enumerate(od.labels):
+            if lab is None or (lab[0] == "air" and not air):
+                continue
+            kind, air_mode = "head", None
+            if lab[0] == "air":  # n = -1, -2, ... up the order: a key of its own, never a head's
+                n_air = sum(1 for lb in od.labels[:r + 1] if lb is not None and lb[0] == "air")
+                kind, air_mode, hidx, n = "air", (lab[1], lab[2]), 0, -n_air
+            else:
+                _, hidx, n = lab
+            x = od.vectors[r]
+            coef = h1.unit.to_basis(x[: h1.size])
+            res_coef = res_basis = None
+            branch = head = None
+            if drum.body.kind == "shell":
+                if order.cross_sign is not None:
+                    branch = "in-phase" if order.cross_sign > 0 else "opposed"
+                    res_coef = coef * order.cross_sign
+                    res_basis = bases[m]
+                else:
+                    h2 = order.heads[1]
+                    res_coef = h2.unit.to_basis(x[h1.size:])
+                    if kind == "head":
+                        head = "struck" if hidx == 0 else "resonant"
+                        pair.setdefault((m, n), []).append(len(out))
+                    res_basis = h2.basis()
+            scale = np.max(np.abs(coef)) if res_coef is None else max(np.max(np.abs(coef)),
+                                                                      np.max(np.abs(res_coef)))
+            w = complex(od.omega[r])
+            out.append(Mode(m=m, n=n, frequency=w.real / (2 * np.pi), decay=decay_time(w),
+                            multiplicity=1 if m == 0 else 2, omega=w,
+                            coefficients=coef / scale, basis=bases[m], branch=branch, head=head,
+                            resonant_coefficients=None if res_coef is None else res_coef / scale,
+                            resonant_basis=res_basis, kind=kind,
+                            head_fraction=float(od.head_fraction[r]), air_mode=air_mode))
+    for (m, n), (i, j) in pair.items():  # unequal heads: label the pair's branches
+        s = [_phase_score(out[k], n) for k in (i, j)]
+        hi, lo = (i, j) if s[0] >= s[1] else (j, i)
+        out[hi] = replace(out[hi], branch="in-phase")
+        out[lo] = replace(out[lo], branch="opposed")
+    return out
+
+
+def _phase_score(mode, n) -> float:
+    """Signed agreement of the two heads' outward displacement in the pair's own shape n."""
+    a, b = mode.coefficients[n - 1], mode.resonant_coefficients[n - 1]
+    den = abs(a) * abs(b)
+    return float(np.real(a * np.conj(b)) / den) if den > 0 else 0.0

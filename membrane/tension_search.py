@@ -11,9 +11,19 @@ upward jumps, and has three outcomes, never a failure to settle:
   jump test with g(x_lo) < 0 < g(x_hi) and a slope far steeper than any smooth change;
 * :class:`Beyond`: g keeps its sign up to a bound of the allowed range.
 
+Several targets at once (or one target and a second free parameter) have no exact root: they
+are met in the least-squares sense by :func:`fit`, the same module's other entry point, so that
+every tension fit (the single- and multi-target tune, listen's fit to a recording) goes
+through one place.
+
+Public API (stable): :func:`search` with its outcomes :class:`Found`, :class:`Jump` and
+:class:`Beyond`, and :func:`fit` with :class:`Fit`.
+
 Secant steps (slope clamped to what sqrt(T) scaling and the air allow) find a bracket, then
-a safeguarded regula falsi (Illinois) shrinks it; each evaluation is a model solve, so the
-count matters more than the arithmetic. Used by the single-target tune and meant for every
+regula falsi (Illinois: the end kept is weighted half as much each time) shrinks it, with a
+bisection whenever the bracket is steep (a jump) or has not halved in two steps (a flat
+stretch before a crossing); each evaluation is a model solve, so the count matters more than
+the arithmetic. Used by the single-target tune and meant for every
 tension fit (listen's included).
 """
 
@@ -21,6 +31,8 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+
+import numpy as np
 
 # a smooth branch has d ln f / d ln T between 0 and about 1 (1/2 for an ideal membrane);
 # a bracket whose secant slope is this much steeper holds a jump, not a root
@@ -86,32 +98,44 @@ def search(g, *, x0: float, g0: float, lo: float, hi: float, close: float,
         return Found(x0, g0, 0)
     below = (x0, g0) if g0 < 0 else None  # (x, g) with g < 0, the largest x so far
     above = (x0, g0) if g0 > 0 else None  # (x, g) with g > 0, the smallest x so far
+    # Illinois: the value each end of the bracket is weighted with (halved every time that
+    # end is kept), and the bracket widths of the last steps (bisect when they stall)
+    w_below = w_above = None
+    widths = []
     xa, ga = x0, g0
     xb = min(max(x0 - 2.0 * g0, lo), hi)  # sqrt(T) scaling: the first guess only
-    side = 0  # Illinois: which end was kept last
+    gb = g0
     while solves < max_solves:
         gb = g(xb)
         solves += 1
         if abs(gb) < close:
             return Found(xb, gb, solves)
         if gb < 0:
-            below, side = (xb, gb), (side - 1 if side <= 0 else -1)
+            below = (xb, gb)
+            w_below = gb
+            if w_above is not None:
+                w_above *= 0.5  # the upper end kept once more
         else:
-            above, side = (xb, gb), (side + 1 if side >= 0 else 1)
+            above = (xb, gb)
+            w_above = gb
+            if w_below is not None:
+                w_below *= 0.5
         if below is not None and above is not None:
             (x1, g1), (x2, g2) = below, above
+            if w_below is None:
+                w_below = g1
+            if w_above is None:
+                w_above = g2
             width = x2 - x1
-            if width <= MIN_WIDTH or (g2 - g1) > JUMP_SLOPE * max(width, 1e-300) and width < 1e-3:
+            steep = (g2 - g1) > JUMP_SLOPE * max(width, 1e-300)
+            if width <= MIN_WIDTH or (steep and width < 1e-3):
                 return Jump(x1, x2, g1, g2, solves)
-            # regula falsi, with the kept end's value halved after two keeps (Illinois)
-            w1, w2 = g1, g2
-            if side <= -2:
-                w2 = 0.5 * g2
-            elif side >= 2:
-                w1 = 0.5 * g1
-            x = x1 - w1 * (x2 - x1) / (w2 - w1)
-            if not (x1 + 0.01 * width < x < x2 - 0.01 * width) or (g2 - g1) > JUMP_SLOPE * width:
-                x = 0.5 * (x1 + x2)  # bisect: a steep bracket is split evenly
+            widths.append(width)
+            x = x1 - w_below * (x2 - x1) / (w_above - w_below)
+            stalled = len(widths) >= 3 and widths[-1] > 0.5 * widths[-3]
+            if steep or stalled or not (x1 + 0.01 * width < x < x2 - 0.01 * width):
+                x = 0.5 * (x1 + x2)  # bisect: a steep bracket, or one that shrinks too slowly
+                widths.clear()
             xa, ga, xb = xb, gb, x
             continue
         slope = (gb - ga) / (xb - xa) if xb != xa else 0.5
@@ -128,3 +152,71 @@ def search(g, *, x0: float, g0: float, lo: float, hi: float, close: float,
         (x1, g1), (x2, g2) = below, above
         return Jump(x1, x2, g1, g2, solves)
     return Beyond("low" if gb > 0 else "high", xb, gb, solves)
+
+
+@dataclass(frozen=True)
+class Fit:
+    """A least-squares fit of log parameters (ln T first).
+
+    Attributes
+    ----------
+    x : numpy.ndarray
+        The parameters at the optimum (ln of tension in N/m, then any others, each a log).
+    residuals : numpy.ndarray
+        The residuals there (cents, as the caller's function returns them).
+    solves : int
+        Evaluations of the residual function (model solves).
+    message : str
+        The optimiser's account of why it stopped.
+    """
+
+    x: np.ndarray
+    residuals: np.ndarray
+    solves: int
+    message: str
+
+
+def fit(residuals, *, x0, lower, upper, step: float = 1e-6) -> Fit:
+    """Least squares of residuals(x) over log parameters within bounds.
+
+    Parameters
+    ----------
+    residuals : callable
+        x (array: ln T in N/m, then e.g. the log of an areal density or a volume) -> residuals
+        in cents, one model solve per call.
+    x0 : sequence of float
+        The start (inside the bounds).
+    lower, upper : sequence of float
+        Bounds of each parameter.
+    step : float
+        Relative step of the finite-difference Jacobian.
+
+    Returns
+    -------
+    Fit
+
+    Raises
+    ------
+    membrane.errors.SolverError
+        If the residuals are not finite at the optimum.
+
+    Notes
+    -----
+    scipy's trust-region reflective least squares (scipy.optimize.least_squares), with a
+    parameter scale of 0.1 in the logs (a tenth of e-fold is a typical tuning move).
+    """
+    from scipy import optimize
+
+    from .errors import SolverError
+
+    count = [0]
+
+    def counted(x):
+        count[0] += 1
+        return residuals(x)
+
+    out = optimize.least_squares(counted, np.asarray(x0, dtype=float), bounds=(lower, upper),
+                                 x_scale=0.1, diff_step=step, xtol=1e-12, ftol=1e-12, gtol=1e-12)
+    if not np.all(np.isfinite(out.fun)):
+        raise SolverError(f"the least-squares fit did not converge ({out.message})")
+    return Fit(x=out.x, residuals=out.fun, solves=count[0], message=str(out.message))

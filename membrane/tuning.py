@@ -24,7 +24,6 @@ import math
 from dataclasses import dataclass, replace
 
 import numpy as np
-from scipy import optimize
 
 from .drum import Drum, Head
 from .errors import InputError, SolverError
@@ -61,6 +60,7 @@ class _Model:
         self.m_max = max(m for m, _ in self.modes)
         self.n_max = max(n_max, max(n for _, n in self.modes))
         self.cache: dict = {}
+        self.roots: dict = {}
         self.solves = 0
 
     def variant(self, tension: float, free: str | None = None, value: float | None = None) -> Drum:
@@ -71,13 +71,43 @@ class _Model:
             drum = replace(drum, body=replace(drum.body, volume=value))
         return drum
 
+    @property
+    def by_order(self) -> bool:
+        """Whether each solve needs only the targets' orders: full physics on one head (the
+        labels of a shell's pairs need the whole table's pairing)."""
+        return self.physics == "full" and self.drum.resonant_head is None
+
+    def order_roots(self, tension: float, free: str | None = None, value: float | None = None) -> dict:
+        """Order m -> its coupled.OrderRoots at a tension (full physics on one head only)."""
+        key = (float(tension), free, value)
+        if key not in self.roots:
+            from .physics.assembly import solve_drum
+
+            drum = self.variant(tension, free, value)
+            losses = drum.losses if self.losses == "all" else None
+            self.roots[key] = {m: solve_drum(drum, m_max=m, n_max=self.n_max, losses=losses, only=m)[0]
+                               for m in sorted({m for m, _ in self.modes})}
+        return self.roots[key]
+
     def frequencies(self, tension: float, free: str | None = None, value: float | None = None) -> np.ndarray:
         key = (float(tension), free, value)
         if key not in self.cache:
-            result = solve(self.variant(tension, free, value), self.physics,
-                           m_max=self.m_max, n_max=self.n_max, losses=self.losses)
             self.solves += 1
-            self.cache[key] = np.array([result.find(m, n).frequency for m, n in self.modes])
+            if self.by_order:  # only the targets' orders: the same roots and labels as the table's
+                from .branches import labelled_root
+
+                ods = self.order_roots(tension, free, value)
+                out = []
+                for m, n in self.modes:
+                    r = labelled_root(ods[m], n)
+                    if r is None:
+                        raise SolverError(f"mode ({m},{n}) was not among the solved roots")
+                    out.append(ods[m].omega[r].real / (2 * np.pi))
+                self.cache[key] = np.array(out)
+            else:
+                result = solve(self.variant(tension, free, value), self.physics,
+                               m_max=self.m_max, n_max=self.n_max, losses=self.losses)
+                self.cache[key] = np.array([result.find(m, n).frequency for m, n in self.modes])
         return self.cache[key]
 
 
@@ -195,7 +225,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     One target: a root of ln(f_mn(T) / f*) in ln T (membrane.tension_search), to within
     0.001 cent, or a refusal in words (below the slack limit, beyond the film's strength,
     or across an air resonance of the body, where the labelled mode jumps). Several: least squares in cents over
-    ln T (and the free parameter's log) with scipy's trust-region solver.
+    ln T (and the free parameter's log), tension_search.fit (scipy's trust-region solver).
     """
     targets = [((int(m), int(n)), float(hz)) for (m, n), hz in targets]
     if not targets:
@@ -240,10 +270,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
             v = math.exp(p[1]) if free else None
             return _cents(model.frequencies(math.exp(p[0]), free, v), wanted)
 
-        fit = optimize.least_squares(residuals, x0, bounds=bounds, x_scale=0.1, diff_step=1e-6,
-                                     xtol=1e-12, ftol=1e-12, gtol=1e-12)
-        if not np.all(np.isfinite(fit.fun)):
-            raise SolverError(f"the least-squares fit did not converge ({fit.message})")
+        fit = tension_search.fit(residuals, x0=x0, lower=bounds[0], upper=bounds[1])
         tension = math.exp(fit.x[0])
         value = math.exp(fit.x[1]) if free else None
 
@@ -305,39 +332,49 @@ def _crossing(drum: Drum, mode, hz: float, model: _Model, jump, lo: float, hi: f
 
     Only full physics has such jumps: where the head mode crosses an air resonance of the
     body, the label (m,n) passes from the lower root to the upper one (docs/mode-identity.md).
-    If the continuous branch on either side does reach the target, that tension is given
-    too, with a caution: there the root is partly (or mostly) the body's air.
+    The refusal names the body's air resonance crossed (its rigid-walled value) and the two
+    tensions the crossing lies between. If the continuous branch that does not carry the
+    label reaches the target near the crossing, that tension is given too, with a caution:
+    there the root is partly (or mostly) the body's air. That branch is followed by local
+    solves from the search's own solve at the crossing (branches.branch_tension): a few
+    seconds, not a re-solve of the drum at every step.
     """
     from . import branches
 
     m, n = mode
     t1, t2 = math.exp(jump.x_lo), math.exp(jump.x_hi)
     f1, f2 = hz * math.exp(jump.g_lo), hz * math.exp(jump.g_hi)
-    words = (f"({m},{n}) cannot sit at {hz:.4g} Hz on this drum: between {t1:,.6g} and {t2:,.6g} N/m "
-             f"it crosses an air resonance of the body")
+    kind = drum.body.kind
+    where = {"kettle": ("kettle", "the bowl's air resonance"),
+             "shell": ("drum", "the shell's air resonance")}.get(kind, ("drum", "an air resonance"))
+    dec = max(0, -math.floor(math.log10(max(t2 - t1, 1e-12))))  # enough digits to tell them apart
+    words = (f"({m},{n}) cannot sit at {hz:.4g} Hz on this {where[0]}: between {t1:,.{dec}f} and "
+             f"{t2:,.{dec}f} N/m it crosses {where[1]}")
     other = ""
-    if model.physics == "full":
-        air, f_lo, f_hi, od_lo, od_hi, r_lo, partner = branches.crossing_note(
-            drum, m=m, n=n, n_max=model.n_max, t_lo=t1, t_hi=t2)
-        words += f" near {air:.4g} Hz"
-        # the continuous branches: the lower one carries on up in tension past the jump,
-        # the upper one down; either may reach the target, as a partly-air partial
-        tries = [(t1, r_lo, +1), (t1, partner, -1)]
-        for start, root, direction in tries:
-            # near the crossing only (further on, the branch meets other crossings and
-            # becomes other partials)
-            got = branches.branch_tension(drum, m=m, n_max=model.n_max, start_tension=start,
-                                          start_root=root, target_hz=hz, direction=direction,
-                                          t_min=max(math.exp(lo), t1 / BRANCH_RANGE),
-                                          t_max=min(math.exp(hi), t2 * BRANCH_RANGE))
-            if got is not None and (got[2] is None or got[2][0] == "air"):
-                t, frac, _ = got
-                other = (f"; the other branch does reach {hz:.4g} Hz, at {t:,.6g} N/m, but "
-                         f"there only {100 * frac:.0f} % of its energy is in the head, the rest in "
-                         f"the body's air (caution: a partly air-like partial, not the principal "
-                         f"({m},{n}); check it by ear)")
-                break
-    words += (f"; below it the head-like ({m},{n}) reaches {f1:.4g} Hz, above it it continues on "
+    if model.by_order:
+        od_lo, od_hi = model.order_roots(t1)[m], model.order_roots(t2)[m]
+        air, f_lo, f_hi, r_lo, r_hi = branches.crossing_note(
+            drum, m=m, n=n, n_max=model.n_max, lo=od_lo, hi=od_hi, sound_speed=drum.air.sound_speed)
+        words += f" near {air:.0f} Hz"
+        # the continuous branches repel at the air resonance: the lower one (the label's
+        # below the jump) rises towards it with tension, the upper one (the label's above)
+        # falls towards it as the tension drops; a target below the air resonance can only be
+        # on the first, one above only on the second; near the crossing only (further on, a
+        # branch meets other crossings and becomes other partials)
+        start, od, r = (t1, od_lo, r_lo) if hz < air else (t2, od_hi, r_hi)
+        losses = drum.losses if model.losses == "all" else None
+        got = branches.branch_tension(drum, m=m, n_max=model.n_max, start_tension=start,
+                                      start_omega=complex(od.omega[r]), start_vector=od.vectors[r],
+                                      target_hz=hz, t_min=max(math.exp(lo), t1 / BRANCH_RANGE),
+                                      t_max=min(math.exp(hi), t2 * BRANCH_RANGE), losses=losses)
+        if got is not None:
+            t, frac, _ = got
+            other = (f"; the other branch does reach {hz:.4g} Hz, at {t:,.{dec}f} N/m, but there only "
+                     f"{100 * frac:.0f} % of its energy is in the head, the rest in the body's air "
+                     f"(caution: a partly air-like partial, not the principal ({m},{n}); check it by ear)")
+    else:
+        words += " (or meets another root of its order)"
+    words += (f"; below that the head-like ({m},{n}) reaches {f1:.4g} Hz, above it it continues on "
               f"the upper branch from {f2:.4g} Hz{other}; choose a target outside "
               f"{f1:.4g}-{f2:.4g} Hz")
     raise InputError("target", f"{hz:.4g} Hz", words)

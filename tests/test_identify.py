@@ -241,3 +241,33 @@ def test_library_identify_defaults_to_full_physics_like_the_cli():
     cli_default = inspect.signature(listen).parameters["physics"].default
     assert cli_default is Physics.full
     assert inspect.signature(identify).parameters["physics"].default == cli_default.value
+
+
+def test_a_split_is_claimed_only_when_the_pair_beats(kettle):
+    # two partials 0.15 Hz apart, each with T60 2.3 s: one beat takes 6.7 s, longer than
+    # either rings (common practice, no source: such a pair is heard as one partial swelling
+    # slowly, not as a beat); the same pair 0.8 Hz apart beats within 1.3 s and is a split
+    modes = [(1, 1), (2, 1), (0, 1), (3, 1), (4, 1), (1, 2), (0, 2)]
+    slow = ideal_partials(kettle, TRUE_TENSION, modes, split=((2, 1), 0.15))
+    assert identify(kettle, slow, physics="ideal").splits == ()
+    resolved = identify(kettle, slow, physics="ideal", splits="resolved").splits
+    assert [(sp.m, sp.n) for sp in resolved] == [(2, 1)]
+    fast = ideal_partials(kettle, TRUE_TENSION, modes, split=((2, 1), 0.8))
+    assert [(sp.m, sp.n) for sp in identify(kettle, fast, physics="ideal").splits] == [(2, 1)]
+    with pytest.raises(InputError, match="splits"):
+        identify(kettle, fast, physics="ideal", splits="some")
+
+
+def test_a_tension_too_low_to_hold_a_pitch_is_implausible(kettle):
+    # partials of the ideal head at 120 N/m: below the practical minimum that membrane.safety
+    # gives for the kettledrum's film (a strain of 2e-4, its own threshold), so the fit is
+    # flagged, not passed as an identification
+    from membrane.safety import practical_minimum
+
+    low = 120.0
+    assert low < practical_minimum(kettle.head)  # the premise
+    modes = [(1, 1), (2, 1), (0, 1), (3, 1), (4, 1), (1, 2), (0, 2)]
+    result = identify(kettle.with_tension(400.0), ideal_partials(kettle, low, modes),
+                      physics="ideal")
+    assert result.tension == pytest.approx(low, rel=1e-6)
+    assert result.verdict.startswith("implausible") and "practical minimum" in result.verdict

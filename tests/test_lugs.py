@@ -66,7 +66,7 @@ def heard(tap):
     from membrane.identify import identify
 
     analysis = _public("analyse")(_public("read_wav")(tap[0]))
-    return measured_splits(identify(DRUM, analysis.partials, physics="ideal"))
+    return measured_splits(identify(DRUM, analysis.partials, physics="ideal", splits="resolved"))
 
 
 def test_round_trip_recovers_the_visible_harmonics(tap, heard):

@@ -10,6 +10,7 @@ to the principal: (1,1), (2,1), (3,1) near 1 : 1.5 : 2 (Rossing, Science of Perc
 Instruments, ch. 2; Fletcher & Rossing, Physics of Musical Instruments, 18.2).
 """
 
+import os
 from pathlib import Path
 
 import numpy as np
@@ -110,7 +111,14 @@ def test_timpani_nothing_loud_above_1_khz(analysed, name):
     assert not loud_high, (name, loud_high)
 
 
-@pytest.mark.parametrize("name", ["tom_low_1.flac", "tom_mid_1.flac", "tom_high_1.flac"])
+@pytest.mark.parametrize("name", [
+    "tom_low_1.flac", "tom_mid_1.flac", "tom_high_1.flac",
+    pytest.param("tom_floor_1.flac", marks=pytest.mark.xfail(strict=True, reason=(
+        "the floor tom falls from 78.6 to 70.1 Hz (-197 cents) mostly within 0.1 s, beside "
+        "a partial at 67.4 Hz: the 0.1 s frames of the glide tracker blend the two, its "
+        "ridge is lost at 0.115-0.14 s, and the comb (80.3, 75.1, 71.1, 69.4 Hz) stays "
+        "unmerged"))),
+])
 def test_a_gliding_tom_fundamental_is_one_partial_with_its_glide(analysed, name):
     # the independent glide: the spectral peak of the fundamental in a 0.1 s Hann window
     # at 20 ms after the onset and in one at 0.4 s, within 20 % below the first
@@ -248,3 +256,34 @@ def test_levels_agree_with_a_long_window_of_the_recording(analysed, name):
     offset = float(np.median([d for _, d in rows]))
     off = [(round(f, 1), round(d - offset, 1)) for f, d in rows if abs(d - offset) > 3.0]
     assert not off, (name, off, [(round(f, 1), round(d - offset, 1)) for f, d in rows])
+
+
+# The whole sample that timpani_high_1.flac is the start of, where the SoundFont it comes from
+# is installed (Debian fluid-soundfont-gm; tests/data/README has its licence). Another path
+# may be given in MEMBRANE_TEST_SOUNDFONT.
+SOUNDFONT = Path(os.environ.get("MEMBRANE_TEST_SOUNDFONT", "/usr/share/sounds/sf2/FluidR3_GM.sf2"))
+
+
+@pytest.mark.skipif(not SOUNDFONT.is_file(), reason="the SoundFont of tests/data is not installed")
+def test_the_whole_high_timpano_sample_with_a_plausible_drum_file(tmp_path):
+    # 3.5 s instead of the 2 s excerpt: the same drum, so the same labels and tension
+    from membrane.drum import load_drum
+    from membrane.identify import identify
+    from membrane.tuning import tension_for
+    from soundfont import sample
+
+    x, rate = sample(SOUNDFONT, "Timpani 3(L)")
+    path = tmp_path / "timpani_high_whole.wav"
+    soundfile.write(path, x, rate, subtype="PCM_16")
+    (tmp_path / "kettle29.toml").write_text(KETTLE_29)
+    drum = load_drum(str(tmp_path / "kettle29.toml"))
+    ref = timpani_partials(reference_peaks(path))
+    result = identify(drum, analyse(read_recording(path)).partials, physics="full")
+    assert result.verdict == "identified" and len(result.matches) >= 3, result.verdict
+    labels = {}
+    for mt in result.matches:
+        labels.setdefault((mt.m, mt.n), []).append(mt.partial.settled)
+    for mn, f in zip([(1, 1), (2, 1)], ref[:2]):
+        assert min(abs(g - f) for g in labels[mn]) < 1.5, (mn, f, labels.get(mn))
+    target = tension_for(drum, targets=[((1, 1), ref[0])], physics="full").tension
+    assert result.tension == pytest.approx(target, rel=0.10)

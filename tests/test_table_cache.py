@@ -10,8 +10,9 @@ import os
 import numpy as np
 import pytest
 
-from membrane.physics import coupled, table_cache
-from membrane.physics.coupled import _Shape, unit_space
+from membrane.physics import operator as coupled  # the module that builds the tables
+from membrane.physics import table_cache
+from membrane.physics.operator import Shape as _Shape, unit_space
 from membrane.physics.radiation import Quadrature, RadiationTable
 
 # small spaces keep the builds to a fraction of a second; one ideal, one stiff

@@ -60,3 +60,14 @@ def test_flat_then_steep_never_fails():
     assert isinstance(out, (Found, Jump))
     if isinstance(out, Found):
         assert abs(f(out.x)) < CLOSE
+
+
+def test_several_targets_are_fitted_in_the_least_squares_sense():
+    # exact: residuals x - 1 and x - 3 (in cents) are smallest together at their mean, x = 2
+    from membrane.tension_search import fit
+
+    out = fit(lambda p: [p[0] - 1.0, p[0] - 3.0], x0=[5.0], lower=[0.0], upper=[12.0])
+    assert abs(out.x[0] - 2.0) < 1e-9 and out.solves > 0
+    # and a bound holds: on [2.5, 12] the optimum is the bound itself
+    out = fit(lambda p: [p[0] - 1.0, p[0] - 3.0], x0=[5.0], lower=[2.5], upper=[12.0])
+    assert abs(out.x[0] - 2.5) < 1e-9

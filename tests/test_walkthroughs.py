@@ -73,3 +73,19 @@ def test_drum_maker(load):
     for tap, change in zip(ex.drum.lugs.pitches, ex.LUG_CHANGES):
         assert tap * 2 ** (change.change_cents / 1200) == pytest.approx(ex.TAP_TARGET_HZ, rel=1e-9)
     assert 0.0 < ex.ADVICE.at < 1.0
+
+
+def test_readme_library_lines_run():
+    # the README shows the library in five lines; they must run as printed
+    import contextlib
+    import io
+    import re
+
+    text = (EXAMPLES.parent / "README.md").read_text(encoding="utf-8")
+    code = re.search(r"### As a library\n+```python\n(.*?)```", text, re.S).group(1)
+    assert code.count("\n") == 5
+    namespace = {}
+    with contextlib.redirect_stdout(io.StringIO()):
+        exec(code, namespace)
+    # C3 = 440 * 2^(-21/12) Hz (ISO 16 pitch) on the (1,1), within the search's tolerance
+    assert namespace["tuning"].targets[0].predicted_hz == pytest.approx(440 * 2 ** (-21 / 12), rel=1e-5)

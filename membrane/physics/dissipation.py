@@ -147,7 +147,7 @@ def tension_gram(space) -> np.ndarray:
     Dimensionless (the integral is scale-free in two dimensions); by Gauss-Legendre
     quadrature on the nodes that assemble the space.
     """
-    from .coupled import _radial_nodes
+    from .ritz import radial_nodes as _radial_nodes
 
     r, w = _radial_nodes(space)
     b = space.basis
@@ -192,7 +192,7 @@ def edge_force(space) -> np.ndarray:
 
 @lru_cache(maxsize=512)
 def _unit_head_terms(shape):
-    from .coupled import unit_space
+    from .operator import unit_space
 
     space = unit_space(shape)
     gram = space.K if shape.s is None else tension_gram(space)
@@ -350,7 +350,7 @@ class RootLosses:
         self.orders = [self._order(rs, o, d) for o, d in zip(rs.orders, rs.data)]
 
     def _order(self, rs, order, d):
-        from .coupled import _block_diag
+        from .operator import block_diag as _block_diag
 
         film, edge, face = [], [], []
         for h in order.heads:

@@ -1,6 +1,6 @@
 r"""Every root of one order of the coupled operator in a frequency window: scan, refine, weigh.
 
-The operator :math:`Z(\omega) = K + S(\omega) - \omega^2 (M + A(\omega))` (coupled.py) has
+The operator :math:`Z(\omega) = K + S(\omega) - \omega^2 (M + A(\omega))` (operator.py) has
 poles where the body's air, with the heads held still, resonates: the duct terms
 :math:`\cot(\beta L)/\beta` and :math:`\csc(\beta L)/\beta`. For the contour method
 (contour.py) the operator must be analytic, so the duct modes that can propagate in the
@@ -70,7 +70,7 @@ class OrderProblem:
 
     Parameters
     ----------
-    rs : membrane.physics.coupled.RootSet
+    rs : membrane.physics.operator.RootSet
         The drum's operators.
     i : int
         Order index in ``rs``.
@@ -432,23 +432,28 @@ def scan_order(rs, i: int, *, covered, lowest: float, tol: float, rounds: int,
         if len(allz) > len(known):
             allz, allv = _dedupe(allz, allv)
             zs, vs = [allz], [allv]
-            allv = _mass_normalised(rs, i, allv)
-            fresh = np.array([not np.any(np.abs(known - w) <= 1e-12 * abs(w)) for w in allz], bool)
+            allv = mass_normalised(rs, i, allv)
+            # a root kept from before keeps its head fraction (found again from the next
+            # circle it may differ in the last digits: matched within 1e-12, not by equality,
+            # else it would count as no head at all and the scan run on far too high)
             frac = np.zeros(len(allz))
-            old = {complex(w): f for w, f in zip(known, fracs)}
+            fresh = np.ones(len(allz), bool)
             for j, w in enumerate(allz):
-                frac[j] = old.get(complex(w), 0.0)
+                if len(known):
+                    k = int(np.argmin(np.abs(known - w)))
+                    if abs(known[k] - w) <= 1e-12 * abs(w):
+                        frac[j], fresh[j] = fracs[k], False
             frac[fresh] = head_fractions(rs, i, allz[fresh], allv[fresh])
             known, fracs = allz, frac
         frac = fracs
-        if len(allz) and covered(allz, _mass_normalised(rs, i, allv), frac, hi):
+        if len(allz) and covered(allz, mass_normalised(rs, i, allv), frac, hi):
             break
         if hi > ceiling:
             raise SolverError(
                 f"coupled solve: order m = {rs.orders[i].m} does not have the head modes wanted "
                 f"below {hi / (2 * np.pi):.4g} Hz")
         centre *= STEP
-    return allz, _mass_normalised(rs, i, allv), frac
+    return allz, mass_normalised(rs, i, allv), frac
 
 
 def _coarse(problem, lo, hi, centre, radius, depth=0):
@@ -475,7 +480,7 @@ def _coarse(problem, lo, hi, centre, radius, depth=0):
     return z[(z.real >= lo / OVERLAP) & (z.real < hi * OVERLAP)]
 
 
-def _mass_normalised(rs, i, v):
+def mass_normalised(rs, i, v):
     """Vectors scaled to unit M-norm, largest entry real and positive."""
     if not len(v):
         return v
@@ -485,3 +490,44 @@ def _mass_normalised(rs, i, v):
     with np.errstate(divide="ignore", invalid="ignore"):
         s = np.where(nrm > 0, np.abs(big) / big / nrm, 1.0)
     return v * s[:, None]
+
+
+def local_roots(rs, i: int, centre: complex, radius: float, *, tol: float):
+    """Every root of order i inside one small circle, polished: (omega, vectors, head fractions).
+
+    The corrector of a continuation (branches.py): where a root was a step ago, and where it
+    is predicted to be, only a small circle needs looking at instead of the whole window.
+    Roots are polished by Newton's method to ``tol`` where they have no close neighbour;
+    an empty answer means none inside, or more than the circle can tell apart (a smaller
+    step gives a smaller circle).
+    """
+    problem = OrderProblem(rs, i)
+    empty = (np.zeros(0, complex), np.zeros((0, rs.size), complex), np.zeros(0))
+    for attempt in range(4):  # a crowd, or noise: more nodes on a smaller circle
+        try:
+            z, v = problem.circle(centre, radius, points=REFINE_POINTS * 2**attempt, blocks=2,
+                                  rank_tol=REFINE_RANK)
+            break
+        except TooMany:
+            radius *= 0.5
+    else:
+        return empty
+    keep = ~spurious(problem, z)
+    z, v = z[keep], v[keep]
+    if not len(z):
+        return empty
+    order = np.argsort(z.real)
+    z, v = z[order], v[order]
+    # a root near the curve is known only roughly from the moments: Newton's method may
+    # move it as far as the circle reaches, but no nearer to a neighbour than half the gap
+    for j in range(len(z)):
+        others = np.delete(z, j)
+        gap = np.min(np.abs(others - z[j])) if len(others) else np.inf
+        if gap < 1e-5 * abs(z[j]):
+            continue  # a tight cluster keeps its subspace values
+        reach = min(2.0 * radius, 0.5 * gap) / abs(z[j])
+        got = problem.polish(z[j], tol=tol, reach=reach)
+        if got is not None:
+            z[j], v[j] = got
+    v = mass_normalised(rs, i, v)
+    return z, v, head_fractions(rs, i, z, v)

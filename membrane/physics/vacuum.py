@@ -282,3 +282,6 @@ def stiff_basis(*, m: int, count: int, radius: float, tension: float, areal_dens
     c = -special.jv(m, x)  # w(a) = 0 with I_hat(a) = 1
     omega = np.sqrt((d * k1**4 + tension * k1**2) / areal_density)
     return RadialBasis(m, a, k1, k2, c, omega, areal_density)
+
+
+ratio_i = _ratio_i  # the public name (ritz.py, dissipation.py)

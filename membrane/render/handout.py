@@ -11,6 +11,7 @@ raster. Every page is laid out in inches from its top, so A4 and Letter both fit
 
 from __future__ import annotations
 
+import math
 import textwrap
 
 import numpy as np
@@ -56,6 +57,7 @@ def strike_advice(modeset):
     (StrikeAdvice or None, list of str)
         The advice (None without a fit or a strike model) and sentences saying it.
     """
+    from ..presets import DEFAULT_LISTENER_ANGLE
     from ..strike import DEFAULT_MALLET, best_strike_radius
     from ..errors import MembraneError
 
@@ -76,7 +78,7 @@ def strike_advice(modeset):
         f"Struck there, these modes together are {advice.contrast_db:+.1f} dB against all the other "
         "modes together, the best contrast of any strike point.",
         f"Loudest partials there: {heard} (relative to the loudest).",
-        "This is a model estimate for a listener 45 degrees off the axis: let your ears decide.",
+        f"This is a model estimate for a listener {math.degrees(DEFAULT_LISTENER_ANGLE):.0f} degrees off the axis: let your ears decide.",
     ]
 
 

@@ -1,0 +1,262 @@
+r"""A drum as coupled eigenproblems, solved and labelled: orders, roots, labels (full physics).
+
+For each angular order m the drum is one eigenproblem of the operator Z(omega) (operator.py) on
+its head's Ritz space (two heads' for a shell with unequal heads; a shell of two identical
+heads is two problems, in-phase and opposed, by symmetry). Every root of each problem in a
+frequency window comes from the contour solve of spectrum.py; each root gets a head fraction
+and a label (docs/mode-identity.md): the in-vacuum mode (m,n) it holds most of, or the body's
+air resonance it is. solver.py turns them into Mode rows.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ..notation import LN1000
+from .cavity import duct_wavenumbers
+from .operator import DEFAULT, HeadOrder, Order, RootSet, Settings
+
+
+def identical_heads(h1, h2) -> bool:
+    """Whether two heads are the same in every property the coupled solve uses."""
+    return h1.vibrates_like(h2)  # one home: membrane.drum.Head.vibrates_like
+
+
+def drum_orders(drum, *, m_max: int, n_max: int, settings: Settings) -> list:
+    """The eigenproblems of a drum: one Order per m, two per m for identical shell heads
+    (in-phase and opposed, solved on one head's space by symmetry)."""
+    head, res = drum.head, drum.resonant_head
+    count = n_max + settings.extra_modes
+    kind = drum.body.kind
+    # Drum holds its own invariants (a kettle has a volume, a shell a depth and a resonant head
+    # of the same diameter), so nothing is re-validated here
+    depth, faces = (drum.air_depth, 1) if kind in ("kettle", "shell") else (None, 2)
+    orders = []
+    for m in range(m_max + 1):
+        h1 = HeadOrder(head, m=m, count=count, rim=settings.rim)
+        if kind != "shell":
+            orders.append(Order(m, [h1], faces, depth))
+        elif identical_heads(head, res):
+            orders += [Order(m, [h1], faces, depth, cross_sign=+1),
+                       Order(m, [h1], faces, depth, cross_sign=-1)]
+        else:
+            h2 = HeadOrder(res, m=m, count=count, rim=settings.rim, radius=head.radius)
+            orders.append(Order(m, [h1, h2], faces, depth))
+    return orders
+
+
+@dataclass
+class OrderRoots:
+    """The roots of one order, weighed and labelled.
+
+    Attributes
+    ----------
+    order : Order
+    omega : numpy.ndarray
+        Complex angular frequencies, rad/s, ascending in real part.
+    vectors : numpy.ndarray
+        Ritz vectors (R, size), unit M-norm.
+    head_fraction : numpy.ndarray
+        Share of each root's energy in the head(s) (spectrum.head_fractions).
+    labels : list
+        Per root: ("head", head index, n) for the root that is most the in-vacuum mode n of
+        that head, ("air", q, p) for a root that is mostly the body's air (duct mode q
+        radially, p half-waves along the depth), or None for a root left out (a head mode
+        above n_max).
+    """
+
+    order: Order
+    omega: np.ndarray
+    vectors: np.ndarray
+    head_fraction: np.ndarray
+    labels: list
+
+
+def mode_energy(order, vectors) -> np.ndarray:
+    """Energy share of each root in each in-vacuum mode of each head: (R, heads, modes)."""
+    parts = []
+    for h, head in enumerate(order.heads):
+        lo = sum(x.size for x in order.heads[:h])
+        coef = np.array([head.unit.to_basis(v[lo: lo + head.size]) for v in vectors])
+        mass = head.head.areal_density * head.radius**2 * head.unit.basis.modal_mass
+        parts.append(np.abs(coef) ** 2 * mass[None, :])
+    e = np.stack(parts, axis=1)
+    total = e.sum(axis=(1, 2))
+    return e / np.where(total > 0, total, 1.0)[:, None, None]
+
+
+def mode_amplitudes(order, vectors, n_max: int):
+    """Mass-weighted amplitudes of in-vacuum modes 1..n_max on the two heads, each (R, n_max)."""
+    out = []
+    for h, head in enumerate(order.heads):
+        lo = sum(x.size for x in order.heads[:h])
+        coef = np.array([head.unit.to_basis(v[lo: lo + head.size])[:n_max] for v in vectors])
+        mass = head.head.areal_density * head.radius**2 * head.unit.basis.modal_mass[:n_max]
+        out.append(coef * np.sqrt(mass)[None, :])
+    return out[0], out[1]
+
+
+def covered_by(order, omega, vectors, frac, top: float, n_max: int) -> bool:
+    """Whether the roots found below angular frequency ``top`` hold each head's first n_max
+    in-vacuum modes (their energy shares, weighted by head fraction, add up to 0.6 or more
+    over the roots) with room above the highest (a factor 1.25)."""
+    e = mode_energy(order, vectors)[:, :, :n_max] * frac[:, None, None]
+    if np.all(e.sum(axis=0) >= 0.6):
+        best = np.argmax(e, axis=0)  # the root holding most of each mode
+        if top >= 1.25 * np.max(omega[best].real):
+            return True
+    # a body that reshapes the modes (a very stiff air spring) spreads each in-vacuum mode
+    # over many roots: then enough head-like roots, with room above, is the test
+    need = n_max * len(order.heads)
+    head_like = np.sort(omega[frac >= 0.5].real)
+    return bool(np.sum(frac) >= need + 0.5 and len(head_like) >= need
+                and top >= 1.25 * head_like[need - 1])
+
+
+def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) -> list:
+    """Labels for one order's roots (see :class:`OrderRoots`).
+
+    Head mode (h, n) goes to the root holding most of its energy, weighted by the root's head
+    fraction, by an optimal assignment over all the order's roots: through an avoided
+    crossing with an air resonance the label passes from one root to the other where the two
+    are equally that mode (docs/mode-identity.md). The other roots below the order's highest
+    head mode that are mostly air (head fraction < 0.5) are air rows, named by the nearest
+    rigid-walled resonance of the body.
+    """
+    from ..assignment import linear_sum_assignment  # scipy's algorithm without scipy.optimize's import
+
+    R = len(omega)
+    labels = [None] * R
+    if not R:
+        return labels
+    e = mode_energy(order, vectors)[:, :, :n_max] * frac[:, None, None]
+    heads = len(order.heads)
+    top = -np.inf
+    if heads == 1:
+        rows, cols = linear_sum_assignment(-e[:, 0, :])
+        # the chosen roots take n in order of frequency (a body that reshapes the modes
+        # spreads each in-vacuum mode over several roots; the order is what stays)
+        for n, (_, r) in enumerate(sorted((omega[r].real, r) for r in rows)):
+            labels[r] = ("head", 0, n + 1)
+            top = max(top, omega[r].real)
+    else:
+        # two heads of one shell: (m,n) is a pair of roots, the two holding most of the
+        # heads' mode n together (so nearly equal heads, whose roots share both heads,
+        # approach the identical pair continuously); each root is named after the head
+        # that holds more of it
+        pair = e.sum(axis=1)
+        # one in-phase and one opposed member per pair, as the symmetric solve of identical
+        # heads has: s = 2 Re(a b*) / (|a|^2 + |b|^2) over the mode's two coefficients
+        # (mass-weighted) is +1 in phase, -1 opposed, 0 where one head holds the root
+        a, b = mode_amplitudes(order, vectors, n_max)
+        s = 2.0 * np.real(a * np.conj(b)) / np.maximum(np.abs(a) ** 2 + np.abs(b) ** 2, 1e-300)
+        score = np.empty((R, 2 * n_max))
+        score[:, 0::2] = pair * 0.5 * (1.0 + s)
+        score[:, 1::2] = pair * 0.5 * (1.0 - s)
+        rows, cols = linear_sum_assignment(-score)
+        members = {}
+        for r, c in zip(rows, cols):
+            members.setdefault(int(c // 2), []).append(r)
+            top = max(top, omega[r].real)
+        for n, rs_ in members.items():
+            share = [e[r, 0, n] / max(pair[r, n], 1e-300) for r in rs_]
+            for k, r in enumerate(sorted(rs_, key=lambda r: -share[rs_.index(r)])):
+                labels[r] = ("head", min(k, 1), n + 1)
+    if order.depth is not None:
+        air = [r for r in range(R) if labels[r] is None and frac[r] < 0.5 and omega[r].real <= top]
+        if air:
+            gamma = order_duct_gammas(order, count=len(air) + 4)
+            cands = [(q, p, sound_speed * np.hypot(g, p * np.pi / order.depth))
+                     for q, g in enumerate(gamma) for p in range(len(air) + 4)]
+            cost = np.array([[abs(np.log(omega[r].real / max(c[2], 1e-30))) for c in cands]
+                             for r in air])
+            ra, ca = linear_sum_assignment(cost)
+            for i, j in zip(ra, ca):
+                labels[air[i]] = ("air", cands[j][0], cands[j][1])
+    return labels
+
+
+def order_duct_gammas(order, *, count: int) -> np.ndarray:
+    """Transverse wavenumbers of the body's duct modes of this order, 1/m."""
+    return duct_wavenumbers(m=order.m, count=count, radius=order.heads[0].radius)
+
+
+def order_root_set(drum, *, m: int, n_max: int, settings: Settings = DEFAULT, losses=None,
+                   cross_sign=None) -> "RootSet":
+    """The operators of order m alone, as :func:`solve_drum` builds them (the same radiation
+    tables and duct data), for local solves along a branch (branches.follow_root).
+
+    ``cross_sign`` picks the in-phase (+1) or opposed (-1) problem of identical shell heads.
+    """
+    orders = [o for o in drum_orders(drum, m_max=m, n_max=n_max, settings=settings)
+              if o.m == m and (cross_sign is None or o.cross_sign in (None, cross_sign))]
+    order = orders[0]
+    air = (drum.air.density, drum.air.sound_speed)
+    k_max = [1.6 * max(h.omega[n_max] for h in order.heads) / air[1]]
+    return RootSet([order], air=air, settings=settings, k_max=k_max, losses=losses)
+
+
+def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
+               losses=None, only=None) -> list:
+    """Every root of every order of a drum, weighed and labelled: a list of OrderRoots.
+
+    Roots come from the contour solve of spectrum.py in a window that grows until each
+    order's n_max head modes (per head) are inside; nothing is continued from a guess.
+    ``only`` (an m) solves that order alone.
+    """
+    from . import spectrum
+
+    orders = drum_orders(drum, m_max=m_max, n_max=n_max, settings=settings)
+    if only is not None:
+        orders = [o for o in orders if o.m == only]
+    air = (drum.air.density, drum.air.sound_speed)
+    k_max = [1.6 * max(h.omega[n_max] for h in o.heads) / air[1] for o in orders]
+    rs = RootSet(orders, air=air, settings=settings, k_max=k_max,
+                 losses=losses)
+    out = []
+    for i, order in enumerate(orders):
+        lowest = min(h.omega[0] for h in order.heads)
+        top = max(h.omega[n_max - 1] for h in order.heads)
+        omega, vecs, frac = spectrum.scan_order(
+            rs, i, covered=lambda w, v, f, hi, o=order: covered_by(o, w, v, f, hi, n_max),
+            lowest=lowest, tol=settings.tol, rounds=settings.max_iter, ceiling=60.0 * top)
+        labels = label_roots(order, omega, vecs, frac, n_max=n_max, sound_speed=air[1])
+        out.append(OrderRoots(order, omega, vecs, frac, labels))
+    return out
+
+
+def decay_time(omega: complex) -> float:
+    """T60 in s from a complex angular frequency: 3 ln 10 / Im omega.
+
+    A decay rate within round-off of zero (|Im omega| below spectrum.ROUND_OFF of |omega|,
+    either sign) is no loss at all: T60 is infinite (tables show it as beyond their limit).
+    """
+    from .spectrum import ROUND_OFF
+
+    if omega.imag <= ROUND_OFF * abs(omega):
+        return math.inf
+    return LN1000 / omega.imag
+
+
+def model_notes(drum, losses=None) -> list[str]:
+    """What the full model includes and leaves out, for output (``losses`` as for
+    :func:`full_modes`)."""
+    from ..losses import decay_note
+
+    notes = ["air loading from baffled radiation on each open face (an infinite rigid baffle "
+             "at the rim: approximate for a drum without one)", decay_note(losses)]
+    kind = drum.body.kind
+    if kind == "kettle":
+        notes.append("kettle modelled as a rigid cylinder of the bowl's volume under the head: "
+                     "the bowl's shape enters only through its volume")
+    elif kind == "shell":
+        notes.append("shell modelled as a rigid cylinder of the given depth with a head at each "
+                     "end, coupled through the enclosed air (in-phase / opposed pairs)")
+    else:
+        notes.append("no body: air on both faces of the head")
+    if drum.head.bending_stiffness > 0:
+        notes.append("bending stiffness of the film included (exact stiff in-vacuum modes)")
+    return notes
