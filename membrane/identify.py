@@ -179,7 +179,9 @@ class Identification:
 
     @property
     def verdict(self) -> str:
-        """``"identified"``, ``"not identified: ..."`` or ``"implausible: ..."``."""
+        """``"identified"``, ``"not identified: ..."`` or ``"implausible: ..."`` (past the
+        film's yield, or below the tension at which the head holds a pitch at all:
+        :func:`membrane.safety.practical_minimum`)."""
         head = self.drum.head
         if len(self.matches) < MIN_MATCHED:
             return (f"not identified: {len(self.matches)} partials matched, at least "
@@ -188,6 +190,11 @@ class Identification:
                 self.stress > head.yield_stress:
             return (f"implausible: film stress {self.stress / 1e6:.0f} MPa at this tension is "
                     f"past the film's yield stress {head.yield_stress / 1e6:.0f} MPa")
+        from .safety import below_minimum
+
+        slack = below_minimum(head, self.tension)
+        if slack is not None:
+            return f"implausible: {slack}"
         return "identified"
 
     @property

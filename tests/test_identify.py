@@ -256,3 +256,18 @@ def test_a_split_is_claimed_only_when_the_pair_beats(kettle):
     assert [(sp.m, sp.n) for sp in identify(kettle, fast, physics="ideal").splits] == [(2, 1)]
     with pytest.raises(InputError, match="splits"):
         identify(kettle, fast, physics="ideal", splits="some")
+
+
+def test_a_tension_too_low_to_hold_a_pitch_is_implausible(kettle):
+    # partials of the ideal head at 120 N/m: below the practical minimum that membrane.safety
+    # gives for the kettledrum's film (a strain of 2e-4, its own threshold), so the fit is
+    # flagged, not passed as an identification
+    from membrane.safety import practical_minimum
+
+    low = 120.0
+    assert low < practical_minimum(kettle.head)  # the premise
+    modes = [(1, 1), (2, 1), (0, 1), (3, 1), (4, 1), (1, 2), (0, 2)]
+    result = identify(kettle.with_tension(400.0), ideal_partials(kettle, low, modes),
+                      physics="ideal")
+    assert result.tension == pytest.approx(low, rel=1e-6)
+    assert result.verdict.startswith("implausible") and "practical minimum" in result.verdict

@@ -10,7 +10,7 @@ import typer
 
 from ..errors import InputError, RecordingError
 from ..notation import mode_label
-from .options import Force
+from .options import Force, FormatOpt
 from .common import Format, Physics, emit, fail, num, signed, t60, write_atomic
 
 COLUMNS = [
@@ -67,7 +67,7 @@ def listen(
         help="Also draw the spectrum with the partials and matched modes marked (PNG).",
         metavar="FILE.png")] = None,
     force: Force = False,
-    format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
+    format: FormatOpt = Format.table,
 ) -> None:
     """Find the partials of a tap recording: frequency, level and decay time (T60).
 

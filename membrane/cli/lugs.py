@@ -10,7 +10,7 @@ from typing import Annotated, List, Optional
 import typer
 
 from ..notation import mode_label
-from .options import Force
+from .options import Force, FormatOpt
 from .common import DrumFile, Format, Physics, drum_from, emit, fail, num, signed, with_drum_flags, write_atomic
 
 SPLIT_COLUMNS = [
@@ -79,7 +79,7 @@ def lugs(
     plot: Annotated[Optional[Path], typer.Option(
         help="Draw the rim from above: each lug's deviation and turn, the (1,1) pair's nodal lines (PNG, SVG, PDF).")] = None,
     force: Force = False,
-    format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
+    format: FormatOpt = Format.table,
 ) -> None:
     """Uneven lugs: which partials split, by how much and which way, and which lugs to turn.
 

@@ -6,7 +6,8 @@ from typing import Annotated, List, Optional
 
 import typer
 
-from ..notation import PHYSICS_HELP, mode_list
+from ..notation import mode_list
+from .options import FormatOpt, MMax, NMax, PhysicsOpt
 from .common import (HEAD_HELP, REFERENCE_HELP, DrumFile, Format, LossChoice, LossesOpt, Physics,
                      decay_words, drum_from, emit, fail, num, parse_mode, parse_reference, signed, t60,
                      with_drum_flags)
@@ -28,18 +29,16 @@ COLUMNS = [
 def modes(
     drum_file: DrumFile = None,
     drum_flags: dict = None,
-    physics: Annotated[Physics, typer.Option(
-        help=PHYSICS_HELP)
-    ] = Physics.full,
+    physics: PhysicsOpt = Physics.full,
     losses: LossesOpt = LossChoice.all,
-    m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters (0-50).")] = 6,
-    n_max: Annotated[int, typer.Option(help="Highest number of nodal circles, counting the rim (1-50).")] = 3,
+    m_max: MMax = 6,
+    n_max: NMax = 3,
     reference: Annotated[Optional[str], typer.Option(help=REFERENCE_HELP, show_default=False)] = None,
     head: Annotated[Optional[str], typer.Option(help=HEAD_HELP, show_default=False)] = None,
     fit: Annotated[Optional[List[str]], typer.Option(
         help="Mode to include in the harmonic-series fit, M,N; repeat, at least 3 modes. "
              "Default (1,1)...(5,1) as far as solved.")] = None,
-    format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
+    format: FormatOpt = Format.table,
 ) -> None:
     """Solve a drum's modes: frequencies, decay, ratios, harmonic fit and nearest notes."""
     from ..solver import solve

@@ -1,5 +1,7 @@
 """Options several commands share, spelled and parsed in one place.
 
+* ``--physics``, ``--m-max``, ``--n-max``, ``--format``: :data:`PhysicsOpt`, :data:`MMax`,
+  :data:`NMax`, :data:`FormatOpt`.
 * ``--force``: the one overwrite flag (no ``--no-force``), :data:`Force`.
 * ``--target``: a pitch for a mode, ``[HEAD:]M,N=PITCH`` or a bare ``PITCH`` with ``--mode M,N``
   (:func:`parse_targets`), used by ``tune`` on one head and on two, and by ``listen``.
@@ -11,9 +13,14 @@ from typing import Annotated
 
 import typer
 
+from ..notation import PHYSICS_HELP
 from ..units import parse_pitch
-from .common import fail, parse_mode
+from .common import Format, Physics, fail, parse_mode
 
+PhysicsOpt = Annotated[Physics, typer.Option(help=PHYSICS_HELP)]
+MMax = Annotated[int, typer.Option(help="Highest number of nodal diameters solved (0-50).")]
+NMax = Annotated[int, typer.Option(help="Highest number of nodal circles solved, counting the rim (1-50).")]
+FormatOpt = Annotated[Format, typer.Option("--format", help="Output format.")]
 Force = Annotated[bool, typer.Option(
     "--force", help="Overwrite output files that exist already (a folder, device or link's target is "
     "never replaced).")]

@@ -12,8 +12,7 @@ from typing import Annotated, Optional
 
 import typer
 
-from ..notation import PHYSICS_HELP
-from .options import Force
+from .options import Force, MMax, NMax, PhysicsOpt
 from .common import (HEAD_HELP, REFERENCE_HELP, DrumFile, LossChoice, LossesOpt, Physics, check_target,
                      drum_from, fail, parse_mode, parse_reference, with_drum_flags, write_atomic)
 
@@ -22,10 +21,6 @@ PHYSICS = tuple(p.value for p in Physics)  # the models, in order of what they a
 ANIMATIONS = ("gif", "mp4")
 STILLS = ("png", "svg", "pdf")
 
-PhysicsOpt = Annotated[Physics, typer.Option(
-    help=PHYSICS_HELP)]
-MMax = Annotated[int, typer.Option(help="Highest number of nodal diameters solved (0-50).")]
-NMax = Annotated[int, typer.Option(help="Highest number of nodal circles solved, counting the rim (1-50).")]
 Reference = Annotated[Optional[str], typer.Option(help=REFERENCE_HELP, show_default=False)]
 Count = Annotated[int, typer.Option(min=1, max=48, help="Modes in the grid (lowest first).")]
 

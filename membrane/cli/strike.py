@@ -10,8 +10,8 @@ from typing import Annotated, List, Optional
 import typer
 
 from .. import presets, ranges
-from ..notation import PHYSICS_HELP, mode_label
-from .options import Force
+from ..notation import mode_label
+from .options import Force, FormatOpt, MMax, NMax, PhysicsOpt
 from ..units import to_si
 from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, check_float, check_target,
                      decay_words, drum_from, emit, fail, num, parse_mode, t60, with_drum_flags,
@@ -108,13 +108,11 @@ def strike(
         help="Draw each partial's level against the strike radius to this PNG file.")] = None,
     force: Force = False,
     drum_flags: dict = None,
-    physics: Annotated[Physics, typer.Option(
-        help=PHYSICS_HELP)
-    ] = Physics.full,
+    physics: PhysicsOpt = Physics.full,
     losses: LossesOpt = LossChoice.all,
-    m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters (0-50).")] = 6,
-    n_max: Annotated[int, typer.Option(help="Highest number of nodal circles, counting the rim (1-50).")] = 3,
-    format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
+    m_max: MMax = 6,
+    n_max: NMax = 3,
+    format: FormatOpt = Format.table,
 ) -> None:
     """Strike the head: each partial's level at a listener, strike-point advice, a WAV preview."""
     chosen, drum_file = _parse_best_for(best_for, drum_file, list(ctx.args))

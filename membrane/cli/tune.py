@@ -9,10 +9,10 @@ from typing import Annotated, List, Optional
 import typer
 
 from ..errors import InputError
-from ..notation import PHYSICS_HELP, mode_label
+from ..notation import mode_label
 from ..units import note_name, parse_pitch
 from .tune_heads import INTERVAL_HELP
-from .options import parse_targets
+from .options import FormatOpt, PhysicsOpt, parse_targets
 from .common import (DrumFile, Format, LossChoice, LossesOpt, Physics, check_float, decay_words, drum_from,
                      emit, fail, num, parse_mode, t60, with_drum_flags)
 
@@ -95,13 +95,11 @@ def tune(
              "with the other held still, as when a maker taps one head with the other muted).")
     ] = OtherHead.free,
     drum_flags: dict = None,
-    physics: Annotated[Physics, typer.Option(
-        help=PHYSICS_HELP)
-    ] = Physics.full,
+    physics: PhysicsOpt = Physics.full,
     losses: LossesOpt = LossChoice.all,
     m_max: Annotated[int, typer.Option(help="Highest number of nodal diameters in the new mode table (0-50).")] = 6,
     n_max: Annotated[int, typer.Option(help="Highest number of nodal circles in the new mode table (1-50).")] = 3,
-    format: Annotated[Format, typer.Option("--format", help="Output format.")] = Format.table,
+    format: FormatOpt = Format.table,
 ) -> None:
     """Find the head tension that puts chosen modes on target pitches, and each lug's change.
 
