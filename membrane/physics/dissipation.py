@@ -52,7 +52,7 @@ import numpy as np
 from scipy import special
 
 from ..drum import GAMMA_AIR, R_DRY_AIR
-from .vacuum import _ratio_i
+from .vacuum import ratio_i
 
 # Sutherland's law for air (White, Viscous Fluid Flow, 1991, Table 1-2).
 SUTHERLAND_MU0 = 1.716e-5  # Pa s at T0
@@ -125,7 +125,7 @@ def _basis_slope(basis, r):
             k2 = basis.k2[i]
             x = k2 * r
             ihat = special.ive(m, x) / special.ive(m, k2 * a) * np.exp(k2 * (r - a))
-            out[i] += basis.c[i] * k2 * ihat * _ratio_i(m, x)
+            out[i] += basis.c[i] * k2 * ihat * ratio_i(m, x)
     return out
 
 
@@ -137,7 +137,7 @@ def _rim_slope(space, r):
     if space.ks is not None:
         y = space.ks * x * a
         ihat = special.ive(m, y) / special.ive(m, space.ks * a) * np.exp(space.ks * a * (x - 1.0))
-        out = out - space.b1 * space.ks * ihat * _ratio_i(m, y)
+        out = out - space.b1 * space.ks * ihat * ratio_i(m, y)
     return out
 
 
@@ -175,7 +175,7 @@ def edge_force(space) -> np.ndarray:
     lap = np.zeros_like(k1)
     stiff = b.k2 is not None
     if stiff:
-        ri = _ratio_i(m, b.k2 * a)
+        ri = ratio_i(m, b.k2 * a)
         slope = slope + b.c * b.k2 * ri
         lap = -k1**3 * dj + b.c * b.k2**3 * ri
     out = tension * slope - (lap if stiff else 0.0)
@@ -183,7 +183,7 @@ def edge_force(space) -> np.ndarray:
         chi_slope = ((m + 2) - space.a1 * m) / a
         chi_lap = 4.0 * m * (m + 1) / a**3
         if space.ks is not None:
-            ri = _ratio_i(m, space.ks * a)
+            ri = ratio_i(m, space.ks * a)
             chi_slope -= space.b1 * space.ks * ri
             chi_lap -= space.b1 * space.ks**3 * ri
         out = np.append(out, tension * chi_slope - (chi_lap if space.ks is not None else 0.0))

@@ -167,7 +167,7 @@ def rim_tension(lug_values, *, angles=None, spread: str = "smooth", hoop_stiffne
     return RimTension(float(np.mean(t)), tuple(c), tuple(s))
 
 
-def _profiles(k: int, rho):
+def stress_profiles(k: int, rho):
     """Radial factors (f_rr, f_tt, f_rt) of harmonic k >= 1 (module docstring)."""
     rho = np.asarray(rho, dtype=float)
     if k == 1:
@@ -207,7 +207,7 @@ def membrane_forces(rim: RimTension, *, radius: float, r, theta, uneven_only: bo
         a_k, b_k = rim.cos_k[k - 1], rim.sin_k[k - 1]
         if a_k == 0 and b_k == 0:
             continue
-        f_rr, f_tt, f_rt = _profiles(k, rho)
+        f_rr, f_tt, f_rt = stress_profiles(k, rho)
         along = a_k * np.cos(k * theta) + b_k * np.sin(k * theta)
         across = a_k * np.sin(k * theta) - b_k * np.cos(k * theta)
         n_rr = n_rr + along * f_rr

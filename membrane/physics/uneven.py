@@ -51,8 +51,8 @@ from scipy import linalg, optimize, special
 
 from ..errors import InputError
 from ..notation import cents
-from ..physics.vacuum import RadialBasis, _i_hat, ideal_basis, stiff_basis
-from .prestress import RimTension, _profiles
+from ..physics.vacuum import RadialBasis, i_hat, ideal_basis, stiff_basis
+from .prestress import RimTension, stress_profiles
 
 RADIAL_NODES = 96  # Gauss-Legendre nodes in r: J_m(j_mn r / a) for m, n in the basis
 EXTRA_N = 4  # radial basis functions beyond n_max per order
@@ -142,7 +142,7 @@ def _slope(basis: RadialBasis, r: np.ndarray) -> np.ndarray:
             k2 = basis.k2[i]
             # I_m' = I_{m+1} + (m / x) I_m, both scaled by I_m(k2 a) as in _i_hat
             up = special.ive(m + 1, k2 * r) / special.ive(m, k2 * a) * np.exp(k2 * (r - a))
-            out[i] += basis.c[i] * k2 * (up + m / (k2 * r) * _i_hat(m, k2, r, a))
+            out[i] += basis.c[i] * k2 * (up + m / (k2 * r) * i_hat(m, k2, r, a))
     return out
 
 
@@ -212,7 +212,7 @@ def ritz_system(head, rim: RimTension, *, m_basis: int, n_basis: int, stiff: boo
     frt = np.zeros_like(frr)
     chat = np.zeros(2 * top + 1, dtype=complex)  # c_hat at h = -top..top
     for k in range(1, top + 1):
-        frr[k], ftt[k], frt[k] = _profiles(k, rho)
+        frr[k], ftt[k], frt[k] = stress_profiles(k, rho)
         ck = rim.harmonic(k)
         chat[top + k] = ck / 2
         chat[top - k] = np.conj(ck) / 2
@@ -351,7 +351,7 @@ def split_weight(head, *, m: int, n: int, k: int | None = None, stiff: bool = Fa
     r, wr = _nodes(radial_nodes, a)
     basis = _basis(head, m=m, count=n, tension=t0, stiff=stiff)
     dphi, phi = _slope(basis, r)[n - 1], basis.shape(r)[n - 1]
-    frr, ftt, frt = _profiles(k, r / a)
+    frr, ftt, frt = stress_profiles(k, r / a)
     g = np.sum(wr * (frr * dphi**2 - 2 * m * frt * dphi * phi / r - m * m * ftt * (phi / r) ** 2))
     k0 = 2 * head.areal_density * basis.omega[n - 1] ** 2 * basis.norm[n - 1]
     return float(t0 * g / k0)

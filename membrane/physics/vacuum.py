@@ -285,3 +285,4 @@ def stiff_basis(*, m: int, count: int, radius: float, tension: float, areal_dens
 
 
 ratio_i = _ratio_i  # the public name (ritz.py, dissipation.py)
+i_hat = _i_hat  # the public name (uneven.py)
