@@ -354,3 +354,14 @@ def test_the_readme_pictures_are_made_by_the_readme_commands():
         assert command in readme, command  # the README shows exactly this command
         assert f"(assets/{name})" in readme, name  # and the picture it makes
         assert not {"--reference", "--physics", "--compare"} & set(extra.split())  # only size options added
+
+
+def test_one_mode_drawn_from_its_own_orders_is_the_one_of_the_whole_table(tmp_path):
+    # render --mode solves only the mode's order and the reference's; the picture must be
+    # the one drawn from the full default table (orders are independent eigenproblems)
+    out = tmp_path / "cli.png"
+    assert run("render", "kettledrum", "--mode", "2,2", "--out", out).exit_code == 0
+    whole = solve(load_drum("kettledrum"), "full", m_max=6, n_max=3)
+    ref = tmp_path / "whole.png"
+    stills.save(stills.nodal_diagram(whole, whole.find(2, 2), reference=(1, 1)), ref)
+    assert out.read_bytes() == ref.read_bytes()
