@@ -125,3 +125,15 @@ def test_hybrid_head_rows_are_marked_in_the_table():
     for md in full_modes(drum, m_max=1, n_max=2, losses=drum.losses, air=True):
         assert md.hybrid == (0.2 <= md.head_fraction <= 0.8)
         assert ("hybrid" in md.label) == md.hybrid, md.label
+
+
+def test_a_contour_node_on_an_eigenvalue_asks_for_another_curve():
+    # exact: T(z) = z - lam is singular at z = lam; put lam on a node of the curve (the nodes
+    # sit half a step off the real axis, circle_points): the solve must ask for another curve
+    # (TooMany, which the scan and the refinement answer by splitting), not fail in the LU
+    from membrane.physics.contour import TooMany, circle_points, eigen_in_circle
+
+    z, _, _ = circle_points(10.0, 1.0, 16)
+    lam = z[0]
+    with pytest.raises(TooMany):
+        eigen_in_circle(lambda s: (s - lam)[:, None, None], 10.0, 1.0, points=16)

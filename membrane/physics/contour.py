@@ -125,7 +125,17 @@ def eigen_in_circle(evaluate, centre: complex, radius: float, *, points: int = 3
     """
     z, s, w = circle_points(centre, radius, points, aspect)
     T = evaluate(z)
-    inv = np.linalg.inv(T)
+    # a node on (or within round-off of) an eigenvalue, or an operator that overflows there
+    # (a very long air column), leaves T^-1 unusable: the caller's remedy is the same as
+    # for a crowded curve, another curve
+    if not np.all(np.isfinite(T)):
+        raise TooMany("contour solve: the operator is not finite on the curve")
+    try:
+        inv = np.linalg.inv(T)
+    except np.linalg.LinAlgError:
+        raise TooMany("contour solve: the operator is singular at a node of the curve") from None
+    if not np.all(np.isfinite(inv)):
+        raise TooMany("contour solve: the operator is singular at a node of the curve")
     lam, vecs = moments_eigen(inv, s, weights=w, blocks=blocks, rank_tol=rank_tol)
     keep = np.isfinite(lam) & (np.abs(lam.real + 1j * lam.imag / aspect) < margin)
     return centre + radius * lam[keep], vecs[keep]
