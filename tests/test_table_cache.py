@@ -169,3 +169,15 @@ def test_unexpected_members_are_refused_before_loading_and_rewritten(cache, monk
     assert table_cache.load(path.stem, shapes) is not None  # rewritten as a plain table
     with zipfile.ZipFile(path) as archive:
         assert sorted(m.filename for m in archive.infolist()) == ["k_max.npy", "key.npy", "x.npy", "y.npy"]
+
+
+def test_the_fingerprint_covers_every_module_that_computes_a_table():
+    # the modules defining what unit_table runs (found from the objects, so a move of the
+    # code to another module fails here instead of serving stale tables)
+    from membrane import bessel
+    from membrane.physics import operator, radiation, ritz, table_cache, vacuum
+
+    used = {operator.unit_table.__module__, operator.unit_space.__module__,
+            radiation.RadiationTable.__module__, radiation.radiation_integral.__module__,
+            ritz.RitzSpace.__module__, vacuum.stiff_basis.__module__, bessel.jn_zeros.__module__}
+    assert used <= set(table_cache.SOURCES), used - set(table_cache.SOURCES)

@@ -49,7 +49,7 @@ def cache_dir() -> Path | None:
 # The modules whose code computes the tables, fingerprinted by their source files. They are
 # found, not imported: coupled.py uses this module, so importing it here would be a loop.
 SOURCES = ("membrane.bessel", "membrane.physics.vacuum", "membrane.physics.radiation",
-           "membrane.physics.coupled")
+           "membrane.physics.ritz", "membrane.physics.operator", "membrane.physics.coupled")
 
 
 def _source_fingerprint() -> str:
