@@ -167,22 +167,12 @@ def follow_root(drum_at, *, m: int, n_max: int, x0: float, omega0: complex, vect
     of the operator) instead of the whole window, so following a root costs far less than
     re-solving the drum at every value.
     """
-    from .physics import spectrum, tracking
-    from .physics.operator import DEFAULT
+    from .physics import tracking
 
-    sets = {} if sets is None else sets
+    roots_near, mass = _local_search(drum_at, m=m, n_max=n_max, losses=losses,
+                                     cross_sign=cross_sign, sets=sets)
 
-    def root_set(x):
-        if x not in sets:
-            sets[x] = order_root_set(drum_at(x), m=m, n_max=n_max, losses=losses,
-                                     cross_sign=cross_sign)
-        return sets[x]
-
-    def roots_near(x, centre, radius):
-        z, v, f = spectrum.local_roots(root_set(x), 0, centre, radius, tol=DEFAULT.tol)
-        return z, v, list(f)
-
-    return tracking.follow_one(roots_near, lambda x: root_set(x).data[0]["M"], x0=x0,
+    return tracking.follow_one(roots_near, mass, x0=x0,
                                omega0=omega0, vector0=vector0, x1=x1, step=step,
                                extra0=extra0, stop=stop, max_solves=max_solves)
 
@@ -194,24 +184,14 @@ def follow_roots(drum_at, *, m: int, n_max: int, x0: float, omega0, vectors0, x1
 
     As :func:`follow_root`, with ``omega0`` (R,) and ``vectors0`` (R, size).
     """
-    from .physics import spectrum, tracking
-    from .physics.operator import DEFAULT
+    from .physics import tracking
 
-    sets = {} if sets is None else sets
-
-    def root_set(x):
-        if x not in sets:
-            sets[x] = order_root_set(drum_at(x), m=m, n_max=n_max, losses=losses,
-                                     cross_sign=cross_sign)
-        return sets[x]
-
-    def roots_near(x, centre, radius):
-        z, v, f = spectrum.local_roots(root_set(x), 0, centre, radius, tol=DEFAULT.tol)
-        return z, v, list(f)
+    roots_near, mass = _local_search(drum_at, m=m, n_max=n_max, losses=losses,
+                                     cross_sign=cross_sign, sets=sets)
 
     if not len(omega0):
         return []
-    return tracking.follow_many(roots_near, lambda x: root_set(x).data[0]["M"], x0=x0,
+    return tracking.follow_many(roots_near, mass, x0=x0,
                                 omega0=omega0, vectors0=vectors0, x1=x1, step=step,
                                 extra0=extra0, stop=stop, max_solves=max_solves)
 
@@ -332,3 +312,27 @@ def branch_tension(drum, *, m: int, n_max: int, start_tension: float, start_omeg
             a, ga, b, gb, side = b, gb, s, gs, -1
     x, w, frac = b[0], b[1], b[3]
     return math.exp(x), float(frac), complex(w)
+
+
+def _local_search(drum_at, *, m, n_max, losses, cross_sign, sets):
+    """The two callbacks a tracker needs: the roots near a point at x, and the mass matrix.
+
+    Root sets are kept in ``sets`` by parameter value, so a later call at the same value
+    (another root followed over the same steps) solves nothing again.
+    """
+    from .physics import spectrum
+    from .physics.operator import DEFAULT
+
+    sets = {} if sets is None else sets
+
+    def root_set(x):
+        if x not in sets:
+            sets[x] = order_root_set(drum_at(x), m=m, n_max=n_max, losses=losses,
+                                     cross_sign=cross_sign)
+        return sets[x]
+
+    def roots_near(x, centre, radius):
+        z, v, f = spectrum.local_roots(root_set(x), 0, centre, radius, tol=DEFAULT.tol)
+        return z, v, list(f)
+
+    return roots_near, lambda x: root_set(x).data[0]["M"]

@@ -167,28 +167,38 @@ volume = "0.22 m^3"
 """
 
 
-def test_a_timpano_with_a_plausible_drum_file_labels_and_tension(analysed, tmp_path):
-    from membrane.drum import load_drum
+def assert_labels_and_tension(drum, path, partials):
+    """(1,1) and (2,1) on the reference's principal and fifth, the tension within 10 %.
+
+    The reference is a long-window spectrum of the recording (reference_peaks); the tension
+    is checked against the one at which the same model puts (1,1) on the measured principal
+    (the tuning routine, a separate path through the model). Returns the identification.
+    """
     from membrane.identify import identify
     from membrane.tuning import tension_for
+
+    ref = timpani_partials(reference_peaks(path))
+    result = identify(drum, partials, physics="full")
+    assert result.verdict == "identified" and len(result.matches) >= 3, result.verdict
+    labels = {}
+    for mt in result.matches:
+        labels.setdefault((mt.m, mt.n), []).append(mt.partial.settled)
+    # within 1.5 Hz: a split pair's two halves straddle the long-window peak
+    for mn, f in zip([(1, 1), (2, 1)], ref[:2]):
+        assert min(abs(g - f) for g in labels[mn]) < 1.5, (mn, f, labels.get(mn))
+    target = tension_for(drum, targets=[((1, 1), ref[0])], physics="full").tension
+    assert result.tension == pytest.approx(target, rel=0.10)
+    return result
+
+
+def test_a_timpano_with_a_plausible_drum_file_labels_and_tension(analysed, tmp_path):
+    from membrane.drum import load_drum
 
     path = tmp_path / "kettle29.toml"
     path.write_text(KETTLE_29)
     drum = load_drum(str(path))
-    ref = timpani_partials(reference_peaks(DATA / "timpani_high_1.flac"))
-    result = identify(drum, analysed["timpani_high_1.flac"].partials, physics="full")
-    assert result.verdict == "identified" and len(result.matches) >= 3
-    labels = {}
-    for mt in result.matches:
-        labels.setdefault((mt.m, mt.n), []).append(mt.partial.settled)
-    # the reference's principal and fifth carry the (1,1) and (2,1) labels (within 1.5 Hz:
-    # a split pair's two halves straddle the long-window peak)
-    for mn, f in zip([(1, 1), (2, 1)], ref[:2]):
-        assert min(abs(g - f) for g in labels[mn]) < 1.5, (mn, f, labels.get(mn))
-    # the fitted tension against the tension at which the same model puts (1,1) on the
-    # measured principal (the tuning routine, a separate path through the model)
-    target = tension_for(drum, targets=[((1, 1), ref[0])], physics="full").tension
-    assert result.tension == pytest.approx(target, rel=0.10)
+    result = assert_labels_and_tension(drum, DATA / "timpani_high_1.flac",
+                                       analysed["timpani_high_1.flac"].partials)
     assert 0 < result.uncertainty < 0.1 * result.tension
 
 
@@ -268,8 +278,6 @@ SOUNDFONT = Path(os.environ.get("MEMBRANE_TEST_SOUNDFONT", "/usr/share/sounds/sf
 def test_the_whole_high_timpano_sample_with_a_plausible_drum_file(tmp_path):
     # 3.5 s instead of the 2 s excerpt: the same drum, so the same labels and tension
     from membrane.drum import load_drum
-    from membrane.identify import identify
-    from membrane.tuning import tension_for
     from soundfont import sample
 
     x, rate = sample(SOUNDFONT, "Timpani 3(L)")
@@ -277,13 +285,4 @@ def test_the_whole_high_timpano_sample_with_a_plausible_drum_file(tmp_path):
     soundfile.write(path, x, rate, subtype="PCM_16")
     (tmp_path / "kettle29.toml").write_text(KETTLE_29)
     drum = load_drum(str(tmp_path / "kettle29.toml"))
-    ref = timpani_partials(reference_peaks(path))
-    result = identify(drum, analyse(read_recording(path)).partials, physics="full")
-    assert result.verdict == "identified" and len(result.matches) >= 3, result.verdict
-    labels = {}
-    for mt in result.matches:
-        labels.setdefault((mt.m, mt.n), []).append(mt.partial.settled)
-    for mn, f in zip([(1, 1), (2, 1)], ref[:2]):
-        assert min(abs(g - f) for g in labels[mn]) < 1.5, (mn, f, labels.get(mn))
-    target = tension_for(drum, targets=[((1, 1), ref[0])], physics="full").tension
-    assert result.tension == pytest.approx(target, rel=0.10)
+    assert_labels_and_tension(drum, path, analyse(read_recording(path)).partials)
