@@ -74,19 +74,21 @@ def mechanism_rates(drum, *, m_max: int, n_max: int, names=FITTABLE) -> dict:
     zero = replace(base, tension_loss_factor=0.0, edge_mobility=0.0, film_loss_factor=0.0,
                    boundary_layers=False)
     kw = dict(m_max=m_max, n_max=n_max)
-    rad = _rates(drum, base, physics_losses="radiation", **kw)
-    out = {"radiation": rad}
-    layers = _rates(drum, replace(zero, boundary_layers=base.boundary_layers), **kw)
-    out["air boundary layers"] = {k: layers[k] - rad[k] for k in rad}
-    bend = _rates(drum, replace(zero, film_loss_factor=base.film_loss_factor), **kw)
-    out["film bending"] = {k: bend[k] - rad[k] for k in rad}
+    solves = {"radiation": _rates(drum, base, physics_losses="radiation", **kw),
+              "air boundary layers": _rates(drum, replace(zero, boundary_layers=base.boundary_layers), **kw),
+              "film bending": _rates(drum, replace(zero, film_loss_factor=base.film_loss_factor), **kw)}
     for name, label in zip(FITTABLE, ("tension loss", "rim")):
         value = UNIT[name] if name in names else getattr(base, name)
-        if value == 0:
-            out[label] = {k: 0.0 for k in rad}
-            continue
-        r = _rates(drum, replace(zero, **{name: value}), **kw)
-        out[label] = {k: r[k] - rad[k] for k in rad}
+        solves[label] = None if value == 0 else _rates(drum, replace(zero, **{name: value}), **kw)
+    # A root near the edge of a solve's window (an air mode of the body, most often) can be
+    # found with one set of losses and not another: only modes every solve holds are split
+    # by mechanism; a partial matched to another mode gets no loss numbers.
+    keys = set(solves["radiation"]).intersection(*(set(v) for v in solves.values() if v is not None))
+    rad = {k: v for k, v in solves["radiation"].items() if k in keys}
+    out = {"radiation": rad}
+    for label, r in solves.items():
+        if label != "radiation":
+            out[label] = {k: 0.0 for k in rad} if r is None else {k: r[k] - rad[k] for k in rad}
     return out
 
 

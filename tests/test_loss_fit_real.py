@@ -210,3 +210,24 @@ def test_default_losses_within_a_factor_3_of_the_measured_decay(name):
     r = recording(name)
     for m, t60 in r["measured"].items():
         assert 1 / 3 < r["modes"][m].decay / t60 < 3, (name, m, r["modes"][m].decay, t60)
+
+
+
+def test_a_mode_missing_from_one_lossy_solve_is_left_out_not_a_key_error(monkeypatch):
+    # an air mode near a solve's window edge can be found with one set of losses and not with
+    # another (seen on timpani_high_1.flac under the built-in kettle: KeyError (5, -2, None, None))
+    import membrane.loss_fit as lf
+
+    calls = []
+
+    def fake_rates(drum, losses, **kw):
+        calls.append(losses)
+        rates = {(1, 1, None, None): 1.0 + len(calls), (2, 1, None, None): 2.0 + len(calls)}
+        if len(calls) == 1:  # the radiation-only solve holds one more root
+            rates[(5, -2, None, None)] = 0.5
+        return rates
+
+    monkeypatch.setattr(lf, "_rates", fake_rates)
+    drum = _drum("29 in", "0.22 m^3")
+    rates = lf.mechanism_rates(drum, m_max=2, n_max=1)
+    assert all(set(r) == {(1, 1, None, None), (2, 1, None, None)} for r in rates.values())

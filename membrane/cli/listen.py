@@ -178,14 +178,7 @@ def listen(
         payload.update(_identification_payload(ident, physics.value))
         notes += _identification_notes(ident, physics.value)
         if physics is Physics.full and ident.matches:
-            try:
-                _fit_losses(ident, rows, payload, notes)
-            except KeyError as exc:
-                # a matched mode the loss fit's tables do not hold (an air mode of the body):
-                # the measurement and the tension stand; say why there are no loss numbers
-                notes.append(f"no loss fit: the loss tables lack the matched mode {exc}")
-                print(f"warning: no loss fit: the loss tables lack the matched mode {exc}",
-                      file=sys.stderr)
+            _fit_losses(ident, rows, payload, notes)
     tuning_result = None
     if targets:
         tuning_result = _tune(ident.drum, targets, physics.value)
