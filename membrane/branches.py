@@ -125,13 +125,6 @@ def follow(make_drum, values, *, m: int, n_max: int, cross_sign=None, roots=None
     return track
 
 
-def order_root_set(drum, *, m: int, n_max: int, losses=None, cross_sign=None):
-    """The operators of order m alone (coupled.order_root_set), for local solves."""
-    from .physics.assembly import order_root_set
-
-    return order_root_set(drum, m=m, n_max=n_max, losses=losses, cross_sign=cross_sign)
-
-
 def follow_root(drum_at, *, m: int, n_max: int, x0: float, omega0: complex, vector0, x1: float,
                 step: float = 0.01, losses=None, cross_sign=None, stop=None,
                 max_solves: int = 60, extra0=None, sets: dict | None = None):
@@ -321,6 +314,7 @@ def _local_search(drum_at, *, m, n_max, losses, cross_sign, sets):
     (another root followed over the same steps) solves nothing again.
     """
     from .physics import spectrum
+    from .physics.assembly import order_root_set
     from .physics.operator import DEFAULT
 
     sets = {} if sets is None else sets
