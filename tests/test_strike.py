@@ -70,7 +70,7 @@ def test_strike_on_the_nodal_circle_of_0_2_leaves_it_silent(ideal):
     lev = levels(strike_partials(ideal, strike=Strike(at=j0[0] / j0[1])))
     assert lev[(0, 2)] < -120
     assert lev[(0, 1)] > -20 and lev[(0, 3)] > -40
-    # SOURCES.md: (0,2) nodal circle at r/a = 0.4357 (4 digits: about 70 dB down, not silent)
+    # A&S Table 9.5: (0,2) nodal circle at r/a = j01/j02 = 0.4357 (4 digits: about 70 dB down, not silent)
     lev = levels(strike_partials(ideal, strike=Strike(at=0.4357)))
     assert lev[(0, 2)] < -60 and lev[(0, 1)] > -20
 
