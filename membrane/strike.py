@@ -70,6 +70,7 @@ from .callable_module import make_callable
 from .errors import InputError
 from .modes import Mode, ModeSet
 
+from .physics.cavity import plane_wave_stiffness
 from .notation import LN1000, mode_list  # noqa: E402  (60 dB of decay: rate * t = 3 ln 10)
 
 # Presets (strike point, mallets, listener) are rules of thumb kept in presets.py.
@@ -239,17 +240,12 @@ def _volume_displacement(coef, basis) -> complex:
 def body_stiffness(mode: Mode, drum, omega: complex) -> tuple[complex, complex]:
     r"""The body's uniform-pressure term :math:`c^T S c` and its omega-derivative.
 
-    docs/physics.md "The body", the duct's plane-wave (q = 0) term, as a generalised stiffness. For a
-    duct of length L, the struck head's volume displacement :math:`W_1 = \int w\, dA =
-    2\pi \sum_n c_n \Phi_n(0)` and, for a shell, the resonant head's :math:`W_2` (both
-    outward), the plane-wave pressure on the heads gives
-
-    .. math:: S = \frac{\rho c\,\omega}{\pi a^2}
-              \left[\cot x\,(W_1^2 + W_2^2) + 2 \csc x\, W_1 W_2\right], \quad x = \omega L / c,
-
-    with L = V / (pi a^2) and :math:`W_2 = 0` for a kettle (at low frequency
-    :math:`\rho c^2 W_1^2 / V`, the lumped bowl). Zero for m >= 1 (no plane wave) and a
-    head without a body. The duct's higher terms are mass-like and left inside A.
+    The duct's plane-wave (q = 0) term (docs/physics.md "The body") as a generalised stiffness,
+    from :func:`membrane.physics.cavity.plane_wave_stiffness` with the struck head's volume
+    displacement :math:`W_1 = \int w\, dA = 2\pi \sum_n c_n \Phi_n(0)` and, for a shell, the
+    resonant head's :math:`W_2` (both outward); the duct's length is ``drum.air_depth``
+    (V / (pi a^2) for a kettle). Zero for m >= 1 (no plane wave) and a head without a body.
+    The duct's higher terms are mass-like and left inside A.
 
     Returns
     -------
@@ -259,22 +255,14 @@ def body_stiffness(mode: Mode, drum, omega: complex) -> tuple[complex, complex]:
     body = drum.body
     if mode.m != 0 or body.kind not in ("kettle", "shell"):
         return 0j, 0j
-    a, rho, c = mode.basis.radius, drum.air.density, drum.air.sound_speed
-    w1 = _volume_displacement(mode.coefficients, mode.basis)
-    w2 = 0j
-    length = drum.air_depth  # the shell's depth, or V / (pi a^2) for a kettle
+    displacements = [_volume_displacement(mode.coefficients, mode.basis)]
     if body.kind == "shell":
         if mode.resonant_coefficients is None:  # an uncoupled head: no plane wave through it
             return 0j, 0j
-        w2 = _volume_displacement(mode.resonant_coefficients, mode.resonant_basis)
-    x = omega * length / c
-    scale = rho * c / (np.pi * a * a)
-    cot, csc = np.cos(x) / np.sin(x), 1 / np.sin(x)
-    self_, cross = w1 * w1 + w2 * w2, 2 * w1 * w2
-    s_value = scale * omega * (cot * self_ + csc * cross)
-    # d/dw [w cot x] = cot x - x csc^2 x;  d/dw [w csc x] = csc x - x csc x cot x
-    ds = scale * ((cot - x * csc * csc) * self_ + (csc - x * csc * cot) * cross)
-    return s_value, ds
+        displacements.append(_volume_displacement(mode.resonant_coefficients, mode.resonant_basis))
+    return plane_wave_stiffness(omega, volume_displacements=displacements, radius=mode.basis.radius,
+                                depth=drum.air_depth, density=drum.air.density,
+                                sound_speed=drum.air.sound_speed)
 
 
 def effective_mass(mode: Mode, drum=None, physics: str = "full") -> complex:

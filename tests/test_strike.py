@@ -70,7 +70,7 @@ def test_strike_on_the_nodal_circle_of_0_2_leaves_it_silent(ideal):
     lev = levels(strike_partials(ideal, strike=Strike(at=j0[0] / j0[1])))
     assert lev[(0, 2)] < -120
     assert lev[(0, 1)] > -20 and lev[(0, 3)] > -40
-    # SOURCES.md: (0,2) nodal circle at r/a = 0.4357 (4 digits: about 70 dB down, not silent)
+    # A&S Table 9.5: (0,2) nodal circle at r/a = j01/j02 = 0.4357 (4 digits: about 70 dB down, not silent)
     lev = levels(strike_partials(ideal, strike=Strike(at=0.4357)))
     assert lev[(0, 2)] < -60 and lev[(0, 1)] > -20
 
@@ -154,6 +154,58 @@ def test_effective_mass_with_a_kettle_is_the_residue_of_the_dynamic_stiffness():
     residue = -(z(root + h) - z(root - h)) / (2 * h) / (2 * root)
     assert effective_mass(mode, KETTLE, "full") == pytest.approx(residue, rel=1e-6)
     assert effective_mass(mode, KETTLE, "stiff") == pytest.approx(stiff_k / root ** 2, rel=1e-12)
+
+
+def test_plane_wave_body_stiffness_is_the_closed_tube_air_spring():
+    """The one formula strike and the solver share (physics.cavity.plane_wave_stiffness) against
+    the plane-wave closed tube of Kinsler et al., Fundamentals of Acoustics, 4th ed., ch. 10: a
+    piston of area S = pi a^2 over a tube of length L sees the input impedance -i rho c S cot kL
+    (time e^{i w t}), a stiffness rho c S w cot kL per unit displacement, and, at the far end, the
+    transfer term -i rho c S csc kL; at long wavelength the cavity's stiffness rho c^2 S^2 / V
+    (the Helmholtz resonator's spring, same chapter). Written out here again from the book."""
+    from membrane.physics.cavity import plane_wave_stiffness
+    from membrane.strike import body_stiffness
+    from membrane.modes import Mode
+    from membrane.physics.vacuum import ideal_basis
+
+    air = KETTLE.air
+    rho, c = air.density, air.sound_speed
+    a, depth = 0.33, 0.5
+    area = np.pi * a * a
+    air_terms = dict(radius=a, depth=depth, density=rho, sound_speed=c)
+    for w in (2 * np.pi * 90.0, 2 * np.pi * 260.0 + 4.0j, 2 * np.pi * 510.0 - 0.5j):
+        kl = w * depth / c
+        s, _ = plane_wave_stiffness(w, volume_displacements=[area], **air_terms)
+        assert s == pytest.approx(rho * c * area * w * np.cos(kl) / np.sin(kl), rel=1e-12)
+        # a shell: the pistons 1 and 2 (outward) feel each other through csc kL
+        w1, w2 = 0.3 * area, -0.7 * area
+        s2, _ = plane_wave_stiffness(w, volume_displacements=[w1, w2], **air_terms)
+        expected = rho * c * w / area * ((w1 ** 2 + w2 ** 2) * np.cos(kl) / np.sin(kl) + 2 * w1 * w2 / np.sin(kl))
+        assert s2 == pytest.approx(expected, rel=1e-12)
+        # the omega-derivative (central differences; S is analytic in omega)
+        h = 1e-5 * abs(w)
+        for disp in ([area], [w1, w2]):
+            slope = plane_wave_stiffness(w, volume_displacements=disp, **air_terms)[1]
+            fd = (plane_wave_stiffness(w + h, volume_displacements=disp, **air_terms)[0]
+                  - plane_wave_stiffness(w - h, volume_displacements=disp, **air_terms)[0]) / (2 * h)
+            assert slope == pytest.approx(fd, rel=1e-7)
+    # long wavelength, kL = 1e-4: the lumped spring rho c^2 S^2 / V, to (kL)^2 / 3
+    w = 1e-4 * c / depth
+    s, _ = plane_wave_stiffness(w, volume_displacements=[area], **air_terms)
+    assert s == pytest.approx(rho * c ** 2 * area ** 2 / (area * depth), rel=1e-8)
+    # strike's body term is the same formula with the mode's W by quadrature and L = V / (pi a^2)
+    head, vol = KETTLE.head, KETTLE.body.volume
+    basis = ideal_basis(m=0, count=1, radius=head.radius, tension=head.tension,
+                        areal_density=head.areal_density)
+    big_w = 2 * np.pi * scipy.integrate.quad(lambda r: scipy.special.j0(basis.k1[0] * r) * r, 0,
+                                             head.radius, epsabs=0, epsrel=1e-13)[0]
+    mode = Mode(m=0, n=1, frequency=100.0, decay=None, multiplicity=1, omega=2 * np.pi * 100.0,
+                coefficients=np.array([1.0]), basis=basis)
+    w = 2 * np.pi * 100.0 + 1.0j
+    kl = w * vol / (np.pi * head.radius ** 2) / c
+    s, _ = body_stiffness(mode, KETTLE, w)
+    assert s == pytest.approx(rho * c * w * np.cos(kl) / np.sin(kl) * big_w ** 2 / (np.pi * head.radius ** 2),
+                              rel=1e-10)
 
 
 # ----------------------------------------------------------------------------- with what
