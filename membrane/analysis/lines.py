@@ -201,8 +201,9 @@ def line_partial(comps: list[esprit.Component], *, shift: float, duration: float
         return Partial(frequency=initial, amplitude=amplitude, decay_rate=rate,
                        glide_cents=float(glide), settled_frequency=settled,
                        flags=("glide",) + tuple(flags))
+    members = tuple(line_partial([c], shift=shift, duration=duration) for c in comps)
     return Partial(frequency=mean_frequency(comps, 0.0, duration), amplitude=amplitude,
-                   decay_rate=rate, flags=tuple(flags))
+                   decay_rate=rate, flags=tuple(flags), members=members)
 
 
 def _ring(r: float, duration: float) -> float:

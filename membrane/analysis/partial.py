@@ -30,6 +30,11 @@ class Partial:
     flags : tuple of str
         ``"glide"``, ``"fast"`` (decays faster than the analysis resolves well: level and
         T60 uncertain), ``"steady"`` (does not decay: hum, not a drum partial).
+    members : tuple of Partial
+        For a line the fit found as several close components that beat fewer than once
+        while they ring (:mod:`.lines`): those components, each with its own frequency,
+        level and decay; empty otherwise. The line itself is what is heard and shown; lug
+        work on a clean recording may read its members as the halves of a split mode.
     """
 
     frequency: float
@@ -39,6 +44,7 @@ class Partial:
     glide_cents: float = 0.0
     settled_frequency: float | None = None
     flags: tuple[str, ...] = ()
+    members: tuple["Partial", ...] = ()
 
     @property
     def t60(self) -> float | None:

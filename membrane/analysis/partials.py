@@ -285,7 +285,9 @@ def find_partials(decay: np.ndarray, *, rate: float, floor_db: float = DEFAULT_F
     for p in parts:
         level = 20 * math.log10(p.amplitude / top)
         if level >= floor_db:
-            kept.append(Partial(**{**p.__dict__, "level_db": level}))
+            members = tuple(Partial(**{**m.__dict__, "level_db": 20 * math.log10(m.amplitude / top)})
+                            for m in p.members)
+            kept.append(Partial(**{**p.__dict__, "level_db": level, "members": members}))
     if max_partials is not None:
         kept = sorted(kept, key=lambda p: -p.amplitude)[:max_partials]
     return tuple(sorted(kept, key=lambda p: p.frequency))
