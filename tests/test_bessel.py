@@ -7,7 +7,7 @@ from scipy import integrate, special
 
 from membrane.bessel import jn_zeros, jnp_zeros, lommel
 
-# j_{m,n} to 11 significant digits, COMPUTED (SOURCES.md). Abramowitz & Stegun, Handbook of
+# j_{m,n} to 11 significant digits, COMPUTED (mpmath.besseljzero). Abramowitz & Stegun, Handbook of
 # Mathematical Functions (1964), Table 9.5, prints these zeros to 5 decimals, 10 for m = 0 (READ:
 # its list of tables, p. 356, "5D (10D for n = 0)"). The printed page was not at hand, so the
 # "printed digits" below are these values correctly rounded to A&S's decimals (A&S states its

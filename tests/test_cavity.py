@@ -14,7 +14,7 @@ GAMMA_P0 = 1.4 * 101325.0  # adiabatic bulk modulus of air, gamma P0 (Pa)
 
 
 def test_duct_wavenumbers_and_norms():
-    # zeros of J_m' (A&S Table 9.5 via SOURCES.md), plus the uniform mode for m = 0
+    # zeros of J_m' (A&S Table 9.5; DLMF 10.21, computed with mpmath), plus the uniform mode for m = 0
     assert np.allclose(duct_wavenumbers(m=1, count=3, radius=1.0), [1.8411837813, 5.3314427735,
                                                                      8.5363163663])
     g0 = duct_wavenumbers(m=0, count=3, radius=2.0)
@@ -68,7 +68,7 @@ def test_shell_blocks_symmetric_and_cross_term_vanishes_when_deep():
 
 
 # Roots of D. R. Raichel, The Science and Applications of Acoustics, 2nd ed., 2006, Eq. 6.28,
-# J0(ka) = -B J2(ka)/(ka)^2, COMPUTED (SOURCES.md) from the equation as corrected there
+# J0(ka) = -B J2(ka)/(ka)^2, COMPUTED (mpmath) from the equation as corrected here
 # (B = gamma P0 pi a^4 / (T V): the scan prints pi a^2, which leaves B with units), not read off
 # Table 6.2. The table agrees with them to its printed digits except at B = 10, where it prints
 # 5.87 against the 5.6753 computed here (taken as a misprint).

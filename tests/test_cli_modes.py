@@ -31,7 +31,7 @@ def test_json_has_the_contract_keys():
     for row in data["modes"]:
         assert isinstance(row["m"], int) and isinstance(row["n"], int)
         assert row["decay_s"] is None and "ratio" in row
-    # SOURCES.md ideal ratio (1,1)/(0,1) = 1.5933
+    # ideal ratio (1,1)/(0,1) = j11/j01 = 1.5933 (A&S Table 9.5)
     r11 = next(r["ratio"] for r in data["modes"] if (r["m"], r["n"]) == (1, 1))
     assert r11 == pytest.approx(1.5933, abs=6e-5)
 
@@ -76,7 +76,7 @@ def test_other_formats(fmt, digits):
         f, ratio = rows[(r["m"], r["n"])]
         assert f == pytest.approx(r["frequency_hz"], abs=0.51 * 10 ** -digits)
         assert ratio == pytest.approx(r["ratio"], abs=0.51 * 10 ** -min(digits, 4))
-    # and the (1,1) ratio is the ideal head's j11/j01 = 1.5933 (SOURCES.md, A&S Table 9.5) plus a
+    # and the (1,1) ratio is the ideal head's j11/j01 = 1.5933 (A&S Table 9.5) plus a
     # little bending stiffness: above it, by less than a cent (0.06 %)
     assert 1.5933 - 5e-5 < rows[(1, 1)][1] < 1.5933 * 1.0006
 

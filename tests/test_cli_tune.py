@@ -15,7 +15,7 @@ from membrane.units import cents
 from conftest import installed_command
 
 runner = CliRunner()
-# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero; SOURCES.md); A&S Table 9.5
+# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero); A&S Table 9.5
 # prints them to 5 decimals (10 for m = 0): tests/test_bessel.py checks both
 J11, J21 = 3.8317059702, 5.1356223018
 FAST = ["--physics", "stiff", "--m-max", "2", "--n-max", "1"]

@@ -14,7 +14,7 @@ from membrane.physics.radiation import Quadrature
 from membrane.physics.vacuum import stiff_basis
 
 # A 26-inch kettledrum head of 0.19 mm polyester: 0.262 kg/m^2 (0.19 mm x 1390 kg/m^3,
-# SOURCES.md, from memory), E = 4.5 GPa (film producer's typical value, SOURCES.md), tuned so
+# from memory), E = 4.5 GPa (film producer's typical value, ISO 527; docs/references.md), tuned so
 # that (1,1) sits near 150 Hz.
 HEAD = Head(radius=0.325, tension=3700.0, areal_density=0.262, thickness=0.19e-3,
             youngs_modulus=4.5e9, poisson_ratio=0.38)
@@ -54,7 +54,7 @@ def test_kettle_ratios_match_rossing(volume):
 
 
 def test_ideal_column_from_the_same_entry_point():
-    # SOURCES.md ideal membrane ratios to (1,1) (COMPUTED): 1.3403, 1.6651, 1.9804;
+    # ideal membrane ratios to (1,1) (COMPUTED from A&S Table 9.5 zeros): 1.3403, 1.6651, 1.9804;
     # and physics="full" through membrane.solve fills the decay times
     drum = Drum(head=HEAD, body=Body(kind="kettle", volume=0.17))
     ideal = {(md.m, md.n): md for md in solve(drum, "ideal", m_max=4, n_max=1)}
@@ -75,7 +75,8 @@ def test_decay_ordering_on_the_kettledrum():
 
 
 def test_kettle_stiffens_and_air_lowers():
-    # Raichel 2006, Eq. 6.28: the enclosed air spring raises (0,1); Rossing (SOURCES.md, READ in
+    # Raichel 2006, Eq. 6.28: the enclosed air spring raises (0,1); Rossing, "Acoustics of
+    # timpani", Percussionist 19(3), 1982 (READ in
     # abstracts): the bowl raises the lowest axisymmetric mode, air loading lowers the (m,1) modes
     open_, kettle = kettledrum("none"), kettledrum("kettle", 0.17)
     assert kettle[(0, 1)].frequency > 1.3 * open_[(0, 1)].frequency
@@ -130,7 +131,7 @@ def test_identical_heads_split_into_symmetric_and_antisymmetric_pairs():
         assert set(p) == {"in-phase", "opposed"}
         assert np.allclose(p["in-phase"].resonant_coefficients, p["in-phase"].coefficients)
         assert np.allclose(p["opposed"].resonant_coefficients, -p["opposed"].coefficients)
-    # in-phase (both heads out together, DESIGN.md section 6's definition) changes the volume, so
+    # in-phase (both heads out together, docs/two_heads.md's definition) changes the volume, so
     # the air spring stiffens it (Raichel Eq. 6.28; test_coupled_published.py checks the split)
     assert pairs[(0, 1)]["in-phase"].frequency > 1.2 * pairs[(0, 1)]["opposed"].frequency
 

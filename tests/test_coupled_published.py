@@ -12,13 +12,14 @@ not the solver's wavenumber-domain integrals):
   ring kernel 4 K(m)/(r + r') (the elliptic-integral form; A&S 17.3), checked first on the
   baffled piston's 8 rho a^3 / 3 (Kinsler et al. Sec. 7.5);
 * a two-headed drum: the lumped-kettle equation of D. R. Raichel, The Science and Applications of
-  Acoustics, 2nd ed., 2006, Eq. 6.28 (with the a^4 correction of SOURCES.md), which by symmetry
+  Acoustics, 2nd ed., 2006, Eq. 6.28 (with pi a^4 in B where the scan prints pi a^2, so that B
+  is dimensionless), which by symmetry
   holds for the in-phase pair of two identical heads with half the volume each.
 
 Accuracy: the formulas are exact for their limits (light air, low frequency, lumped cavity); the
 tolerances are the size of what the limit neglects, estimated beside each check. Parameters are
 invented round numbers of drum size (a 26-inch and a 12-inch head; 0.262 kg/m^2 is 0.19 mm
-polyester at 1390 kg/m^3, SOURCES.md); the checks do not depend on them being any real drum's.
+polyester at 1390 kg/m^3, from memory); the checks do not depend on them being any real drum's.
 """
 
 import numpy as np
@@ -28,8 +29,8 @@ from scipy import integrate, optimize, special
 from membrane.drum import Air, Body, Drum, Head
 from membrane.physics.coupled import LN1000, full_modes
 
-GAMMA_P0 = 1.4 * 101325.0  # adiabatic bulk modulus of air, Pa (SOURCES.md, air at 101.325 kPa)
-RHO, C = 1.2041, 343.24  # air at 20 degC (SOURCES.md)
+GAMMA_P0 = 1.4 * 101325.0  # adiabatic bulk modulus of air, Pa (gamma = 1.4, P0 = 101.325 kPa)
+RHO, C = 1.2041, 343.24  # air at 20 degC (ideal gas, R = 287.058 J/(kg K), gamma = 1.4)
 A26, SIGMA = 0.325, 0.262  # 26-inch head radius (m) and areal density (kg/m^2)
 
 
@@ -76,7 +77,8 @@ def far_field_resistance(phi, m, a, k, rho, c):
 def test_radiation_damping_matches_the_rayleigh_far_field(kind, faces):
     # A 26-inch head at 3000 N/m, ka from 0.75 to 2.6 over these modes. The model's amplitude
     # decay rate Im w must be the radiated power over twice the vibrational energy,
-    # Im w = faces * R / (2 M): two radiating faces with no body (DESIGN.md 3.3: each in a
+    # Im w = faces * R / (2 M): two radiating faces with no body (docs/physics.md, "Air on an
+    # open face": each in a
     # baffle), one over a kettle, whose rigid closed bowl radiates nothing. Air at 1/1000 of its
     # density makes this first-order result exact up to terms of relative size Ma/M, the air's
     # added mass over the head's (under 0.4 % here, from the frequency lowering 1 - f/f0 < 0.2 %):

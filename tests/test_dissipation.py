@@ -9,6 +9,7 @@ from membrane.drum import Air, Body, Drum, Head
 from membrane.losses import Losses
 from membrane.physics import dissipation as dz
 from membrane.physics.cavity import duct_terms
+from membrane.physics.duct_walls import DuctWalls
 from membrane.physics.coupled import full_modes
 from membrane.solver import solve
 
@@ -289,3 +290,32 @@ def test_wall_and_face_forms_against_direct_quadrature(heads):
                                      heads=heads, faces=False)
     assert w @ pi_s[0] @ w == pytest.approx(side_p2, rel=1e-8)
     assert w @ ups_s[0] @ w == pytest.approx(side_g2, rel=1e-8)
+    # the projected forms the solver uses (duct_walls.DuctWalls), for the same amplitudes
+    walls = DuctWalls(w[:, None], gamma, norms, a, L, m, heads)
+    assert walls.forms([k], [1.0], [0.0])[0, 0, 0] == pytest.approx(side_p2 + p_top + p_bot, rel=1e-8)
+    assert walls.forms([k], [0.0], [1.0])[0, 0, 0] == pytest.approx(side_g2 + g_top + g_bot, rel=1e-8)
+
+
+@pytest.mark.parametrize("m", [0, 1, 4])
+@pytest.mark.parametrize("heads", [1, 2])
+def test_projected_wall_forms_equal_the_full_forms(m, heads):
+    # internal consistency: DuctWalls (divided differences, two matrix products) gives
+    # A^T (t Pi + v Ups) A of duct_wall_forms (checked against quadrature above) to round-off,
+    # at complex k below, between and just above and below cut-ons (at one exactly both are
+    # infinite: the field's 1/beta)
+    from membrane.physics.cavity import duct_norms, duct_wavenumbers
+
+    a, L, Q, n = 0.33, 0.5, 28, 20
+    gamma = duct_wavenumbers(m=m, count=Q, radius=a)
+    norms = duct_norms(m=m, gamma=gamma, radius=a)
+    rng = np.random.default_rng(m + 10 * heads)
+    amp = rng.normal(size=(heads * Q, n))
+    k = np.array([0.3 + 0j, 1.0 + 0.01j, 5.3 - 0.2j, 12.7 + 1e-3j, 30.0 + 0.5j,
+                  gamma[3] * (1 + 1e-4) + 1e-4j, gamma[5] * (1 - 1e-6) + 0j])
+    t = rng.normal(size=len(k)) + 1j * rng.normal(size=len(k))
+    v = rng.normal(size=len(k)) + 1j * rng.normal(size=len(k))
+    pi, ups = dz.duct_wall_forms(k, gamma=gamma, norms=norms, radius=a, depth=L, m=m, heads=heads)
+    full = amp.T[None] @ (t[:, None, None] * pi + v[:, None, None] * ups) @ amp[None]
+    fast = DuctWalls(amp, gamma, norms, a, L, m, heads).forms(k, t, v)
+    scale = np.max(np.abs(full), axis=(1, 2), keepdims=True)
+    assert np.max(np.abs(fast - full) / scale) < 1e-11

@@ -11,7 +11,7 @@ BASE = {"head": {"diameter": "26 in", "film": "polyester", "thickness": "0.19 mm
 
 def test_film_gives_areal_density_and_stiffness():
     head = parse_drum(BASE).head
-    # 0.19 mm x 1390 kg/m^3 = 0.2641 kg/m^2 (SOURCES.md: about 0.26 kg/m^2, from memory)
+    # 0.19 mm x 1390 kg/m^3 = 0.2641 kg/m^2 (about 0.26 kg/m^2 for a timpani head, from memory)
     assert head.areal_density == pytest.approx(0.19e-3 * 1390)
     # D = E h^3 / (12 (1 - nu^2)) with E = 4.5 GPa, nu = 0.38 (films data file)
     assert head.bending_stiffness == pytest.approx(4.5e9 * 0.19e-3**3 / (12 * (1 - 0.38**2)))
@@ -32,7 +32,8 @@ def test_custom_areal_density_has_no_stiffness():
 
 
 def test_air_from_temperature():
-    # SOURCES.md: ideal gas, R = 287.058 J/(kg K), gamma = 1.4 gives 343.24 m/s, 1.2041 kg/m^3 at 20 degC
+    # ideal gas, R = 287.058 J/(kg K), gamma = 1.4 gives 343.24 m/s, 1.2041 kg/m^3 at 20 degC
+    # (handbooks: about 343.2 m/s, 1.204 kg/m^3)
     air = Air.from_conditions(temperature=293.15, pressure=101325.0)
     assert air.sound_speed == pytest.approx(343.24, abs=0.01)
     assert air.density == pytest.approx(1.2041, abs=1e-4)

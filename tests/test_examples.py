@@ -17,7 +17,7 @@ def load(name):
 
 def test_kettledrum_harmonicity_reproduces_rossing():
     ratios = load("kettledrum_harmonicity").RATIOS
-    # SOURCES.md ideal membrane (COMPUTED from A&S Table 9.5): 1.34, 1.67, 1.98
+    # ideal membrane (COMPUTED from A&S Table 9.5 zeros): 1.34, 1.67, 1.98
     assert ratios["ideal membrane"][1:4] == pytest.approx([1.3403, 1.6651, 1.9804], abs=1e-4)
     # Rossing, "Acoustics of timpani", Percussionist 19(3) 1982: head in air, no bowl, 1.48 1.92 2.36
     # (SECONDARY: Rossing's chart as reproduced)

@@ -52,7 +52,7 @@ def test_the_mode_table_is_text_with_the_solved_numbers(a4):
         assert f"{row['ratio']:.4f}" in table
         assert row["note"] in table
     # a kettledrum's ratios are to its principal (1,1) by default
-    # SOURCES.md, ideal membrane: f(2,1)/f(1,1) = 1.3403, f(3,1)/f(1,1) = 1.6651
+    # ideal membrane, j21/j11 and j31/j11 (A&S Table 9.5): f(2,1)/f(1,1) = 1.3403, f(3,1)/f(1,1) = 1.6651
     assert "ratio to (1,1)" in table
     for ratio in ("1.3403", "1.6651"):
         assert ratio in table

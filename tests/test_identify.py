@@ -1,7 +1,7 @@
 """Naming partials with modes and fitting the tension, against partials we know the origin of.
 
 Two kinds of reference: partial sets built from the Bessel zeros (11 digits computed with
-mpmath, SOURCES.md; Abramowitz & Stegun Table 9.5 prints them to 5 decimals) with the formula
+mpmath; Abramowitz & Stegun Table 9.5 prints them to 5 decimals) with the formula
 f_mn = j_mn / (2 pi a) sqrt(T / sigma) (Kinsler et al., Fundamentals of Acoustics, ch. 4), so the answer does not come from
 the solver under test; and a recording synthesised from the drum model at a known
 tension through the strike module, analysed like any recording.
@@ -21,7 +21,7 @@ from membrane.errors import InputError
 from membrane.identify import identify
 from membrane.recording import Partial, analyse, read_wav
 
-# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero; SOURCES.md); A&S Table 9.5
+# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero); A&S Table 9.5
 # prints them to 5 decimals (10 for m = 0): tests/test_bessel.py checks both
 J = {(0, 1): 2.4048255577, (0, 2): 5.5200781103, (0, 3): 8.6537279129,
      (1, 1): 3.8317059702, (1, 2): 7.0155866698, (1, 3): 10.173468135,
@@ -99,7 +99,8 @@ def test_a_nominal_tension_far_off_still_finds_the_head(kettle, nominal):
 
 
 def test_full_physics_where_sqrt_t_fails(kettle):
-    # with air loading and the kettle, f is not proportional to sqrt(T) (Rossing 1982, SOURCES.md), so
+    # with air loading and the kettle, f is not proportional to sqrt(T) (Rossing, "Acoustics of
+    # timpani", Percussionist 19(3), 1982), so
     # this exercises the fit that re-solves the model; the partials are the full model's own
     # modes at 4400 N/m (a self-consistency check: the fit must return the tension used)
     from membrane.solver import solve
@@ -130,11 +131,11 @@ def test_too_few_partials_is_an_input_error(kettle):
 def tap(kettle, tmp_path_factory):
     """The stiff model at 4400 N/m struck at r/a = 0.75, 3 s at 48 kHz, 30 dB SNR, 16-bit."""
     from membrane.solver import solve
-    from membrane.strike import Strike, strike_partials, synthesize
+    from membrane.strike import Strike, strike_partials, synthesise
 
     modes = solve(kettle.with_tension(TRUE_TENSION), "stiff", m_max=12, n_max=4)
-    heard = strike_partials(modes, strike=Strike(at=0.75, contact_time=0.002))
-    x = synthesize(heard, rate=48000, seconds=3.0, contact_time=0.002, assume_t60=1.5)
+    heard = strike_partials(modes, strike=Strike(radius_fraction=0.75, contact_time=0.002))
+    x = synthesise(heard, rate=48000, seconds=3.0, contact_time=0.002, assume_t60=1.5)
     rng = np.random.default_rng(12)
     x = np.concatenate([np.zeros(4800), x])
     x = 0.5 * (x + rng.normal(0, np.sqrt(np.mean(x**2)) / 10 ** 1.5, x.size))
@@ -213,11 +214,11 @@ def test_a_soft_mallet_preview_with_full_physics_gives_the_tension(kettle, tmp_p
     # thumb) once gave a spurious fast component the band filter's start-up transient makes,
     # which took the level reference and pushed the real partials under the floor.
     from membrane.solver import solve
-    from membrane.strike import Strike, strike_partials, synthesize
+    from membrane.strike import Strike, strike_partials, synthesise
 
     modes = solve(kettle, "full")
-    heard = strike_partials(modes, strike=Strike(at=0.75, contact_time=3e-3))
-    x = synthesize(heard, rate=44100, seconds=4.0, contact_time=3e-3)
+    heard = strike_partials(modes, strike=Strike(radius_fraction=0.75, contact_time=3e-3))
+    x = synthesise(heard, rate=44100, seconds=4.0, contact_time=3e-3)
     path = tmp_path / "soft.wav"
     scipy.io.wavfile.write(path, 44100, np.round(x * 32767).astype(np.int16))
     analysis = analyse(read_wav(path))

@@ -78,7 +78,7 @@ def test_catalogue_covers_skins_and_aramid():
         assert 0 < lo < hi < 2e-3
     pet = materials.film("polyester")
     assert 1 in pet.usual_plies and 2 in pet.usual_plies
-    # 7.5 mil = 190.5 um exactly (1 mil = 25.4 um, SOURCES.md)
+    # 7.5 mil = 190.5 um exactly (1 mil = 0.001 in, 1 in = 25.4 mm exactly)
     assert any(abs(h - 7.5 * 25.4e-6) < 1e-12 for h in pet.usual_thicknesses)
 
 

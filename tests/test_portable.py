@@ -36,3 +36,16 @@ def test_the_pattern_catches_what_it_should():
     good = ["membrane/physics/coupled.py", "~/.cache/membrane", "https://example.org/a/b"]
     assert all(re.search(MACHINE_PATH, s) for s in bad)
     assert not any(re.search(MACHINE_PATH, s) for s in good)
+
+
+def test_no_file_cites_a_document_the_repository_does_not_hold():
+    # what a docstring or a test comment cites must be in a clone: docs/ or a published source
+    if shutil.which("git") is None or not (ROOT / ".git").exists():
+        pytest.skip("not a git checkout")
+    names = [stem + "." + "md" for stem in ("SOURCES", "DESIGN")]
+    cited = [name for name in names if not (ROOT / name).exists()]
+    found = subprocess.run(["git", "grep", "-nIF"] + sum((["-e", n] for n in cited), []) + ["--", "."],
+                           cwd=ROOT, capture_output=True, text=True) if cited else None
+    if found is not None:
+        assert found.returncode in (0, 1), found.stderr
+        assert found.stdout == "", "cites a file a clone does not hold:\n" + found.stdout

@@ -9,7 +9,7 @@ from membrane.physics.radiation import (Piston, Quadrature, RadiationTable, radi
                                         radiation_matrix)
 from membrane.physics.vacuum import ideal_basis, stiff_basis
 
-RHO, C = 1.2041, 343.24  # dry air at 20 degC (SOURCES.md, ideal gas)
+RHO, C = 1.2041, 343.24  # dry air at 20 degC (ideal gas, R = 287.058 J/(kg K), gamma = 1.4)
 
 
 def piston_impedance_ratio(x, *, radius=0.3, quadrature=Quadrature()):
@@ -34,7 +34,7 @@ def test_piston_matches_kinsler_frey_over_the_whole_range():
 @pytest.mark.parametrize("ka, r1, x1", [(0.5, 0.119899, 0.396915), (1.0, 0.423275, 0.646764),
                                         (2.0, 1.033022, 0.534863)])
 def test_piston_tabulated_values(ka, r1, x1):
-    # SOURCES.md "Radiation of a baffled piston" (COMPUTED values, 6 decimals)
+    # Vigran, Building Acoustics (2008), Eq. 3.57 (Kinsler & Frey; Beranek): R1, X1 COMPUTED to 6 decimals
     z = piston_impedance_ratio(2 * ka)
     assert z.real == pytest.approx(r1, abs=1e-6)
     assert z.imag == pytest.approx(x1, abs=1e-6)

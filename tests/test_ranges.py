@@ -67,7 +67,8 @@ def test_derived_areal_density_is_checked_too():
 
 
 def test_everyday_drums_are_inside_every_range():
-    # the built-in demos and the air of a room (SOURCES.md: 343.24 m/s, 1.2041 kg/m^3 at 20 degC)
+    # the built-in demos and the air of a room (ideal gas, R = 287.058 J/(kg K), gamma = 1.4:
+    # 343.24 m/s, 1.2041 kg/m^3 at 20 degC)
     drum = parse_drum({**KETTLE, "air": {"temperature": "20 degC", "pressure": "101.325 kPa"}})
     assert drum.air.sound_speed == pytest.approx(343.24, abs=0.01)
     # Earth's extremes: -89.2 degC (Vostok, 1983) and 56.7 degC (Death Valley, 1913),

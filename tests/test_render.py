@@ -12,7 +12,7 @@ from membrane import load_drum, solve
 from membrane.cli import app
 from membrane.render import stills
 
-# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero; SOURCES.md); A&S Table 9.5
+# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero); A&S Table 9.5
 # prints them to 5 decimals (10 for m = 0): tests/test_bessel.py checks both
 BESSEL_ZEROS = {
     0: (2.4048255577, 5.5200781103, 8.6537279129),
@@ -149,7 +149,7 @@ def test_the_default_reference_is_the_principal():
 
 def test_a_stiff_mode_is_drawn_from_its_own_vector():
     # A slack head is plate-like: its (0,2) nodal circle moves well away from the ideal
-    # 0.4357 (SOURCES.md), so a picture of the ideal Bessel function would fail here.
+    # 0.4357 (j01/j02, A&S Table 9.5), so a picture of the ideal Bessel function would fail here.
     drum = load_drum("kettledrum", tension="30 N/m", thickness="0.5 mm")
     stiff = solve(drum, "stiff", m_max=1, n_max=2)
     fig = stills.nodal_diagram(stiff, stiff.find(0, 2))
@@ -175,7 +175,7 @@ def test_ratio_chart_places_modes_at_their_frequency_ratios(ideal):
     assert len(panels) == 2
     at = {line.get_gid(): (line.get_xdata()[0], line.get_ydata()[0]) for line in panels[0].get_lines()
           if line.get_gid()}
-    # SOURCES.md, ideal membrane: f(2,1)/f(1,1) = 1.3403, f(3,1)/f(1,1) = 1.6651
+    # ideal membrane, j21/j11 and j31/j11 (A&S Table 9.5): f(2,1)/f(1,1) = 1.3403, f(3,1)/f(1,1) = 1.6651
     assert at["(2,1)"][0] / at["(1,1)"][0] == pytest.approx(1.3403, abs=1e-4)
     assert at["(3,1)"][0] / at["(1,1)"][0] == pytest.approx(1.6651, abs=1e-4)
     low, high = panels[0].get_ylim()
@@ -313,7 +313,7 @@ def test_existing_file_is_kept_without_force(tmp_path):
 
 def test_full_physics_draws_the_air_loaded_shape():
     # Air loading mixes the in-vacuum shapes: the (0,2) circle moves off the ideal
-    # 0.4357 (SOURCES.md), and the picture must follow the solver, not the Bessel function.
+    # 0.4357 (j01/j02, A&S Table 9.5), and the picture must follow the solver, not the Bessel function.
     full = solve(load_drum("kettledrum"), "full", m_max=2, n_max=2)
     mode = full.find(0, 2)
     x, y, w = mesh_of(stills.nodal_diagram(full, mode).axes[0])
@@ -334,7 +334,7 @@ def test_a_shell_shows_both_heads_moving_as_the_branch_says():
             assert z_top == 0 and z_bottom < 0
             # centre displacement, drawn upward-positive; outward is down for the resonant head
             up_top, up_bottom = w_top[0], w_bottom[0]
-            # by definition (DESIGN.md section 6): "in-phase" = the outward displacements share a sign
+            # by definition (docs/two_heads.md): "in-phase" = the outward displacements share a sign
             same_way_up = np.sign(up_top) == np.sign(up_bottom)
             assert same_way_up == (mode.branch == "opposed"), mode.label
         finally:

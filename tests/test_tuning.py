@@ -14,15 +14,16 @@ from membrane.tuning import (CAUTIONS, SAFE_STRESS_FRACTION, TENSION_CEILING, eq
                              safety_warnings, slack_tension, tension_for, turns_text)
 from membrane.units import cents, parse_pitch
 
-# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero; SOURCES.md); A&S Table 9.5
+# j_{m,n} to 11 significant digits, computed (mpmath.besseljzero); A&S Table 9.5
 # prints them to 5 decimals (10 for m = 0): tests/test_bessel.py checks both
 J01, J11, J21, J02 = 2.4048255577, 3.8317059702, 5.1356223018, 5.5200781103
-# Leissa, NASA SP-160 (1969), Table 2.1 (SOURCES.md): clamped plate, lambda^2 for (1,1) = (1 diameter, 0 circles)
+# Leissa, NASA SP-160 (1969), Table 2.1 (root computed with mpmath): clamped plate,
+# lambda^2 for (1,1) = (1 diameter, 0 circles)
 PLATE_11 = 21.2604
 
 
 def polyester_head(*, radius, tension, thickness, plies=1):
-    # PET film data as in membrane/data/films.toml (SOURCES.md "Films")
+    # PET film data as in membrane/data/films.toml (a film producer's typical values, ISO 527)
     return Head(radius=radius, tension=tension, areal_density=1390.0 * thickness * plies, thickness=thickness,
                 plies=plies, youngs_modulus=4.5e9, poisson_ratio=0.38, film="polyester",
                 yield_stress=100e6, tensile_strength=200e6)

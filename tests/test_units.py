@@ -9,7 +9,7 @@ from membrane.units import cents, note_name, parse_pitch, to_si
 @pytest.mark.parametrize("text, kind, si", [
     ("26 in", "length", 0.6604),            # 1 in = 25.4 mm exactly (international inch)
     ("0.19 mm", "length", 0.19e-3),
-    ("7.5 mil", "length", 190.5e-6),        # 1 mil = 25.4 um exactly (SOURCES.md, Films)
+    ("7.5 mil", "length", 190.5e-6),        # 1 mil = 0.001 in = 25.4 um exactly
     ("65 cm", "length", 0.65),
     ("4 kN/m", "tension", 4000.0),
     ("20 lbf/in", "tension", 20 * 4.4482216152605 / 0.0254),  # 1 lbf = 4.4482216152605 N exactly

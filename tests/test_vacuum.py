@@ -8,7 +8,7 @@ from scipy import integrate, special
 from membrane.bessel import jn_zeros
 from membrane.physics.vacuum import ideal_basis, stiff_basis, stiff_roots
 
-# Leissa, Vibration of Plates (NASA SP-160, 1969), Table 2.1 via SOURCES.md: clamped circular
+# Leissa, Vibration of Plates (NASA SP-160, 1969), Table 2.1 (roots computed with mpmath): clamped circular
 # plate, lambda^2 = omega a^2 sqrt(sigma/D), keyed (m diameters, s interior circles).
 LEISSA_CLAMPED = {(0, 0): 10.2158, (1, 0): 21.2604, (2, 0): 34.8770, (0, 1): 39.7711,
                   (3, 0): 51.0300, (1, 1): 60.8287, (4, 0): 69.6658, (2, 1): 84.5826}
@@ -45,7 +45,7 @@ def test_hinged_plate_limit_solves_the_simply_supported_equation(nu):
 
 
 def test_hinged_plate_values_for_nu_0_3():
-    # SOURCES.md (COMPUTED from Leissa's simply-supported equation, nu = 0.3): (0,0) 4.9351,
+    # Leissa, NASA SP-160 (1969), simply-supported equation, roots COMPUTED for nu = 0.3: (0,0) 4.9351,
     # (1,0) 13.8982, (2,0) 25.6133, (0,1) 29.7200
     lam2 = [stiff_roots("hinged", 0, 1, 0.0, 0.3)[0] ** 2, stiff_roots("hinged", 1, 1, 0.0, 0.3)[0] ** 2,
             stiff_roots("hinged", 2, 1, 0.0, 0.3)[0] ** 2, stiff_roots("hinged", 0, 2, 0.0, 0.3)[1] ** 2]

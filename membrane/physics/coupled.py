@@ -1,4 +1,4 @@
-r"""The head coupled to the air on its faces and in its body: complex frequencies (DESIGN.md 3.5).
+r"""The head coupled to the air on its faces and in its body: complex frequencies (docs/physics.md, "Solving").
 
 The full-physics model, in the modules of its parts:
 

@@ -27,7 +27,7 @@ built so that this is the power its mechanism dissipates (first order in the los
   :math:`\alpha = \sqrt{\omega\nu/2}\,(1 + (\gamma-1)/\sqrt{Pr})/(a c)` (checked in
   tests/test_dissipation.py). Inside a kettle or shell the field is the duct-mode sum of
   cavity.py, integrated in closed form over the side wall, the bottom (or far head) and the
-  head's inner face. On an open face the head's near field is taken in its subsonic limit
+  head's inner face (duct_walls.py). On an open face the head's near field is taken in its subsonic limit
   (membrane wavenumber well above k, true for the (m,1) family): the air then slides over
   the face as fast as the face moves, :math:`|u_t| \approx \omega|w|`, so the term is
   :math:`W = i\omega z_v \int\phi\phi\,dA`; the thermal part there is smaller by about
@@ -52,6 +52,7 @@ import numpy as np
 from scipy import special
 
 from ..drum import GAMMA_AIR, R_DRY_AIR
+from .duct_walls import DuctWalls, duct_wall_forms  # noqa: F401 (duct_wall_forms: the definition)
 from .vacuum import ratio_i
 
 # Sutherland's law for air (White, Viscous Fluid Flow, 1991, Table 1-2).
@@ -229,109 +230,6 @@ def head_terms(head_order, losses) -> tuple[np.ndarray, np.ndarray]:
     return w_film, edge
 
 
-# ----------------------------------------------------------------------------- the duct
-def _cot_csc(mu, depth):
-    """cot(beta L) and csc(beta L) for beta = i mu (Re mu >= 0), overflow-safe."""
-    x = mu * depth
-    e1 = np.exp(-x)
-    den = -np.expm1(-2.0 * x)
-    return -1j * (1.0 + e1 * e1) / den, -1j * 2.0 * e1 / den
-
-
-def duct_wall_forms(k, *, gamma, norms, radius: float, depth: float, m: int, faces: bool = True,
-                    heads: int = 2):
-    r"""Surface integrals of the interior field over the duct's walls and end faces.
-
-    The field is :math:`p = -\omega^2\rho\sum_q \psi_q(r)\cos m\theta\,[w_{1q} e_{1q}(u) +
-    w_{2q} e_{2q}(u)]`, u = z + L from the far end (u = 0) to the struck head (u = L),
-    :math:`e_{1q} = \cos(\beta_q u)/(\beta_q\sin\beta_q L)` (from the head at u = L),
-    :math:`e_{2q} = \cos(\beta_q(L-u))/(\beta_q\sin\beta_q L)` (from a head at u = 0), and
-    :math:`w_{hq} = \langle w_h,\psi_q\rangle/\|\psi_q\|^2`. Returns the matrices of
-    :math:`\int p^2 dS` and :math:`\int|\nabla_t p|^2 dS` over the side wall and both end faces
-    (per :math:`(\omega^2\rho)^2`), as quadratic forms in the stacked amplitudes (w_1, w_2).
-
-    Parameters
-    ----------
-    k : array_like
-        Acoustic wavenumbers (complex allowed), (R,), 1/m.
-    gamma, norms : array_like
-        Duct wavenumbers (1/m) and norms (m^2), (Q,).
-    radius, depth : float
-        a and L in m.
-    m : int
-        Angular order.
-    faces : bool
-        Include the two end faces (False: the side wall alone).
-    heads : {1, 2}
-        1 for a kettle: the far end is a rigid wall (w_2 = 0), and only the (Q, Q) block of
-        w_1 is returned.
-
-    Returns
-    -------
-    (numpy.ndarray, numpy.ndarray)
-        Pi (thermal) and Ups (viscous), each (R, 2Q, 2Q), complex.
-    """
-    k = np.atleast_1d(np.asarray(k, dtype=complex))[:, None]
-    gamma = np.asarray(gamma, dtype=float)
-    norms = np.asarray(norms, dtype=float)
-    a, L = float(radius), float(depth)
-    weight = 2 * np.pi if m == 0 else np.pi
-    mu = np.sqrt(gamma[None, :] ** 2 - k * k)
-    b = 1j * mu
-    cot, csc = _cot_csc(mu, L)
-    Q = len(gamma)
-    b1, b2 = b[:, :, None], b[:, None, :]
-    c1, c2 = cot[:, :, None], cot[:, None, :]
-    s1, s2 = csc[:, :, None], csc[:, None, :]
-    dp = b1 + b2
-    eye = np.eye(Q, dtype=bool)[None]
-    dm = np.where(eye, 1.0, b1 - b2)
-    # (f(b2) - f(b1)) / (b1 - b2) -> -f'(b) on the diagonal: L csc^2 for cot, L csc cot for csc
-    dcot = np.where(eye, L * s1 * s1, (c2 - c1) / dm)
-    dcsc = np.where(eye, L * s1 * c1, (s2 - s1) / dm)
-    ccc = 0.5 * (dcot + (c2 + c1) / dp)  # csc csc * int cos(b1 u) cos(b2 u)
-    css = 0.5 * (dcot - (c2 + c1) / dp)  # csc csc * int sin(b1 u) sin(b2 u)
-    xcc = 0.5 * ((s2 + s1) / dp + dcsc)  # csc csc * int cos(b1 u) cos(b2 (L - u))
-    xss = 0.5 * ((s2 + s1) / dp - dcsc)  # csc csc * int sin(b1 u) sin(b2 (L - u))
-    bb = b1 * b2
-    e11, e12 = ccc / bb, xcc / bb
-    d11, d12 = css, -xss  # products of the u-derivatives
-    jw = special.jv(m, gamma * a)
-    tang = (m / a) ** 2
-    if heads == 1:
-        side = a * weight * np.outer(jw, jw)[None]
-        pi_side, ups_side = side * e11, side * (tang * e11 + d11)
-    else:
-        side = a * weight * np.tile(np.outer(jw, jw), (2, 2))[None]
-        pi_side = side * np.block([[e11, e12], [np.swapaxes(e12, 1, 2), e11]])
-        ups_side = side * np.block([[tang * e11 + d11, tang * e12 + d12],
-                                    [np.swapaxes(tang * e12 + d12, 1, 2), tang * e11 + d11]])
-    if not faces:
-        return pi_side, ups_side
-    # end faces: u = L (struck head) has amplitudes w1 cot/b + w2 csc/b, u = 0 the reverse
-    fcot, fcsc = cot / b, csc / b
-    nq = weight * norms[None, :]
-    if heads == 1:  # faces at u = L (amplitude w1 cot/b) and u = 0 (w1 csc/b): diagonal
-        diag = nq * (fcot * fcot + fcsc * fcsc)
-        idx = np.arange(Q)
-        pi_faces = np.zeros((k.shape[0], Q, Q), complex)
-        pi_faces[:, idx, idx] = diag
-        ups_faces = np.zeros_like(pi_faces)
-        ups_faces[:, idx, idx] = diag * gamma[None, :] ** 2
-        return pi_side + pi_faces, ups_side + ups_faces
-    pi_faces = np.zeros((k.shape[0], 2 * Q, 2 * Q), complex)
-    idx = np.arange(Q)
-    for (u1, u2) in ((fcot, fcsc), (fcsc, fcot)):
-        vec = np.concatenate([u1, u2], axis=1)  # (R, 2Q): the face amplitude per w
-        # sum_q N_q (vec_1q w_1q + vec_2q w_2q)^2: a rank-structured 2Q x 2Q form
-        for i0 in (0, Q):
-            for j0 in (0, Q):
-                pi_faces[:, i0 + idx, j0 + idx] += nq * vec[:, i0 + idx] * vec[:, j0 + idx]
-    grad = np.concatenate([gamma, gamma]) ** 2
-    ups_faces = pi_faces * np.sqrt(grad)[None, :, None] * np.sqrt(grad)[None, None, :]
-    return pi_side + pi_faces, ups_side + ups_faces
-
-
 class RootLosses:
     """The loss terms of every order of a :class:`membrane.physics.coupled.RootSet`.
 
@@ -372,8 +270,8 @@ class RootLosses:
                 amp[Q:, off[1]:off[2]] = (V[1] / d["norms"][None, :]).T
             elif order.cross_sign is not None:
                 amp[Q:, :] = order.cross_sign * amp[:Q, :]
-            out["duct"] = (amp, d["gamma"], d["norms"], order.heads[0].radius, order.depth, order.m,
-                           heads)
+            out["duct"] = DuctWalls(amp, d["gamma"], d["norms"], order.heads[0].radius,
+                                    order.depth, order.m, heads)
         return out
 
     def _layers(self, omega):
@@ -392,49 +290,9 @@ class RootLosses:
             if outer:
                 W = W + outer * (1j * omega * zv)[:, None, None] * o["face"][None]
             if body and o["duct"] is not None:
-                amp, gamma, norms, a, L, m, heads = o["duct"]
-                pi, ups = duct_wall_forms(omega / self.c, gamma=gamma, norms=norms, radius=a,
-                                          depth=L, m=m, heads=heads)
-                form = (1j * omega**3 * self.rho**2 * yt)[:, None, None] * pi + \
-                    (1j * omega * zv)[:, None, None] * ups
-                W = W + body * (amp.T[None] @ form @ amp[None])
+                W = W + body * o["duct"].forms(omega / self.c, 1j * omega**3 * self.rho**2 * yt,
+                                               1j * omega * zv)
         return W
-
-    def rayleigh(self, which, x, *, outer: float, body: float):
-        """x^T W(omega) x for root vectors x (R, size) of orders ``which``: a function of omega."""
-        which = np.asarray(which)
-        R = len(which)
-        xf, xe, xm = np.zeros(R, complex), np.zeros(R, complex), np.zeros(R, complex)
-        ducts = []
-        for i in np.unique(which):
-            sel = np.nonzero(which == i)[0]
-            o, xs = self.orders[i], x[sel]
-            xf[sel] = np.einsum("rn,nk,rk->r", xs, o["film"], xs)
-            xe[sel] = np.einsum("rn,nk,rk->r", xs, o["edge"], xs)
-            xm[sel] = np.einsum("rn,nk,rk->r", xs, o["face"], xs)
-            if o["duct"] is not None and self.losses.boundary_layers and body:
-                amp, gamma, norms, a, L, m, heads = o["duct"]
-                ducts.append((sel, xs @ amp.T, gamma, norms, a, L, m, heads))
-        layers = self.losses.boundary_layers
-
-        def r(omega):
-            omega = np.asarray(omega, dtype=complex)
-            val = xf + (1j / omega) * xe
-            if layers:
-                zv, yt = self._layers(omega)
-                if outer:
-                    val = val + outer * 1j * omega * zv * xm
-                for sel, w, gamma, norms, a, L, m, heads in ducts:
-                    om = omega[sel]
-                    pi, ups = duct_wall_forms(om / self.c, gamma=gamma, norms=norms, radius=a,
-                                              depth=L, m=m, heads=heads)
-                    qp = np.einsum("rq,rqp,rp->r", w, pi, w)
-                    qu = np.einsum("rq,rqp,rp->r", w, ups, w)
-                    val[sel] = val[sel] + body * (1j * om**3 * self.rho**2 * yt[sel] * qp
-                                                  + 1j * om * zv[sel] * qu)
-            return val
-
-        return r
 
 
 def _block_diag_c(blocks):
