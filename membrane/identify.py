@@ -244,7 +244,9 @@ def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = 
     splits : {"beating", "resolved"}
         Which close pairs are claimed as a split mode: ``"beating"`` (default) only pairs
         that beat audibly (:func:`beats`); ``"resolved"`` every pair the analysis resolved,
-        however slowly it beats (a lug estimate from a clean recording reads those too).
+        however slowly it beats, the members of a line of close components
+        (:attr:`membrane.analysis.Partial.members`) included (a lug estimate from a clean
+        recording reads those too).
     progress : callable or None
         Called with a short message at each stage (the full model takes seconds a solve).
 
@@ -267,6 +269,9 @@ def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = 
         raise InputError("split_cents", split_cents, f"between 0 and max_cents ({max_cents})")
     if splits not in ("beating", "resolved"):
         raise InputError("splits", splits, "beating or resolved")
+    if splits == "resolved":
+        # every pair the band fit resolved: an unresolved line's members count one by one
+        partials = [m for p in partials for m in (getattr(p, "members", ()) or (p,))]
     usable = sorted((p for p in partials if "steady" not in p.flags), key=lambda p: p.settled)
     if len(usable) < 2:
         raise InputError("partials", len(usable), "need at least two partials that decay (not "

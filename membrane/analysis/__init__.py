@@ -2,7 +2,8 @@
 
 One concept a module: :mod:`.audio` (reading files), :mod:`.onset` (the strike and its
 end), :mod:`.seeding` (where to look), :mod:`.esprit` (damped exponentials in a band),
-:mod:`.glide` (frequency over the decay), :mod:`.partials` (the whole analysis).
+:mod:`.lines` (components grouped into lines), :mod:`.glide` (frequency over the decay),
+:mod:`.partial` (a measured partial), :mod:`.partials` (the whole analysis).
 """
 
 from .audio import FORMATS, Recording, read_recording

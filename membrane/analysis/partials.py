@@ -10,8 +10,10 @@ is an extrapolation towards the strike, where a fast-dying component would be bl
 exp(r t).
 
 The method: seeds from long- and short-window spectra (:mod:`.seeding`), damped
-exponentials band by band (:mod:`.esprit`), and frequency tracks of the strong partials
-(:mod:`.glide`) that turn a comb of components along a glide back into one partial.
+exponentials band by band (:mod:`.esprit`), the components of each band grouped into its
+physical lines with each line's level and decay from its own envelope (:mod:`.lines`), and
+frequency tracks of the strong partials (:mod:`.glide`) that turn a comb of components along
+a glide back into one partial.
 
 Approximations: each partial is assumed to decay exponentially; a partial whose decay is
 not exponential (two-stage decay, strong beating with a third partial) is reported with its
@@ -31,11 +33,10 @@ from membrane.errors import InputError, RecordingError
 from . import esprit
 from ..blas import one_blas_thread
 from .audio import Recording
-from .glide import Track, frames, track
+from . import lines as line_fit
 from .onset import find_strike
+from .partial import LN1000, Partial
 from .seeding import seeds as find_seeds
-
-LN1000 = esprit.LN1000
 
 REFERENCE_TIME_S = 0.02  # levels are amplitudes this long after the strike's onset [s]
 MIN_DURATION_S = 0.1  # shortest decay worth analysing
@@ -44,52 +45,8 @@ DEFAULT_FLOOR_DB = -50.0
 DEFAULT_MAX_PARTIALS = 32
 MIN_FREQUENCY_HZ = 20.0  # below this: rumble and DC, not a partial of a drumhead
 STRIKE_CONTRAST_DB = 6.0  # the loudest 20 ms stands this far above the quietest tenth
-GLIDE_TRACK_DB = -30.0  # partials this strong (re the strongest) are tracked for glide
-GLIDE_MIN_T60_S = 0.2  # and ring at least this long
 NO_PARTIALS = "no drum partials stand above the noise"
 MAX_BANDS = 96  # bands fitted at most (the seeds standing highest): bounded work
-
-
-@dataclass(frozen=True)
-class Partial:
-    """One damped sinusoid of a decay.
-
-    Attributes
-    ----------
-    frequency : float
-        Frequency at the reference time [Hz].
-    amplitude : float
-        Amplitude at the reference time (full scale = 1).
-    decay_rate : float
-        Amplitude decay rate r [1/s]; the partial goes as ``exp(-r t)``.
-    level_db : float
-        Amplitude at the reference time in dB relative to the strongest partial.
-    glide_cents : float
-        Settled minus initial frequency [cents], 0 for a steady partial.
-    settled_frequency : float or None
-        Frequency once the glide has settled [Hz]; None means the same as ``frequency``.
-    flags : tuple of str
-        ``"glide"``, ``"fast"`` (decays faster than the analysis resolves well: level and
-        T60 uncertain), ``"steady"`` (does not decay: hum, not a drum partial).
-    """
-
-    frequency: float
-    amplitude: float
-    decay_rate: float
-    level_db: float = 0.0
-    glide_cents: float = 0.0
-    settled_frequency: float | None = None
-    flags: tuple[str, ...] = ()
-
-    @property
-    def t60(self) -> float | None:
-        """Time to fall by 60 dB [s], ``3 ln 10 / r``; None if the partial does not decay."""
-        return LN1000 / self.decay_rate if self.decay_rate > 0 else None
-
-    @property
-    def settled(self) -> float:
-        """The settled frequency [Hz] (the frequency, for a partial that does not glide)."""
-        return self.frequency if self.settled_frequency is None else self.settled_frequency
 
 
 @dataclass(frozen=True)
@@ -313,20 +270,26 @@ def find_partials(decay: np.ndarray, *, rate: float, floor_db: float = DEFAULT_F
         z = z + esprit.filtered_basis(b, s[k]) @ c[k]
         second.append(esprit.band_amplitudes(b, s, z=z))
     amps = second
-    found: list[esprit.Component] = []
+    duration = n / rate
+    lines: list[list[esprit.Component]] = []
     for b, s, c in zip(bands, rates, amps):
-        found += [comp for comp in esprit.components(b, s, c)
-                  if comp.decay_rate < esprit.FASTEST_RATE]
-    if not found:
+        found = [comp for comp in esprit.components(b, s, c)
+                 if comp.decay_rate < esprit.FASTEST_RATE]
+        lines += line_fit.group(found, duration=duration)
+    if not lines:
         return ()
-    parts = [_partial(c, shift) for c in found]
-    parts = _merge_glides(parts, found, y=y, rate=rate, shift=shift)
+    parts = line_fit.merge_glides(lines, y=y, rate=rate, shift=shift, duration=duration)
+    parts = [p for p in parts if p.amplitude > 0]
+    if not parts:
+        return ()
     top = max(p.amplitude for p in parts)
     kept = []
     for p in parts:
         level = 20 * math.log10(p.amplitude / top)
         if level >= floor_db:
-            kept.append(Partial(**{**p.__dict__, "level_db": level}))
+            members = tuple(Partial(**{**m.__dict__, "level_db": 20 * math.log10(m.amplitude / top)})
+                            for m in p.members)
+            kept.append(Partial(**{**p.__dict__, "level_db": level, "members": members}))
     if max_partials is not None:
         kept = sorted(kept, key=lambda p: -p.amplitude)[:max_partials]
     return tuple(sorted(kept, key=lambda p: p.frequency))
@@ -346,68 +309,6 @@ def _synthesise(s: np.ndarray, c: np.ndarray, *, n: int, rate: float,
         weights = 2.0 * c * np.exp(s * (start / rate))
         out[start:stop] = np.real(weights @ table[:, : stop - start])
     return out
-
-
-def _partial(c: esprit.Component, shift: float) -> Partial:
-    """A band component as a partial, its amplitude carried to the reference time."""
-    flags = []
-    if c.decay_rate <= 0:
-        flags.append("steady")
-    elif LN1000 / c.decay_rate < esprit.FAST_T60_S:
-        flags.append("fast")
-    return Partial(frequency=c.frequency, amplitude=c.amplitude * math.exp(-c.decay_rate * shift),
-                   decay_rate=c.decay_rate, flags=tuple(flags))
-
-
-def _merge_glides(parts, comps, *, y, rate, shift) -> list[Partial]:
-    """Replace the comb of components along each gliding partial by that one partial."""
-    top = max(p.amplitude for p in parts)
-    order = sorted(range(len(parts)), key=lambda i: -parts[i].amplitude)
-    used: set[int] = set()
-    out: list[Partial] = []
-    t_ref = max(shift, 0.0)
-    tracked = [i for i in order if parts[i].amplitude >= top * 10 ** (GLIDE_TRACK_DB / 20)
-               and parts[i].t60 is not None and parts[i].t60 >= GLIDE_MIN_T60_S]
-    if not tracked:
-        return parts
-    ranges: list[tuple[float, float]] = []
-    shared = frames(y, rate=rate, t_from=t_ref,
-                    f_max=1.6 * max(parts[i].frequency for i in tracked) + 10.0)
-    for i in order:
-        if i in used:
-            continue
-        p = parts[i]
-        if p.amplitude < top * 10 ** (GLIDE_TRACK_DB / 20) or p.t60 is None or \
-                p.t60 < GLIDE_MIN_T60_S:
-            continue
-        # anchor where the partial has fallen 15 dB: late enough to have settled
-        anchor = min(15.0 / 60.0 * p.t60, 0.6 * y.size / rate)
-        tr = track(y, frequency=p.frequency, rate=rate, t_from=t_ref, anchor_s=anchor,
-                   shared=shared)
-        if tr is None or not tr.is_glide or any(lo_ <= tr.settled <= hi_ for lo_, hi_ in ranges):
-            continue
-        lo = tr.settled - max(1.5, 3.0 * tr.wobble)
-        hi = float(np.max(tr.frequencies[:2])) + max(1.5, 0.02 * tr.initial)
-        members = [j for j in range(len(parts)) if j not in used and lo <= parts[j].frequency <= hi]
-        if len(members) < 1:
-            continue
-        used.update(members)
-        ranges.append((lo, hi))
-        out.append(_glide_partial([comps[j] for j in members], tr, shift))
-    out += [p for j, p in enumerate(parts) if j not in used]
-    return out
-
-
-def _glide_partial(comps, tr: Track, shift: float) -> Partial:
-    """One partial from the comb that fits a glide: the comb's sum at the reference time."""
-    s = np.array([-c.decay_rate + 2j * np.pi * c.frequency for c in comps])
-    a = np.array([c.amplitude * np.exp(1j * c.phase) for c in comps])
-    amplitude = float(abs(np.sum(a * np.exp(s * shift))))
-    # decay rate: the comb's, weighted by each component's energy at the reference time
-    weight = np.abs(a * np.exp(s * shift)) ** 2
-    rate = float(np.sum(weight * np.maximum(-s.real, 0.0)) / np.sum(weight))
-    return Partial(frequency=tr.initial, amplitude=amplitude, decay_rate=rate,
-                   glide_cents=tr.cents, settled_frequency=tr.settled, flags=("glide",))
 
 
 def decay_spectrum(recording: Recording, analysis: Analysis) -> tuple[np.ndarray, np.ndarray]:

@@ -85,6 +85,49 @@ def duct_terms(k, gamma, depth: float):
     return -coth / mu, -csch / mu
 
 
+def plane_wave_stiffness(omega: complex, *, volume_displacements, radius: float, depth: float,
+                         density: float, sound_speed: float) -> tuple[complex, complex]:
+    r"""The duct's plane-wave (m = 0, q = 0) term of S as one number, and its omega-derivative.
+
+    For heads of outward volume displacements :math:`W_i = \int w_i\,dA` (one for a kettle, two
+    for a shell) the q = 0 term of :meth:`Duct.matrix` (:math:`\psi = 1`,
+    :math:`\|\psi\|^2 = a^2/2`, :math:`\langle w,\psi\rangle = W/2\pi`) is
+
+    .. math:: S = \frac{\rho\,\omega^2}{\pi a^2}\Big[f_{\cot}\sum_i W_i^2
+              + 2 f_{\csc} W_1 W_2\Big],
+
+    with :math:`f_{\cot}, f_{\csc}` = :func:`duct_terms` at :math:`\gamma = 0` (cot kL / k,
+    csc kL / k); at low frequency :math:`\rho c^2 W_1^2 / V` for a kettle, the lumped air spring.
+
+    Parameters
+    ----------
+    omega : complex
+        Angular frequency in rad/s.
+    volume_displacements : sequence of complex
+        W_1 (the struck head) and, for a shell, W_2, in m^2 per unit modal coordinate.
+    radius, depth : float
+        Duct radius a and length L in m.
+    density, sound_speed : float
+        Air in the body, kg/m^3 and m/s.
+
+    Returns
+    -------
+    (complex, complex)
+        S in N/m and dS/domega in N s/m.
+    """
+    w = tuple(complex(v) for v in volume_displacements) + (0j,)
+    self_, cross = w[0] * w[0] + w[1] * w[1], 2 * w[0] * w[1]
+    k = complex(omega) / sound_speed
+    fcot, fcsc = (complex(f[0, 0]) for f in duct_terms(k, [0.0], depth))
+    # d/dk [cot kL / k] = -f_cot/k - L k f_csc^2;  d/dk [csc kL / k] = -f_csc/k - L k f_csc f_cot
+    dcot, dcsc = -fcot / k - depth * k * fcsc * fcsc, -fcsc / k - depth * k * fcsc * fcot
+    scale = density / (np.pi * radius * radius)
+    value = scale * omega * omega * (fcot * self_ + fcsc * cross)
+    slope = scale * (2 * omega * (fcot * self_ + fcsc * cross)
+                     + omega * omega / sound_speed * (dcot * self_ + dcsc * cross))
+    return value, slope
+
+
 class Duct:
     """The interior of a kettle or shell for one angular order, ready to evaluate.
 

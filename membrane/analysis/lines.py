@@ -1,0 +1,268 @@
+"""From the damped exponentials of a band to its physical lines: one partial per line.
+
+A band's fit by damped exponentials is exact for partials that decay exponentially at one
+frequency. A real line often does not: its envelope rises for a while after the strike
+(energy still flowing in from other modes and the air), or its frequency glides down as
+the head settles. The fit then spends several components on that one line, close
+together in frequency and partly cancelling one another; read one by one, they give a
+comb of partials with inflated levels and wrong decay times.
+
+Two lines of a band (at first, each component is one) are taken as one line when they are
+not resolved by their envelopes: they beat fewer than once while the longer-lived of the two
+rings, ``|f_a - f_b| * max(T60_a, T60_b) < 1`` (:data:`MIN_BEATS`), both ringing at least
+:data:`.esprit.FAST_T60_S` (a faster component is flagged ``fast`` and left as it is: its
+frequency and decay are uncertain already). Two halves of a split mode that beat within
+their ring stay two partials. Only components of one band (fitted together) are grouped. A
+line is reported with
+
+- its *level and decay time from the line's own envelope*: the envelope is the magnitude of
+  the sum of its components over the analysed decay, and the reported exponential
+  ``A exp(-r t)`` is the one with the same energy and the same energy centroid in time
+  over that stretch (the decay's first two time moments). For a single exponential this
+  is the exponential itself; for a line that rises and falls, or for an unresolved pair,
+  it is the exponential that puts the same energy into a long-window spectrum, which is
+  what such a spectrum measures;
+- its *frequency*: the energy-weighted mean of the line's instantaneous frequency over the
+  decay (:func:`mean_frequency`), or, for a line that falls by at least
+  :data:`.glide.GLIDE_MIN_CENTS` from its first :data:`INITIAL_S` to its stretch after
+  :data:`SETTLED_FROM_S`, that glide (initial and settled frequencies).
+
+Gliding lines (:mod:`.glide`) are merged the same way, over the comb that follows the
+glide.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import scipy.optimize
+
+from . import esprit
+from ..notation import cents
+from .glide import GLIDE_MIN_CENTS, Track, frames, track
+from .partial import LN1000, Partial
+
+MIN_BEATS = 1.0  # lines beating fewer times than this while they ring are one line
+INITIAL_S = 0.1  # a line's initial frequency: over this long from the reference time [s]
+#                  (what a 0.1 s window there would show)
+SETTLED_FROM_S = 0.3  # its settled frequency: from this time on [s] (a struck head's glide
+#                       is mostly over by a few tenths of a second; common practice, no source)
+GLIDE_TRACK_DB = -30.0  # lines this strong (re the strongest) are tracked for glide
+GLIDE_MIN_T60_S = 0.2  # and ring at least this long
+
+
+def group(comps: list[esprit.Component], *, duration: float) -> list[list[esprit.Component]]:
+    """Components of one band grouped into lines (see the module's docstring).
+
+    Lines are merged two at a time, the pair that beats least first, each line taken with
+    the frequency and decay of its own envelope (:func:`mean_frequency`,
+    :func:`envelope_fit`), until no two lines meet the rule.
+
+    Parameters
+    ----------
+    comps : list of Component
+        The band's components.
+    duration : float
+        The analysed decay [s].
+    """
+    lines = [[c] for c in sorted(comps, key=lambda c: c.frequency)]
+
+    def summary(line):
+        r = envelope_fit(line, duration=duration)[1]
+        # its own ring, not capped by the recording: a model of exponentials resolves two
+        # clean lines that beat within their ring from a shorter stretch of it
+        ring = LN1000 / r if r > 0 else math.inf
+        return mean_frequency(line, 0.0, duration), ring
+
+    info = [summary(line) for line in lines]
+    while len(lines) > 1:
+        best = None
+        for i in range(len(lines)):
+            for j in range(i + 1, len(lines)):
+                (fi, ti), (fj, tj) = info[i], info[j]
+                beats = abs(fi - fj) * max(ti, tj)
+                if beats < MIN_BEATS and min(ti, tj) >= esprit.FAST_T60_S:
+                    if best is None or beats < best[0]:
+                        best = (beats, i, j)
+        if best is None:
+            break
+        _, i, j = best
+        lines[i] = lines[i] + lines.pop(j)
+        info.pop(j)
+        info[i] = summary(lines[i])
+    return lines
+
+
+def _pair_integrals(sig: np.ndarray, t1: float, t2: float) -> tuple[np.ndarray, np.ndarray]:
+    """Integrals of exp(sig t) and t exp(sig t) over [t1, t2], element by element."""
+    with np.errstate(all="ignore"):
+        small = np.abs(sig) * max(abs(t1), abs(t2)) < 1e-7
+        safe = np.where(small, 1.0, sig)
+        e1, e2 = np.exp(sig * t1), np.exp(sig * t2)
+        i0 = np.where(small, t2 - t1, (e2 - e1) / safe)
+        i1 = np.where(small, 0.5 * (t2 * t2 - t1 * t1),
+                      (e2 * (safe * t2 - 1.0) - e1 * (safe * t1 - 1.0)) / safe ** 2)
+    return i0, i1
+
+
+def _poles(comps):
+    s = np.array([-c.decay_rate + 2j * math.pi * c.frequency for c in comps])
+    a = np.array([c.amplitude * np.exp(1j * c.phase) for c in comps])
+    return s, a
+
+
+def mean_frequency(comps: list[esprit.Component], t1: float, t2: float) -> float:
+    """The line's energy-weighted instantaneous frequency over [t1, t2] [Hz].
+
+    For ``z = sum a_k exp(s_k t)`` it is ``Im(int conj(z) z' dt) / (2 pi int |z|^2 dt)``, the
+    mean of the phase's rate of change weighted by the envelope squared (closed-form).
+    """
+    if len(comps) == 1:
+        return comps[0].frequency
+    s, a = _poles(comps)
+    sig = np.conj(s)[:, None] + s[None, :]
+    i0, _ = _pair_integrals(sig, t1, t2)
+    w = np.conj(a)[:, None] * a[None, :] * i0
+    power = float(np.real(np.sum(w)))
+    if not power > 0:
+        return float(np.mean([c.frequency for c in comps]))
+    return float(np.imag(np.sum(w * s[None, :])) / (2 * math.pi * power))
+
+
+def envelope_fit(comps: list[esprit.Component], *, duration: float) -> tuple[float, float]:
+    """The exponential ``A exp(-r t)`` with the energy and energy centroid of the line.
+
+    The line is ``sum_k a_k exp(s_k t)`` (complex amplitudes ``a_k`` of the real partial,
+    ``s_k = -r_k + i 2 pi f_k``) over ``0 <= t <= duration``; its energy and first time
+    moment are closed-form sums over pairs of components.
+
+    Returns
+    -------
+    amplitude : float
+        ``A``, at the start of the decay (full scale = 1).
+    rate : float
+        ``r`` [1/s]; 0 when the line's energy does not lean towards the start (it rises
+        as much as it falls).
+    """
+    if len(comps) == 1:
+        return comps[0].amplitude, comps[0].decay_rate
+    s, a = _poles(comps)
+    T = duration
+    i0, i1 = _pair_integrals(s[:, None] + np.conj(s)[None, :], 0.0, T)
+    w = a[:, None] * np.conj(a)[None, :]
+    e0 = float(np.real(np.sum(w * i0)))
+    e1 = float(np.real(np.sum(w * i1)))
+    if not e0 > 0:
+        return 0.0, 0.0
+    centroid = e1 / e0
+
+    def mean_time(r):  # centroid of exp(-2 r t) over [0, T]
+        x = 2.0 * r * T
+        if x < 1e-8:
+            return T / 2
+        return 1.0 / (2.0 * r) - (T / math.expm1(x) if x < 700.0 else 0.0)
+
+    if centroid >= 0.5 * T * (1 - 1e-9):
+        return math.sqrt(e0 / T), 0.0
+    # no line dies faster than the fastest component the bands resolve
+    centroid = max(centroid, 0.5 / esprit.FASTEST_RATE)
+    hi = 1.0
+    while mean_time(hi) > centroid:
+        hi *= 4.0
+    r = scipy.optimize.brentq(lambda v: mean_time(v) - centroid, 0.0, hi, xtol=1e-9, rtol=1e-10)
+    return math.sqrt(e0 / _ring(r, T)), float(r)
+
+
+def line_partial(comps: list[esprit.Component], *, shift: float, duration: float) -> Partial:
+    """One partial for a line: its envelope's exponential carried ``shift`` [s] on from the
+    start of the decay to the reference time.
+
+    A line of several components also has its frequency from the model of the line: the
+    energy-weighted frequency over the decay, or, when the line falls by at least
+    :data:`.glide.GLIDE_MIN_CENTS` from its first :data:`INITIAL_S` after the reference
+    time to its stretch from :data:`SETTLED_FROM_S` on, a glide between the two.
+    """
+    amplitude, rate = envelope_fit(comps, duration=duration)
+    flags = []
+    if rate <= 0:
+        flags.append("steady")
+    elif LN1000 / rate < esprit.FAST_T60_S:
+        flags.append("fast")
+    amplitude *= math.exp(-rate * shift)
+    if len(comps) == 1:
+        return Partial(frequency=comps[0].frequency, amplitude=amplitude, decay_rate=rate,
+                       flags=tuple(flags))
+    t0 = min(max(shift, 0.0), 0.5 * duration)
+    initial = mean_frequency(comps, t0, min(duration, t0 + INITIAL_S))
+    settled = mean_frequency(comps, min(SETTLED_FROM_S, 0.5 * duration), duration)
+    glide = cents(settled, initial)
+    if glide <= -GLIDE_MIN_CENTS:
+        return Partial(frequency=initial, amplitude=amplitude, decay_rate=rate,
+                       glide_cents=float(glide), settled_frequency=settled,
+                       flags=("glide",) + tuple(flags))
+    members = tuple(line_partial([c], shift=shift, duration=duration) for c in comps)
+    return Partial(frequency=mean_frequency(comps, 0.0, duration), amplitude=amplitude,
+                   decay_rate=rate, flags=tuple(flags), members=members)
+
+
+def _ring(r: float, duration: float) -> float:
+    """Integral of exp(-2 r t) over the decay [s]."""
+    x = 2.0 * r * duration
+    return duration if abs(x) < 1e-8 else -math.expm1(-x) / (2.0 * r)
+
+
+def merge_glides(lines: list[list[esprit.Component]], *, y: np.ndarray, rate: float,
+                 shift: float, duration: float) -> list[Partial]:
+    """A partial per line, the lines along each gliding partial merged into that one partial.
+
+    Each strong, ringing line (within :data:`GLIDE_TRACK_DB` of the strongest, T60 above
+    :data:`GLIDE_MIN_T60_S`), strongest first, has its frequency tracked over the decay
+    (:func:`.glide.track`); when it glides, every line between its settled frequency and
+    its initial one is part of it.
+    """
+    parts = [line_partial(c, shift=shift, duration=duration) for c in lines]
+    if not parts:
+        return []
+    top = max(p.amplitude for p in parts)
+    order = sorted(range(len(parts)), key=lambda i: -parts[i].amplitude)
+    tracked = [i for i in order if parts[i].amplitude >= top * 10 ** (GLIDE_TRACK_DB / 20)
+               and parts[i].t60 is not None and parts[i].t60 >= GLIDE_MIN_T60_S]
+    if not tracked:
+        return parts
+    t_ref = max(shift, 0.0)
+    used: set[int] = set()
+    out: list[Partial] = []
+    ranges: list[tuple[float, float]] = []
+    shared = frames(y, rate=rate, t_from=t_ref,
+                    f_max=1.6 * max(parts[i].frequency for i in tracked) + 10.0)
+    for i in tracked:
+        if i in used:
+            continue
+        p = parts[i]
+        # anchor where the partial has fallen 15 dB: late enough to have settled
+        anchor = min(15.0 / 60.0 * p.t60, 0.6 * y.size / rate)
+        tr = track(y, frequency=p.frequency, rate=rate, t_from=t_ref, anchor_s=anchor,
+                   shared=shared)
+        if tr is None or not tr.is_glide or any(lo_ <= tr.settled <= hi_ for lo_, hi_ in ranges):
+            continue
+        lo = tr.settled - max(1.5, 3.0 * tr.wobble)
+        hi = float(np.max(tr.frequencies[:2])) + max(1.5, 0.02 * tr.initial)
+        members = [j for j in range(len(parts)) if j not in used and lo <= parts[j].frequency <= hi]
+        if not members:
+            continue
+        used.update(members)
+        ranges.append((lo, hi))
+        comps = [c for j in members for c in lines[j]]
+        out.append(_glide_partial(comps, tr, shift=shift, duration=duration))
+    out += [p for j, p in enumerate(parts) if j not in used]
+    return out
+
+
+def _glide_partial(comps, tr: Track, *, shift: float, duration: float) -> Partial:
+    """One partial from the comb that fits a glide: the comb's envelope, the track's
+    initial and settled frequencies."""
+    p = line_partial(comps, shift=shift, duration=duration)
+    return Partial(frequency=tr.initial, amplitude=p.amplitude, decay_rate=p.decay_rate,
+                   glide_cents=tr.cents, settled_frequency=tr.settled,
+                   flags=("glide",) + p.flags)
