@@ -31,9 +31,9 @@ DECAY = {(mo.m, mo.n): mo.decay for mo in FULL.modes if mo.kind == "head"}
 # played at a tension the drum file does not know (3600 N/m) ...
 TRUE_TENSION = 3600.0
 heard = membrane.solve(drum.with_tension(TRUE_TENSION), physics="stiff", m_max=4, n_max=2)
-partials = membrane.strike(heard, strike=membrane.Strike(at=0.75))
+partials = membrane.strike(heard, strike=membrane.Strike(radius_fraction=0.75))
 RATE = 16000
-sound = membrane.synthesize(partials, rate=RATE, seconds=1.5, contact_time=1.5e-3, assume_t60=2.0)
+sound = membrane.synthesise(partials, rate=RATE, seconds=1.5, contact_time=1.5e-3, assume_t60=2.0)
 recording = membrane.Recording(samples=np.concatenate([np.zeros(RATE // 20), sound]), rate=float(RATE),
                                channels=1, encoding="synthetic")
 

@@ -17,7 +17,7 @@ Drums
     load_drum, parse_drum, builtin_names -- the drum file (TOML) and the built-in examples
 Modes
     solve -- the modes of a drum under "ideal", "stiff" or "full" physics -> ModeSet
-    Mode, ModeSet, HarmonicFit (ModeSet.harmonic_fit), harmonic_series (raw frequencies)
+    Mode, ModeSet, HarmonicFit (ModeSet.harmonic_fit), harmonic_series (raw frequencies -> a tuple)
 Tuning
     tension_for, Tuning, Target -- the tension that puts modes on target pitches
     tune_heads, HeadTarget, Interval, HeadsTuning -- both heads of a shell
@@ -28,7 +28,9 @@ Recordings
     identify, Identification -- partials -> (m, n) labels and the fitted tension
     fit_losses -- the loss parameters a recording implies
 Striking and listening
-    strike (strike_partials), Strike, Listener, best_strike_radius, synthesize, save_wav
+    strike (strike_partials), Strike, Listener, SoundingMode -- a mode as heard at the listener
+    best_strike_radius, StrikeAdvice -- the strike point that favours chosen modes
+    synthesise, save_wav -- the sounding modes as samples and a WAV file
 Uneven tension
     split_table, estimate_lugs, prescribe_turns
 Notation
@@ -51,7 +53,6 @@ _WHERE = {
     "load_drum": "drumfile", "parse_drum": "drumfile", "builtin_names": "drumfile",
     # modes
     "HarmonicFit": "harmonics", "Mode": "modes", "ModeSet": "modes", "harmonic_series": "harmonics",
-    "harmonic_fit": "harmonics",  # the older name of harmonic_series
     "solve": "solver",
     # tuning
     "tension_for": "tuning", "Tuning": "tuning", "Target": "tuning", "equalise_lugs": "tuning",
@@ -63,8 +64,9 @@ _WHERE = {
     "Recording": "analysis",
     "Identification": "identify", "fit_losses": "loss_fit",
     # striking and listening
-    "strike_partials": "strike", "Strike": "strike", "Listener": "strike", "best_strike_radius": "strike",
-    "synthesize": "audio", "save_wav": "audio",
+    "strike_partials": "strike", "Strike": "strike", "Listener": "strike", "SoundingMode": "strike",
+    "best_strike_radius": "strike_point", "StrikeAdvice": "strike_point",
+    "synthesise": "audio", "save_wav": "audio",
     # uneven tension
     "estimate_lugs": "lugs", "prescribe_turns": "lugs", "split_table": "lugs",
     # notation
@@ -76,6 +78,10 @@ _WHERE = {
 # membrane.identify(drum, partials) and membrane.strike(modeset, strike=...).
 _CALLABLE_MODULES = ("identify", "strike")
 __all__ = sorted([*_WHERE, *_CALLABLE_MODULES, "__version__"])
+# Older names, still resolved with a DeprecationWarning (membrane.renamed): one spelling per
+# concept in the API.
+_RENAMED = {"harmonic_fit": "harmonic_series",  # returned a tuple beside ModeSet.harmonic_fit's HarmonicFit
+            "synthesize": "synthesise"}  # the project writes -ise (analyse, equalise_lugs)
 
 
 def __getattr__(name: str):
@@ -85,6 +91,10 @@ def __getattr__(name: str):
         return value
     if name in _CALLABLE_MODULES:
         return import_module(f".{name}", __name__)
+    if name in _RENAMED:
+        from .renamed import warn_renamed
+        warn_renamed(f"membrane.{name}", f"membrane.{_RENAMED[name]}")
+        return __getattr__(_RENAMED[name])
     raise AttributeError(f"module 'membrane' has no attribute {name!r}")
 
 

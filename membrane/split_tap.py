@@ -21,7 +21,7 @@ from .strike import Listener, Strike, strike_partials
 
 def split_partials(modeset: ModeSet, table: SplitTable, *, strike: Strike = Strike(),
                    listener: Listener = Listener()) -> list:
-    """Partials of a tap on the uneven head, ready for :func:`membrane.strike.synthesize`.
+    """Partials of a tap on the uneven head, ready for :func:`membrane.audio.synthesise`.
 
     Parameters
     ----------
@@ -34,7 +34,7 @@ def split_partials(modeset: ModeSet, table: SplitTable, *, strike: Strike = Stri
 
     Returns
     -------
-    list of membrane.strike.Partial
+    list of membrane.strike.SoundingMode
     """
     phi = strike.angle if listener.azimuth is None else listener.azimuth
     theta0 = strike.angle

@@ -34,9 +34,36 @@ def test_short_reprs():
     drum = membrane.load_drum("kettledrum")
     modes = membrane.solve(drum, physics="stiff", m_max=2, n_max=2)
     tuning = membrane.tension_for(drum, targets=[((1, 1), membrane.parse_pitch("D3"))], physics="stiff")
-    partials = membrane.strike(modes, strike=membrane.Strike(at=0.25))
+    partials = membrane.strike(modes, strike=membrane.Strike(radius_fraction=0.25))
     for obj in (modes, modes.find(1, 1), tuning, partials[0]):
         text = repr(obj)
         assert len(text) < 300, text
     assert "(1,1)" in repr(modes.find(1, 1)) and "stiff physics" in repr(modes)
     assert "N/m" in repr(tuning)
+
+
+def test_one_spelling_and_the_old_names_still_resolve():
+    # renamed names: one spelling in the API (-ise, SoundingMode, radius_fraction); the old
+    # ones still work and say what they are now (common practice, no source)
+    import membrane.audio
+    import membrane.strike
+
+    assert "synthesise" in membrane.__all__ and "synthesize" not in membrane.__all__
+    assert "harmonic_fit" not in membrane.__all__  # its tuple differed from ModeSet.harmonic_fit's
+    for module, old, new in ((membrane, "synthesize", "synthesise"), (membrane.audio, "synthesize", "synthesise"),
+                             (membrane.strike, "Partial", "SoundingMode"),
+                             (membrane, "harmonic_fit", "harmonic_series")):
+        with pytest.warns(DeprecationWarning, match=new):
+            assert getattr(module, old) is getattr(module, new)
+    with pytest.warns(DeprecationWarning, match="radius_fraction"):
+        strike = membrane.Strike(at=0.4)
+    assert strike == membrane.Strike(radius_fraction=0.4) == membrane.Strike(0.4)
+    with pytest.warns(DeprecationWarning, match="radius_fraction"):
+        assert strike.at == 0.4
+    with pytest.raises(AttributeError):
+        membrane.strike.no_such_name
+    # the two kinds of partial are different classes with different names
+    assert membrane.SoundingMode is not membrane.analysis.Partial
+    # a fit over named modes and over raw frequencies: HarmonicFit from the ModeSet
+    modes = membrane.solve(membrane.load_drum("kettledrum"), physics="ideal", m_max=5, n_max=1)
+    assert isinstance(modes.harmonic_fit(), membrane.HarmonicFit)

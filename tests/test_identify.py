@@ -131,11 +131,11 @@ def test_too_few_partials_is_an_input_error(kettle):
 def tap(kettle, tmp_path_factory):
     """The stiff model at 4400 N/m struck at r/a = 0.75, 3 s at 48 kHz, 30 dB SNR, 16-bit."""
     from membrane.solver import solve
-    from membrane.strike import Strike, strike_partials, synthesize
+    from membrane.strike import Strike, strike_partials, synthesise
 
     modes = solve(kettle.with_tension(TRUE_TENSION), "stiff", m_max=12, n_max=4)
-    heard = strike_partials(modes, strike=Strike(at=0.75, contact_time=0.002))
-    x = synthesize(heard, rate=48000, seconds=3.0, contact_time=0.002, assume_t60=1.5)
+    heard = strike_partials(modes, strike=Strike(radius_fraction=0.75, contact_time=0.002))
+    x = synthesise(heard, rate=48000, seconds=3.0, contact_time=0.002, assume_t60=1.5)
     rng = np.random.default_rng(12)
     x = np.concatenate([np.zeros(4800), x])
     x = 0.5 * (x + rng.normal(0, np.sqrt(np.mean(x**2)) / 10 ** 1.5, x.size))
@@ -214,11 +214,11 @@ def test_a_soft_mallet_preview_with_full_physics_gives_the_tension(kettle, tmp_p
     # thumb) once gave a spurious fast component the band filter's start-up transient makes,
     # which took the level reference and pushed the real partials under the floor.
     from membrane.solver import solve
-    from membrane.strike import Strike, strike_partials, synthesize
+    from membrane.strike import Strike, strike_partials, synthesise
 
     modes = solve(kettle, "full")
-    heard = strike_partials(modes, strike=Strike(at=0.75, contact_time=3e-3))
-    x = synthesize(heard, rate=44100, seconds=4.0, contact_time=3e-3)
+    heard = strike_partials(modes, strike=Strike(radius_fraction=0.75, contact_time=3e-3))
+    x = synthesise(heard, rate=44100, seconds=4.0, contact_time=3e-3)
     path = tmp_path / "soft.wav"
     scipy.io.wavfile.write(path, 44100, np.round(x * 32767).astype(np.int16))
     analysis = analyse(read_wav(path))

@@ -72,12 +72,12 @@ def test_fit_through_the_recording_analysis_of_a_preview():
     import numpy as np
 
     from membrane.recording import Recording, analyse
-    from membrane.strike import synthesize, strike_partials
+    from membrane.strike import strike_partials, synthesise
 
     true = replace(KETTLE, losses=Losses(tension_loss_factor=3.5e-3))
     modes = solve(true, "full", m_max=5, n_max=1)
     rate = 8000
-    x = synthesize(strike_partials(modes), rate=rate, seconds=4.0, contact_time=1.5e-3)
+    x = synthesise(strike_partials(modes), rate=rate, seconds=4.0, contact_time=1.5e-3)
     found = analyse(Recording(samples=np.asarray(x, float), rate=float(rate), channels=1,
                               encoding="test"), floor_db=-60.0).partials
     matches = []

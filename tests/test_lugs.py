@@ -14,7 +14,7 @@ from membrane.lugs import (MeasuredSplit, apply_turns, estimate_lugs, measured_s
                            split_table)
 from membrane.physics.prestress import rim_tension
 from membrane.split_tap import split_partials
-from membrane.strike import Listener, Strike, save_wav, synthesize
+from membrane.strike import Listener, Strike, save_wav, synthesise
 
 HEAD = Head(radius=0.3302, tension=4000.0, areal_density=0.2641)  # invented 26-inch head
 DRUM = Drum(head=HEAD, name="invented test head")
@@ -39,7 +39,7 @@ def tap(tmp_path_factory):
     # strike and listener off the lugs and off each other, so both members of each pair sound
     parts = split_partials(modes, table, strike=Strike(angle=math.radians(20)),
                            listener=Listener(azimuth=math.radians(65)))
-    sound = synthesize(parts, rate=44100, seconds=4.0, contact_time=0.002, assume_t60=3.0)
+    sound = synthesise(parts, rate=44100, seconds=4.0, contact_time=0.002, assume_t60=3.0)
     path = tmp_path_factory.mktemp("tap") / "uneven.wav"
     save_wav(path, sound, rate=44100)
     return path, rim, table, parts

@@ -23,7 +23,7 @@ from membrane.drum import load_drum
 from membrane.modes import ModeSet
 from membrane.solver import solve
 from membrane.strike import (MALLETS, Listener, Strike, best_strike_radius, pulse_spectrum,
-                             save_wav, strike_partials, synthesize)
+                             save_wav, strike_partials, synthesise)
 
 runner = CliRunner()
 KETTLE = load_drum("kettledrum")
@@ -57,7 +57,7 @@ def test_half_sine_spectrum_matches_quadrature(x):
 
 # ----------------------------------------------------------------------------- where it is struck
 def test_centre_strike_excites_only_axisymmetric_modes(stiff):
-    lev = levels(strike_partials(stiff, strike=Strike(at=0.0)))
+    lev = levels(strike_partials(stiff, strike=Strike(radius_fraction=0.0)))
     for (m, n), value in lev.items():
         if m >= 1:
             assert value < -120
@@ -67,11 +67,11 @@ def test_centre_strike_excites_only_axisymmetric_modes(stiff):
 def test_strike_on_the_nodal_circle_of_0_2_leaves_it_silent(ideal):
     # exact node r/a = j01/j02 from scipy's Bessel zeros (A&S Table 9.5)
     j0 = scipy.special.jn_zeros(0, 2)
-    lev = levels(strike_partials(ideal, strike=Strike(at=j0[0] / j0[1])))
+    lev = levels(strike_partials(ideal, strike=Strike(radius_fraction=j0[0] / j0[1])))
     assert lev[(0, 2)] < -120
     assert lev[(0, 1)] > -20 and lev[(0, 3)] > -40
     # A&S Table 9.5: (0,2) nodal circle at r/a = j01/j02 = 0.4357 (4 digits: about 70 dB down, not silent)
-    lev = levels(strike_partials(ideal, strike=Strike(at=0.4357)))
+    lev = levels(strike_partials(ideal, strike=Strike(radius_fraction=0.4357)))
     assert lev[(0, 2)] < -60 and lev[(0, 1)] > -20
 
 
@@ -95,7 +95,7 @@ def test_far_field_matches_a_direct_rayleigh_integral(ideal):
     quadrature and the undamped oscillator's response Q = phi(r0) F(omega) / (M omega)."""
     drum = ideal.drum
     a, sigma, rho, c = drum.head.radius, drum.head.areal_density, drum.air.density, drum.air.sound_speed
-    strike, far = Strike(at=0.6, angle=0.5, contact_time=1.2e-3), 400.0
+    strike, far = Strike(radius_fraction=0.6, angle=0.5, contact_time=1.2e-3), 400.0
     listener = Listener(angle=math.radians(50), distance=far, azimuth=0.9)
     got = {(p.mode.m, p.mode.n): p for p in strike_partials(ideal, strike=strike, listener=listener)}
     xg, wg = np.polynomial.legendre.leggauss(80)
@@ -114,7 +114,7 @@ def test_far_field_matches_a_direct_rayleigh_integral(ideal):
         force = lambda t: math.pi / (2 * tc) * math.sin(math.pi * t / tc)  # noqa: E731
         f_hat = complex(scipy.integrate.quad(lambda t: force(t) * math.cos(w * t), 0, tc)[0],
                         scipy.integrate.quad(lambda t: -force(t) * math.sin(w * t), 0, tc)[0])
-        q = scipy.special.jv(m, alpha * strike.at * a) * f_hat / (mass * w)
+        q = scipy.special.jv(m, alpha * strike.radius_fraction * a) * f_hat / (mass * w)
         pol, az = listener.angle, listener.azimuth
         point = far * np.array([math.sin(pol) * math.cos(az), math.sin(pol) * math.sin(az), math.cos(pol)])
         dist = np.sqrt((point[0] - R * np.cos(TH)) ** 2 + (point[1] - R * np.sin(TH)) ** 2 + point[2] ** 2)
@@ -239,7 +239,7 @@ def test_harder_mallets_raise_high_partials_monotonically(physics, request):
 
 
 def test_bad_strike_values_are_refused():
-    for bad in (dict(at=-0.1), dict(at=1.2), dict(contact_time=-1e-3), dict(contact_time=0.0)):
+    for bad in (dict(radius_fraction=-0.1), dict(radius_fraction=1.2), dict(contact_time=-1e-3), dict(contact_time=0.0)):
         with pytest.raises(ValueError):
             Strike(**bad)
 
@@ -251,14 +251,14 @@ def test_best_strike_radius_is_the_maximum_of_its_objective(ideal):
     # brute force over a fine grid, computing the objective from the level table directly
     best, best_at = -np.inf, None
     for at in np.linspace(0.05, 0.95, 121):
-        pw = {(p.mode.m, p.mode.n): abs(p.pressure) ** 2 for p in strike_partials(ideal, strike=Strike(at=at))}
+        pw = {(p.mode.m, p.mode.n): abs(p.pressure) ** 2 for p in strike_partials(ideal, strike=Strike(radius_fraction=at))}
         num = sum(v for k, v in pw.items() if k in chosen)
         den = sum(v for k, v in pw.items() if k not in chosen)
         if 10 * math.log10(num / den) > best:
             best, best_at = 10 * math.log10(num / den), at
     assert advice.contrast_db >= best - 1e-6
     assert advice.contrast_db < best + 0.01
-    assert advice.at == pytest.approx(best_at, abs=0.01)
+    assert advice.radius_fraction == pytest.approx(best_at, abs=0.01)
 
 
 @pytest.fixture(scope="module")
@@ -282,7 +282,7 @@ def test_best_strike_radius_of_the_kettledrum_for_the_m1_modes(full):
     advice = best_strike_radius(heads, modes=[(1, 1), (2, 1), (3, 1), (4, 1)])
     circles = [scipy.special.jn_zeros(m, n)[n - 2] / scipy.special.jn_zeros(m, n)[n - 1]
                for m, n in ((1, 2), (2, 2), (1, 3), (2, 3))]
-    assert min(circles) < advice.at < max(circles), (advice, circles)
+    assert min(circles) < advice.radius_fraction < max(circles), (advice, circles)
     # and there those four together are weak: their summed squared pressure is more than 10 dB
     # below its largest over strike radii 0.05..0.95 (the model gives -12 dB)
     four = ((1, 2), (2, 2), (1, 3), (2, 3))
@@ -290,7 +290,7 @@ def test_best_strike_radius_of_the_kettledrum_for_the_m1_modes(full):
     def power(partials):
         return sum(abs(p.pressure) ** 2 for p in partials if (p.mode.m, p.mode.n) in four)
 
-    most = max(power(strike_partials(heads, strike=Strike(at=at))) for at in np.linspace(0.05, 0.95, 19))
+    most = max(power(strike_partials(heads, strike=Strike(radius_fraction=at))) for at in np.linspace(0.05, 0.95, 19))
     assert power(advice.partials) < 0.1 * most
 
 
@@ -344,7 +344,7 @@ def checkable(partials, spacing=25.0):
 def test_wav_has_the_predicted_partials_and_decays(stiff, tmp_path, fmt):
     partials = strike_partials(with_decays(stiff))
     rate, seconds = 8000, 4.0
-    samples = synthesize(partials, rate=rate, seconds=seconds, contact_time=MALLETS["medium"])
+    samples = synthesise(partials, rate=rate, seconds=seconds, contact_time=MALLETS["medium"])
     path = tmp_path / f"preview-{fmt}.wav"
     save_wav(path, samples, rate=rate, sample_format=fmt)
     got_rate, data = scipy.io.wavfile.read(path)
@@ -360,7 +360,7 @@ def test_wav_has_the_predicted_partials_and_decays(stiff, tmp_path, fmt):
 
 def test_wav_from_full_physics_has_the_model_decays(full, tmp_path):
     partials = strike_partials(full)
-    samples = synthesize(partials, rate=8000, seconds=4.0, contact_time=MALLETS["medium"])
+    samples = synthesise(partials, rate=8000, seconds=4.0, contact_time=MALLETS["medium"])
     path = tmp_path / "full.wav"
     save_wav(path, samples, rate=8000)
     check = [p for p in checkable(partials) if 0.5 < p.decay < 20]
@@ -375,11 +375,11 @@ def test_synthesis_is_the_direct_sum_of_the_partials(full):
     import membrane.audio
     import membrane.strike
 
-    assert membrane.strike.synthesize is membrane.audio.synthesize  # the old name still works
+    assert membrane.strike.synthesise is membrane.audio.synthesise  # its old home still works
     assert membrane.strike.save_wav is membrane.audio.save_wav
     partials = strike_partials(full)
     rate, seconds, t_c = 22050, 1.3, MALLETS["hard"]
-    samples = synthesize(partials, rate=rate, seconds=seconds, contact_time=t_c)
+    samples = synthesise(partials, rate=rate, seconds=seconds, contact_time=t_c)
     t = np.arange(int(round(rate * seconds))) / rate
     direct = np.zeros_like(t)
     for p in partials:
@@ -412,8 +412,8 @@ def test_wav_file_is_byte_for_byte_what_scipy_writes(tmp_path, fmt):
 
 def test_vacuum_preview_needs_an_assumed_decay(stiff):
     with pytest.raises(ValueError, match="full"):
-        synthesize(strike_partials(stiff), rate=8000, seconds=0.5, contact_time=1e-3)
-    samples = synthesize(strike_partials(stiff), rate=8000, seconds=0.5, contact_time=1e-3, assume_t60=2.0)
+        synthesise(strike_partials(stiff), rate=8000, seconds=0.5, contact_time=1e-3)
+    samples = synthesise(strike_partials(stiff), rate=8000, seconds=0.5, contact_time=1e-3, assume_t60=2.0)
     assert samples.shape == (4000,) and np.isfinite(samples).all()
 
 

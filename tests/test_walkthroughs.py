@@ -72,7 +72,7 @@ def test_drum_maker(load):
     # the lug rule: tap pitch ~ sqrt(local tension), so the changes in cents bring every tap to one pitch
     for tap, change in zip(ex.drum.lugs.pitches, ex.LUG_CHANGES):
         assert tap * 2 ** (change.change_cents / 1200) == pytest.approx(ex.TAP_TARGET_HZ, rel=1e-9)
-    assert 0.0 < ex.ADVICE.at < 1.0
+    assert 0.0 < ex.ADVICE.radius_fraction < 1.0
 
 
 def test_readme_library_lines_run():

@@ -21,6 +21,7 @@ import numpy as np
 from ..errors import InputError
 from ..notation import LN1000
 from ..presets import PEAK_DBFS
+from ..renamed import old_names
 
 FADE_S = 0.01  # the raised-cosine fade at the end, s (ends the sound without a click)
 
@@ -64,7 +65,7 @@ def decaying_sum(amplitudes, omegas, n: int, rate: float) -> np.ndarray:
     return (starts @ within).imag.ravel()[:n]
 
 
-def synthesize(partials, *, rate: int, seconds: float, contact_time: float,
+def synthesise(partials, *, rate: int, seconds: float, contact_time: float,
                assume_t60: float | None = None) -> np.ndarray:
     """The decaying partials as a sound at the listener, peak-normalised to -1 dBFS.
 
@@ -75,7 +76,7 @@ def synthesize(partials, *, rate: int, seconds: float, contact_time: float,
 
     Parameters
     ----------
-    partials : iterable of membrane.strike.Partial
+    partials : iterable of membrane.strike.SoundingMode
         From :func:`membrane.strike.strike_partials` (frequency and T60 from each one's mode).
     rate : int
         Sample rate in Hz.
@@ -114,3 +115,6 @@ def synthesize(partials, *, rate: int, seconds: float, contact_time: float,
         raise InputError("strike", "silent", "no partial reaches the listener from this strike "
                          "(a strike on the rim, or every partial above the Nyquist frequency)")
     return out * (10 ** (PEAK_DBFS / 20) / peak)
+
+
+__getattr__ = old_names(__name__, {"synthesize": "synthesise"})

@@ -148,6 +148,7 @@ def strike(
         fail("--plot", plot, "must be a .png file")
     drum = drum_from(drum_file, **drum_flags)
     from .. import strike as model
+    from ..strike_point import best_strike_radius
     from ..solver import solve
 
     result = solve(drum, physics.value, m_max=m_max, n_max=n_max, losses=losses.value)
@@ -164,20 +165,20 @@ def strike(
             fail("--head", head, "must be struck or resonant")
         if head == "resonant" and drum.resonant_head is None:
             fail("--head", head, "this drum has no resonant head (only a shell has two heads)")
-        advice = model.best_strike_radius(result, modes=chosen, contact_time=t_c,
+        advice = best_strike_radius(result, modes=chosen, contact_time=t_c,
                                           listener=listener, angle=theta0, head=head)
-        partials, at = advice.partials, advice.at
+        partials, at = advice.partials, advice.radius_fraction
     else:
-        partials = model.strike_partials(result, strike=model.Strike(at=at, contact_time=t_c, angle=theta0),
+        partials = model.strike_partials(result, strike=model.Strike(radius_fraction=at, contact_time=t_c, angle=theta0),
                                          listener=listener)
     notes = list(result.notes) + [NOTE_MODEL, NOTE_LEVELS]
     if t60 is not None and out is not None:
         notes.append(f"decay not modelled by '{physics.value}' physics: every partial given T60 = {t60:g} s")
     wav = None
     if out is not None:
-        from ..audio import save_wav, synthesize
+        from ..audio import save_wav, synthesise
 
-        samples = synthesize(partials, rate=rate, seconds=seconds, contact_time=t_c, assume_t60=t60)
+        samples = synthesise(partials, rate=rate, seconds=seconds, contact_time=t_c, assume_t60=t60)
         write_atomic(out, lambda p: save_wav(p, samples, rate=rate, sample_format=wav_format),
                      force=force)
         dropped = [p.mode.label for p in partials if p.frequency >= rate / 2]
@@ -192,7 +193,7 @@ def strike(
              f"{listener_angle:g} deg off the axis at {distance:g} m")
     if advice is not None:
         title += (f"; best for {' '.join(mode_label(m, n) for m, n in advice.chosen)}"
-                  f"{' of the ' + head + ' head' if head else ''}: r/a = {advice.at:.3f}, "
+                  f"{' of the ' + head + ' head' if head else ''}: r/a = {advice.radius_fraction:.3f}, "
                   f"contrast {advice.contrast_db:+.1f} dB")
     payload = {
         "drum": drum.name, "physics": physics.value, "losses": losses.value,
@@ -205,7 +206,7 @@ def strike(
     if advice is not None:
         payload["best_for"] = {"modes": [{"m": m, "n": n, **({"head": head} if head else {})}
                                          for m, n in advice.chosen],
-                               "at": advice.at, "contrast_db": advice.contrast_db,
+                               "at": advice.radius_fraction, "contrast_db": advice.contrast_db,
                                "search_range": list(presets.SEARCH_RANGE)}
     if wav is not None:
         payload["wav"] = wav
@@ -213,7 +214,7 @@ def strike(
         from ..render.stills import save
         from ..render.strike_levels import strike_levels
 
-        figure = strike_levels(result, at=at, contact_time=t_c, listener=listener, angle=theta0,
+        figure = strike_levels(result, radius_fraction=at, contact_time=t_c, listener=listener, angle=theta0,
                                chosen=chosen, advice=advice, title=title, head=head)
         write_atomic(plot, lambda path: save(figure, path, dpi=120), force=force, key="--plot")
         payload["plot"] = str(plot)

@@ -57,8 +57,8 @@ def strike_advice(modeset):
     (StrikeAdvice or None, list of str)
         The advice (None without a fit or a strike model) and sentences saying it.
     """
-    from ..presets import DEFAULT_LISTENER_ANGLE
-    from ..strike import DEFAULT_MALLET, best_strike_radius
+    from ..presets import DEFAULT_LISTENER_ANGLE, DEFAULT_MALLET
+    from ..strike_point import best_strike_radius
     from ..errors import MembraneError
 
     fit = modeset.harmonic_fit()
@@ -73,8 +73,8 @@ def strike_advice(modeset):
     loud = sorted(advice.partials, key=lambda p: -p.level_db)[:5]
     heard = "; ".join(f"{p.mode.label} {p.level_db:+.0f} dB" for p in loud)
     return advice, [
-        f"To favour {names}, the modes of the harmonic fit, strike at r/a = {advice.at:.2f}: "
-        f"about {100 * a * (1 - advice.at):.0f} cm in from the rim, with a {DEFAULT_MALLET} mallet.",
+        f"To favour {names}, the modes of the harmonic fit, strike at r/a = {advice.radius_fraction:.2f}: "
+        f"about {100 * a * (1 - advice.radius_fraction):.0f} cm in from the rim, with a {DEFAULT_MALLET} mallet.",
         f"Struck there, these modes together are {advice.contrast_db:+.1f} dB against all the other "
         "modes together, the best contrast of any strike point.",
         f"Loudest partials there: {heard} (relative to the loudest).",
@@ -227,7 +227,7 @@ def strike_picture(ax, modeset, advice, *, fontsize: float = 9.0) -> None:
     ax.annotate("rim", (np.cos(2.4), np.sin(2.4)), xytext=(-14, 10), textcoords="offset points",
                 fontsize=fontsize - 1, color="0.2", ha="right")
     if advice is not None:
-        at = advice.at
+        at = advice.radius_fraction
         ax.add_patch(Circle((0, 0), at, fill=False, edgecolor="#b2182b", linewidth=1.0, linestyle=":"))
         ax.plot([at], [0.0], marker="X", color="#b2182b", markersize=13, markeredgecolor="white")
         cm = 100 * modeset.drum.head.radius * (1 - at)

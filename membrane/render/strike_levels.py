@@ -20,7 +20,7 @@ FLOOR_DB = -60.0  # levels drawn down to here (below, a partial is too quiet to 
 LINES = 10  # partials drawn: the chosen ones and the loudest of the rest, this many in all
 
 
-def strike_levels(result, *, at: float, contact_time: float, listener, angle: float, chosen=(),
+def strike_levels(result, *, radius_fraction: float, contact_time: float, listener, angle: float, chosen=(),
                   advice=None, title: str = "", head: str | None = None):
     """A matplotlib Figure of the partials' levels against the strike radius.
 
@@ -28,8 +28,8 @@ def strike_levels(result, *, at: float, contact_time: float, listener, angle: fl
     ----------
     result : membrane.modes.ModeSet
         Solved modes.
-    at : float
-        The strike radius used, fraction of the radius (marked).
+    radius_fraction : float
+        The strike radius used, r0/a (marked).
     contact_time : float
         Mallet contact time in s.
     listener : membrane.strike.Listener
@@ -38,7 +38,7 @@ def strike_levels(result, *, at: float, contact_time: float, listener, angle: fl
         Strike angle in rad.
     chosen : sequence of (int, int)
         Modes favoured by a strike-point search (drawn heavy).
-    advice : membrane.strike.StrikeAdvice or None
+    advice : membrane.strike_point.StrikeAdvice or None
         The search's result: adds the panel of its objective.
     title : str
         Title (wrapped to the width).
@@ -54,7 +54,7 @@ def strike_levels(result, *, at: float, contact_time: float, listener, angle: fl
     from ..strike import pressure_across_radius
 
     radii = np.linspace(0.0, 1.0, 201)
-    p = np.abs(pressure_across_radius(result, at=radii, contact_time=contact_time, listener=listener,
+    p = np.abs(pressure_across_radius(result, radius_fraction=radii, contact_time=contact_time, listener=listener,
                                       angle=angle))
     with np.errstate(divide="ignore", invalid="ignore"):
         db = np.maximum(20 * np.log10(p / p.max()), FLOOR_DB)
@@ -70,7 +70,7 @@ def strike_levels(result, *, at: float, contact_time: float, listener, angle: fl
         strong = id(mo) in ids
         ax.plot(radii, db[j], lw=2.2 if strong else 1.0, ls="-" if strong or not chosen else "--",
                 label=f"{mo.label} {mo.frequency:.0f} Hz")
-    ax.axvline(at, color="k", lw=0.8)
+    ax.axvline(radius_fraction, color="k", lw=0.8)
     ax.set_ylabel("level at the listener (dB re loudest)")
     ax.set_ylim(FLOOR_DB, 3)
     ax.legend(fontsize=7, loc="upper left", bbox_to_anchor=(1.01, 1.0))
@@ -81,7 +81,7 @@ def strike_levels(result, *, at: float, contact_time: float, listener, angle: fl
             mask = np.array([id(mo) in ids for mo in result])
             c = 10 * np.log10(power[mask].sum(0)) - 10 * np.log10(power[~mask].sum(0))
         axes[1, 0].plot(radii, c, color="k")
-        axes[1, 0].axvline(advice.at, color="k", lw=0.8)
+        axes[1, 0].axvline(advice.radius_fraction, color="k", lw=0.8)
         axes[1, 0].set_ylabel("chosen vs the rest (dB)")
         axes[1, 0].axvspan(0, SEARCH_RANGE[0], color="0.9")
         axes[1, 0].axvspan(SEARCH_RANGE[1], 1, color="0.9")
