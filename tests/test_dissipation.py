@@ -297,8 +297,8 @@ def test_wall_and_face_forms_against_direct_quadrature(heads):
 
 
 @pytest.mark.parametrize("m", [0, 1, 4])
-@pytest.mark.parametrize("heads", [1, 2])
-def test_projected_wall_forms_equal_the_full_forms(m, heads):
+@pytest.mark.parametrize("heads, separate", [(1, False), (2, False), (2, True)])
+def test_projected_wall_forms_equal_the_full_forms(m, heads, separate):
     # internal consistency: DuctWalls (divided differences, two matrix products) gives
     # A^T (t Pi + v Ups) A of duct_wall_forms (checked against quadrature above) to round-off,
     # at complex k below, between and just above and below cut-ons (at one exactly both are
@@ -310,6 +310,9 @@ def test_projected_wall_forms_equal_the_full_forms(m, heads):
     norms = duct_norms(m=m, gamma=gamma, radius=a)
     rng = np.random.default_rng(m + 10 * heads)
     amp = rng.normal(size=(heads * Q, n))
+    if separate:  # two different heads, each on its own Ritz coordinates (a shell's pair)
+        amp[:Q, 12:] = 0.0
+        amp[Q:, :12] = 0.0
     k = np.array([0.3 + 0j, 1.0 + 0.01j, 5.3 - 0.2j, 12.7 + 1e-3j, 30.0 + 0.5j,
                   gamma[3] * (1 + 1e-4) + 1e-4j, gamma[5] * (1 - 1e-6) + 0j])
     t = rng.normal(size=len(k)) + 1j * rng.normal(size=len(k))
