@@ -133,6 +133,10 @@ class HeadScene:
         # vtk's default multisampling costs 3-5x per frame in software rendering
         # (no GPU); the mesh is fine enough that the edges stay clean without it.
         p.disable_anti_aliasing()
+        # The only see-through part is the body, one colour: its layers blend alike in any
+        # order, so plain alpha blending draws what vtk's order-independent transparency
+        # does (measured: within 3/255 per pixel) at three quarters of the time per frame.
+        p.renderer.SetUseOIT(False)
         p.set_background("white")
         drum = modeset.drum
         kind = getattr(getattr(drum, "body", None), "kind", "none")
