@@ -164,6 +164,10 @@ class Head:
         return math.sqrt(self.tension / self.areal_density)
 
 
+# the longest air column V / (pi a^2) a kettle may hold, in head diameters (Drum.__post_init__)
+KETTLE_COLUMN = 8.0
+
+
 @dataclass(frozen=True)
 class Body:
     """What is under the head.
@@ -318,6 +322,21 @@ class Drum:
             if abs(res.radius - self.head.radius) > 1e-9 * self.head.radius:
                 raise InputError("Drum.resonant_head.diameter", 2 * res.radius,
                                  f"must equal the struck head's diameter {2 * self.head.radius:g} m for a shell")
+        if self.body.kind == "kettle":
+            # the model's kettle is a cylinder of the head's area holding the bowl's volume;
+            # real bowls hold an air column V / (pi a^2) of about 0.2-1.5 head diameters (a
+            # hemisphere 1/3, from memory). Far beyond that it is a pipe, whose ladder of air
+            # resonances (c / 2L apart) packs hundreds of roots below the head modes: the sweep
+            # of generated drums (benchmarks/sweep_drums.py) failed only above 11 diameters.
+            # (No lower bound: a shallow bowl is a stiff air spring, a limit the tests take the
+            # solver to, Raichel's lumped kettle.)
+            ratio = self.air_depth / (2.0 * self.head.radius)
+            if ratio > KETTLE_COLUMN:
+                raise InputError("body.volume", f"{self.body.volume:.4g} m^3",
+                                 f"its air column V / (pi a^2) is {ratio:.3g} head diameters, a pipe "
+                                 f"rather than a kettle; at most {KETTLE_COLUMN:g} diameters "
+                                 f"({KETTLE_COLUMN * 2 * math.pi * self.head.radius ** 3:.3g} m^3 "
+                                 f"under this {2 * self.head.radius:.3g} m head)")
 
     @property
     def air_depth(self) -> float | None:

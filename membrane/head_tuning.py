@@ -35,6 +35,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 from scipy import optimize
 
+from .blas import one_blas_thread
 from .drum import Body, Drum, Head
 from .errors import InputError, SolverError
 from .modes import Mode, ModeSet
@@ -221,6 +222,7 @@ class _Model:
         return self.cache[key]
 
 
+@one_blas_thread  # many small matrix products (membrane/blas.py)
 def tune_heads(drum: Drum, *, targets: Sequence[HeadTarget] = (), intervals: Sequence[Interval] = (), physics: str = "full", other: str = "free",
                m_max: int = 6, n_max: int = 3, table: bool = True, losses: str = "all") -> HeadsTuning:
     """Tensions of one or both heads that put modes on pitches and intervals between heads.

@@ -49,6 +49,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.optimize import linear_sum_assignment
 
+from .blas import one_blas_thread
 from .bessel import jn_zeros
 from .drum import Drum
 from .errors import InputError, SolverError
@@ -221,6 +222,7 @@ def weights(partials) -> np.ndarray:
     return w_level * w_sustain
 
 
+@one_blas_thread  # many small matrix products (membrane/blas.py)
 def identify(drum: Drum, partials, *, physics: str = "full", max_cents: float = MAX_CENTS,
              split_cents: float = SPLIT_CENTS, splits: str = "beating",
              progress=None) -> Identification:

@@ -85,19 +85,38 @@ def test_the_bowl_air_resonance_is_a_root_of_its_own():
 
 
 def test_a_long_kettle_ladder_of_air_resonances_is_scanned():
-    # a 7-inch head over a 0.18 m^3 kettle: a 7.25 m air column, whose longitudinal
-    # resonances lie c / 2L = 24 Hz apart (a rigid-walled pipe closed at both ends, from
-    # memory); the (4,n) head modes sit among dozens of them and are all found
+    # a 7-inch head over the longest kettle allowed (an air column of 8 head diameters,
+    # 1.42 m): the plane-wave resonances of the column lie c / 2L = 121 Hz apart (a pipe
+    # closed at both ends, from memory); below the head's (0,1) the head is stiffer than the
+    # air and nearly closes the pipe, so the first air rows sit a little below p c / 2L
     from membrane.drum import parse_drum
 
     drum = parse_drum({"name": "generated drum (invented)",
                        "head": {"diameter": "7 in", "film": "polyester", "thickness": "0.19 mm",
                                 "plies": 1, "tension": "2000 N/m"},
-                       "body": {"kind": "kettle", "volume": "0.18 m^3"}})
-    od = solve_drum(drum, m_max=4, n_max=3, only=4, losses=drum.losses)[0]
+                       "body": {"kind": "kettle", "volume": "0.0353 m^3"}})
+    assert drum.air_depth / (2 * drum.head.radius) == pytest.approx(8.0, rel=1e-3)
+    od = solve_drum(drum, m_max=0, n_max=3, only=0, losses=drum.losses)[0]
     heads = [r for r, lab in enumerate(od.labels) if lab is not None and lab[0] == "head"]
     assert [od.labels[r][2] for r in heads] == [1, 2, 3]
+    f01 = od.omega[heads[0]].real / (2 * np.pi)
+    air = sorted(od.omega[r].real / (2 * np.pi) for r, lab in enumerate(od.labels)
+                 if lab is not None and lab[0] == "air" and od.omega[r].real / (2 * np.pi) < f01)
+    pipe = [p * drum.air.sound_speed / (2 * drum.air_depth) for p in (1, 2)]
+    assert len(air) == 2 and all(0.85 < f / fp < 1.0 for f, fp in zip(air, pipe)), (air, pipe)
     assert np.all(od.omega.imag > 0)  # every root decays
+
+
+def test_a_pipe_is_not_a_kettle():
+    # the same head over 0.18 m^3: a 7.25 m air column, 40.8 diameters, is refused in words
+    from membrane.drum import parse_drum
+    from membrane.errors import InputError
+
+    with pytest.raises(InputError, match=r"40.8 head diameters.*at most 8 diameters"):
+        parse_drum({"name": "generated drum (invented)",
+                    "head": {"diameter": "7 in", "film": "polyester", "thickness": "0.19 mm",
+                             "plies": 1, "tension": "2000 N/m"},
+                    "body": {"kind": "kettle", "volume": "0.18 m^3"}})
 
 
 def test_no_lossless_root_sits_on_a_rigid_walled_resonance():

@@ -228,6 +228,25 @@ def test_gif_has_the_frames_and_size_asked_for(tmp_path):
     assert np.abs(frames[0].astype(int) - frames[3].astype(int)).mean() > 1.0
 
 
+def test_a_gif_repeats_the_first_half_period_as_a_fresh_render_would():
+    # a standing wave: cos(2 pi k / N) = cos(2 pi (N - k) / N), so the reused second half of
+    # the period (HeadScene.frames with reuse) is what rendering those phases gives
+    from membrane.render.animate import HeadScene, View
+
+    modes = solve(load_drum("kettledrum"), "ideal", m_max=2, n_max=1)
+    view = View(frames=6, width=64, height=64)
+    scene = HeadScene(modes, modes.find(2, 1), view)
+    try:
+        reused = list(scene.frames(reuse=True))
+        fresh = list(scene.frames())
+    finally:
+        scene.close()
+    assert len(reused) == len(fresh) == 6
+    for k in range(6):
+        assert np.abs(reused[k].astype(int) - fresh[k].astype(int)).max() <= 1, k
+    assert reused[5] is reused[1] and reused[4] is reused[2]  # rendered once
+
+
 def test_mp4_has_the_frames_and_size_asked_for(tmp_path):
     out = tmp_path / "mode.mp4"
     result = run("render", "kettledrum", "--physics", "ideal", "--mode", "1,1", "--frames", 5,

@@ -116,18 +116,27 @@ def thermal_layer_admittance(omega, *, density: float, sound_speed: float, visco
 
 
 # ----------------------------------------------------------------------------- the head
-def _basis_slope(basis, r):
-    """d phi_n / dr, (N, len r), for an ideal or stiff basis."""
+def _basis_values(basis, r):
+    """phi_n(r) and d phi_n / dr, each (N, len r), for an ideal or stiff basis, 0 < r <= a.
+
+    Two Bessel evaluations per point for each part: J_m, J_{m+1} (J_m' = (m/x) J_m - J_{m+1})
+    and the scaled I_m, I_{m+1} (I_m' = I_{m+1} + (m/x) I_m), the I part normalised by its
+    edge value as in vacuum.py.
+    """
     m, a = basis.m, basis.radius
     r = np.atleast_1d(np.asarray(r, dtype=float))
-    out = basis.k1[:, None] * special.jvp(m, np.outer(basis.k1, r))
+    x = np.outer(basis.k1, r)
+    jm, jm1 = special.jv(m, x), special.jv(m + 1, x)
+    phi = jm
+    dphi = basis.k1[:, None] * ((m / x) * jm - jm1)
     if basis.k2 is not None:
-        for i in range(basis.size):
-            k2 = basis.k2[i]
-            x = k2 * r
-            ihat = special.ive(m, x) / special.ive(m, k2 * a) * np.exp(k2 * (r - a))
-            out[i] += basis.c[i] * k2 * ihat * ratio_i(m, x)
-    return out
+        k2 = basis.k2[:, None]
+        y = k2 * r[None, :]
+        scale = basis.c[:, None] * np.exp(k2 * (r[None, :] - a)) / special.ive(m, k2 * a)
+        im, im1 = special.ive(m, y), special.ive(m + 1, y)
+        phi = phi + scale * im
+        dphi = dphi + scale * k2 * (im1 + (m / y) * im)
+    return phi, dphi
 
 
 def _rim_slope(space, r):
@@ -152,7 +161,7 @@ def tension_gram(space) -> np.ndarray:
 
     r, w = _radial_nodes(space)
     b = space.basis
-    phi, dphi = b.shape(r), _basis_slope(b, r)
+    phi, dphi = _basis_values(b, r)
     if space.rim:
         phi = np.vstack([phi, space.rim_shape(r)[None, :]])
         dphi = np.vstack([dphi, _rim_slope(space, r)[None, :]])
@@ -193,10 +202,26 @@ def edge_force(space) -> np.ndarray:
 
 @lru_cache(maxsize=512)
 def _unit_head_terms(shape):
+    """Tension Gram matrix and edge force of the unit space of ``shape``.
+
+    The Gram matrix of a stiff head depends on the dimensionless shape only, so, like the
+    radiation tables, it is kept on disk between processes (table_cache.py: exact keys, the
+    stored matrix is bit for bit the computed one).
+    """
+    from . import table_cache
     from .operator import unit_space
 
     space = unit_space(shape)
-    gram = space.K if shape.s is None else tension_gram(space)
+    if shape.s is None:
+        gram = space.K
+    else:
+        name = table_cache.key("tension-gram", shape)
+        stored = table_cache.load(name, {"gram": (space.size, space.size)})
+        if stored is not None:
+            gram = stored["gram"]
+        else:
+            gram = tension_gram(space)
+            table_cache.store(name, gram=gram)
     return gram, edge_force(space)
 
 

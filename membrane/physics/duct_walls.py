@@ -22,14 +22,16 @@ off-diagonal entry is a divided difference (Green's identity along the axis):
 
 and the cross terms of a shell the same with csc for cot. With :math:`H_{qp} = s_{qp}/
 (\gamma_p^2 - \gamma_q^2)` (s the side wall's angular and radial factor, H antisymmetric, zero
-diagonal, fixed per order) a form is :math:`H\circ(u\mathbf{1}^T)^T - \ldots =
-HU - UH` plus a diagonal, U = diag(u), so projected on amplitudes w = A x it is
+diagonal, fixed per order) a form's off-diagonal part :math:`H_{qp}(u_p - u_q)` is
+HU - UH, U = diag(u); with its diagonal D, projected on amplitudes w = A x, it is
 
 .. math::
 
-    A^T (HU - UH + D) A = -(B^T U A) - (B^T U A)^T + A^T D A,\qquad B = HA,
+    A^T (HU - UH + D) A = \sum_q d_q\,a_q a_q^T - u_q\,(b_q a_q^T + a_q b_q^T),\qquad B = HA,
 
-two small matrix products per frequency instead of building (Q, Q) arrays.
+(a_q, b_q the rows of A and B): linear in the per-mode weights (d, u), whose outer products
+are fixed per order. Each frequency then costs one real matrix product of its 2Q (4Q for a
+shell) weights with them, instead of building and multiplying (Q, Q) arrays.
 """
 
 from __future__ import annotations
@@ -180,12 +182,25 @@ class DuctWalls:
         self.tang = (m / a) ** 2
         self.face_norms = weight * np.asarray(norms, dtype=float)
         amp = np.asarray(amp, dtype=float)
-        self.A = [amp[h * Q:(h + 1) * Q] for h in range(self.heads)]  # (Q, n) each
-        # per head: the right factor [A; B] and the left factors A^T, B^T (B = H A)
-        self.B = [H @ A for A in self.A]
-        self.right = [np.vstack([A, B]) for A, B in zip(self.A, self.B)]
-        self.AT = [np.ascontiguousarray(A.T) for A in self.A]
-        self.BT = [np.ascontiguousarray(B.T) for B in self.B]
+        n = amp.shape[1]
+        A = [amp[h * Q:(h + 1) * Q] for h in range(self.heads)]  # (Q, n) per head
+        B = [H @ a_ for a_ in A]
+
+        def outer(x, y):  # per duct mode q, x_q y_q^T flattened: (Q, n * n)
+            return np.einsum("qi,qj->qij", x, y).reshape(Q, n * n)
+
+        def pair(i, j):  # A_i^T (HU - UH + D) A_j = sum_q d_q a_iq a_jq^T - u_q (b_iq a_jq^T + a_iq b_jq^T)
+            return outer(A[i], A[j]), outer(B[i], A[j]) + outer(A[i], B[j])
+
+        # W = [d, -u] @ X: the form is linear in the per-mode weights (d, u), so the products
+        # with the fixed A and B are done once here; per frequency one real matrix product
+        own = [pair(h, h) for h in range(self.heads)]
+        rows = [sum(p[0] for p in own), sum(p[1] for p in own)]
+        if self.heads == 2:
+            x01, x10 = pair(0, 1), pair(1, 0)
+            rows += [x01[0] + x10[0], x01[1] + x10[1]]
+        self.X = np.vstack(rows)
+        self.n = n
 
     def forms(self, k, thermal, viscous) -> np.ndarray:
         r""":math:`A^T (t\,\Pi(k) + v\,\Upsilon(k)) A`, (R, n, n) complex.
@@ -215,18 +230,18 @@ class DuctWalls:
         d_own = self.side_diag * (alpha * (0.5 * (lcsc2 + fcot) / bb) + v * (0.5 * (lcsc2 - fcot)))
         d_own = d_own + self.face_norms * (fcot * fcot + fcsc * fcsc) * grad
         if self.heads == 1:
-            return self._pair(0, 0, u_own, d_own)
+            return self._combine([d_own, -u_own])
         # across (csc): the same with csc for cot; limits (csc/b + L csc cot) / (2 b^2) and
         # -(csc/b - L csc cot) / 2; the end faces couple w_1 and w_2 by 2 cot csc / b^2
         lcc = L * csc * cot
         u_x = alpha * fcsc + v * (b * csc)
         d_x = self.side_diag * (alpha * (0.5 * (fcsc + lcc) / bb) - v * (0.5 * (fcsc - lcc)))
         d_x = d_x + self.face_norms * (2.0 * fcot * fcsc) * grad
-        out = self._pair(0, 0, u_own, d_own) + self._pair(1, 1, u_own, d_own)
-        return out + self._pair(0, 1, u_x, d_x) + self._pair(1, 0, u_x, d_x)
+        return self._combine([d_own, -u_own, d_x, -u_x])
 
-    def _pair(self, i: int, j: int, u, d):
-        r""":math:`A_i^T (H U - U H + D) A_j = (A_i^T D - B_i^T U) A_j - A_i^T U B_j`, (R, n, n)."""
-        left = np.concatenate([self.AT[i][None] * d[:, None, :] - self.BT[i][None] * u[:, None, :],
-                               -self.AT[i][None] * u[:, None, :]], axis=2)
-        return left @ self.right[j]
+    def _combine(self, weights):
+        """sum of weights @ X: complex (R, rows) times the real X, as (R, n, n)."""
+        w = np.concatenate(weights, axis=1)
+        R = w.shape[0]
+        out = np.vstack([w.real, w.imag]) @ self.X
+        return (out[:R] + 1j * out[R:]).reshape(R, self.n, self.n)

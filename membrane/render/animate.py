@@ -194,11 +194,25 @@ class HeadScene:
         self.plotter.render()
         return np.asarray(self.plotter.screenshot(return_img=True))[..., :3]
 
-    def frames(self, progress=None):
-        """All frames of one period, in order; ``progress(k, total)`` after each."""
+    def frames(self, progress=None, *, reuse: bool = False):
+        """All frames of one period, in order; ``progress(k, total)`` after each.
+
+        A standing wave at phase 2 pi k / total and at 2 pi (total - k) / total has the
+        same cos, so the same picture: with ``reuse`` the second half of the period
+        repeats the first half's images instead of rendering them again (half the
+        rendering; the frames are kept, as a GIF keeps them all anyway).
+        """
         total = self.view.frames
+        kept = {}
         for k in range(total):
-            yield self.frame(2.0 * np.pi * k / total)
+            twin = total - k
+            if reuse and twin in kept:
+                image = kept[twin]
+            else:
+                image = self.frame(2.0 * np.pi * k / total)
+                if reuse and 0 < k and 2 * k < total:
+                    kept[k] = image
+            yield image
             if progress is not None:
                 progress(k + 1, total)
 
@@ -328,7 +342,7 @@ def render_mode(modeset, mode, path, *, view: View = View(), reference=None, pro
 
             Image.fromarray(scene.frame(0.0)).save(path, format="PNG", optimize=True)
         elif fmt == "gif":
-            write_gif(path, list(scene.frames(progress)), fps=view.fps)
+            write_gif(path, list(scene.frames(progress, reuse=True)), fps=view.fps)
         else:
             write_mp4(path, scene.frames(progress), fps=view.fps)
     finally:
