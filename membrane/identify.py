@@ -31,7 +31,12 @@ drum file. With ``"stiff"`` or ``"ideal"`` the start and the refinement use that
 The result carries the matched count, the rms cents, the tension's uncertainty (the
 weighted scatter of the pairs over the root of their count, through the slope of
 ln f against ln T) and a verdict: fewer than :data:`MIN_MATCHED` matched partials is "not
-identified"; a film stress past the film's yield is "implausible".
+identified"; a film stress past the film's yield is "implausible"; an rms residual above
+:data:`POOR_RMS_CENTS` is a "poor match". What the verdict cannot tell: a kettledrum's
+pattern of (m,1) modes changes little with its diameter, so a drum file of the wrong size
+fits the same partials at another tension nearly as well (a 23-inch file on a 29-inch
+timpano's recording: 15.7 against 15.2 cents rms); the tension is then wrong by the
+square of the diameters' ratio, and only the drum file can say which drum it is.
 
 Approximations: the start scales one table by sqrt(T) (exact for the ideal membrane);
 every refinement solves the model at the trial tension, so stiffness and air loading
@@ -73,6 +78,10 @@ START_MARGIN = 0.05  # start tensions costing within 5 % of the cheapest are jud
 START_RIVALS = 4  # at most this many, each a full-model solve
 START_DISTINCT = 0.05  # in ln T: start tensions closer than 5 % are one
 MIN_MATCHED = 3  # fewer matched partials than this: the drum is not identified
+# an rms residual above this is a poor match: half the rms of residuals spread evenly over
+# the match window (+-MAX_CENTS has rms MAX_CENTS / sqrt 3), i.e. the fit pairs the partials
+# with modes little better than a chance pairing would (judgement, no source)
+POOR_RMS_CENTS = MAX_CENTS / (2.0 * math.sqrt(3.0))
 MAX_FIT_PARTIALS = 24  # the heaviest partials fitted (bounded work; the rest are labelled)
 SPLIT_MIN_T60_S = 0.3  # both halves of a split ring at least this long
 
@@ -180,9 +189,10 @@ class Identification:
 
     @property
     def verdict(self) -> str:
-        """``"identified"``, ``"not identified: ..."`` or ``"implausible: ..."`` (past the
+        """``"identified"``, ``"not identified: ..."``, ``"implausible: ..."`` (past the
         film's yield, or below the tension at which the head holds a pitch at all:
-        :func:`membrane.safety.practical_minimum`)."""
+        :func:`membrane.safety.practical_minimum`) or ``"poor match: ..."`` (rms residual
+        above :data:`POOR_RMS_CENTS`)."""
         head = self.drum.head
         if len(self.matches) < MIN_MATCHED:
             return (f"not identified: {len(self.matches)} partials matched, at least "
@@ -196,6 +206,10 @@ class Identification:
         slack = below_minimum(head, self.tension)
         if slack is not None:
             return f"implausible: {slack}"
+        if self.rms_cents > POOR_RMS_CENTS:
+            return (f"poor match: rms {self.rms_cents:.0f} cents over {len(self.matches)} matched "
+                    f"partials, more than {POOR_RMS_CENTS:.0f} (a pairing little better than "
+                    "chance: another drum, or partials the analysis did not resolve)")
         return "identified"
 
     @property
