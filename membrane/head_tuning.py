@@ -19,6 +19,11 @@ on one of two models of the drum:
   volume); the heads no longer interact, so each head's targets set its own tension.
 
 Everything here takes and returns SI floats (N/m, Hz) and cents.
+
+One module for about 400 lines on purpose: the targets, the two models of the drum, the
+Newton-Broyden search over both tensions (``_newton``: several residuals in several unknowns,
+unlike the one-tension search of :mod:`membrane.tension_search`) and its report are one
+calculation.
 """
 
 from __future__ import annotations
@@ -30,6 +35,7 @@ from dataclasses import dataclass, replace
 import numpy as np
 from scipy import optimize
 
+from .blas import one_blas_thread
 from .drum import Body, Drum, Head
 from .errors import InputError, SolverError
 from .modes import Mode, ModeSet
@@ -216,6 +222,7 @@ class _Model:
         return self.cache[key]
 
 
+@one_blas_thread  # many small matrix products (membrane/blas.py)
 def tune_heads(drum: Drum, *, targets: Sequence[HeadTarget] = (), intervals: Sequence[Interval] = (), physics: str = "full", other: str = "free",
                m_max: int = 6, n_max: int = 3, table: bool = True, losses: str = "all") -> HeadsTuning:
     """Tensions of one or both heads that put modes on pitches and intervals between heads.

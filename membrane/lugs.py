@@ -27,6 +27,10 @@ value keeps the principal (1,1) pitch (the mean of its two members) where it is.
 changes a lug's value by a calibration: ``cents_per_turn`` (the tap pitch near the lug per
 turn, so T scales by 2^(2 c t / 1200)) or ``turns_per_newton`` (turns per newton of the
 lug's pull, the pull being T 2 pi a / N).
+
+One module for about 400 lines on purpose: the forward table, its inverse and the turns are
+one model read three ways, and share its harmonic rows (``_harmonic_rows``) and the
+first-order split weights; split apart, each part would import the others' internals.
 """
 
 from __future__ import annotations

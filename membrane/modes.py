@@ -127,9 +127,12 @@ class Mode:
             return np.zeros_like(np.asarray(r, dtype=float))
         phase = _realising_phase(self.coefficients)
         values = np.real(phase * (np.asarray(coef) @ basis.shape(r)))
-        ref = np.real(phase * (np.asarray(self.coefficients) @ self.basis.shape(
-            np.linspace(0.0, self.basis.radius, 257))))
-        peak = np.max(np.abs(ref))
+        peak = self.__dict__.get("_peak")  # the struck head's peak, once per mode (a picture
+        if peak is None:  # samples the shape hundreds of times)
+            ref = np.real(phase * (np.asarray(self.coefficients) @ self.basis.shape(
+                np.linspace(0.0, self.basis.radius, 257))))
+            peak = np.max(np.abs(ref))
+            object.__setattr__(self, "_peak", peak)
         return values / peak if peak > 0 else values
 
     def field(self, r, theta, *, resonant: bool = False) -> np.ndarray:

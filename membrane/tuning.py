@@ -24,6 +24,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
+from .blas import one_blas_thread
 from .drum import Drum, Head
 from .errors import InputError, SolverError
 from .modes import ModeSet
@@ -189,6 +190,7 @@ class Tuning:
 # (membrane.tension_search: the one search for a tension, shared by every tension fit)
 
 
+@one_blas_thread  # many small matrix products (membrane/blas.py)
 def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None = None,
                 n_max: int = 3, m_max: int = 6, table: bool = True, losses: str = "all") -> Tuning:
     """The tension (and optionally one more parameter) that puts modes on target pitches.

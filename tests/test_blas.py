@@ -59,3 +59,33 @@ def test_solve_runs_on_one_blas_thread():
     env["OPENBLAS_NUM_THREADS"] = "2"
     done = subprocess.run([sys.executable, "-c", SOLVE], env=env, capture_output=True, text=True, check=True)
     assert done.stdout.split() == ["1", "1"]
+
+
+TUNE = """
+import numpy, threadpoolctl
+import membrane
+from membrane.physics import spectrum
+
+seen = []
+real = spectrum.scan_order
+
+def spy(*args, **kw):  # every full-physics solve the tension search runs scans its orders
+    seen.append(max(p["num_threads"] for p in threadpoolctl.threadpool_info() if p["user_api"] == "blas"))
+    return real(*args, **kw)
+
+spectrum.scan_order = spy
+drum = membrane.load_drum("kettledrum")
+membrane.tension_for(drum, targets=[((1, 1), 150.0)], m_max=1, n_max=1, table=False)
+print(len(seen), min(seen), max(seen))
+"""
+
+
+def test_tension_search_runs_on_one_blas_thread():
+    # tension_for solves through the assembly directly, not only through solve(): the whole
+    # search is limited (threadpoolctl's own report as the reference)
+    env = {k: v for k, v in os.environ.items()
+           if k not in ("OPENBLAS_NUM_THREADS", "OMP_NUM_THREADS", "MKL_NUM_THREADS")}
+    env["OPENBLAS_NUM_THREADS"] = "2"
+    done = subprocess.run([sys.executable, "-c", TUNE], env=env, capture_output=True, text=True, check=True)
+    count, low, high = map(int, done.stdout.split())
+    assert count > 0 and low == high == 1

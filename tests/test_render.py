@@ -228,6 +228,42 @@ def test_gif_has_the_frames_and_size_asked_for(tmp_path):
     assert np.abs(frames[0].astype(int) - frames[3].astype(int)).mean() > 1.0
 
 
+def test_a_gif_repeats_the_first_half_period_as_a_fresh_render_would():
+    # a standing wave: cos(2 pi k / N) = cos(2 pi (N - k) / N), so the reused second half of
+    # the period (HeadScene.frames with reuse) is what rendering those phases gives
+    from membrane.render.animate import HeadScene, View
+
+    modes = solve(load_drum("kettledrum"), "ideal", m_max=2, n_max=1)
+    view = View(frames=6, width=64, height=64)
+    scene = HeadScene(modes, modes.find(2, 1), view)
+    try:
+        reused = list(scene.frames(reuse=True))
+        fresh = list(scene.frames())
+    finally:
+        scene.close()
+    assert len(reused) == len(fresh) == 6
+    for k in range(6):
+        assert np.abs(reused[k].astype(int) - fresh[k].astype(int)).max() <= 1, k
+    assert reused[5] is reused[1] and reused[4] is reused[2]  # rendered once
+
+
+def test_the_see_through_body_is_drawn_as_order_independent_transparency_draws_it():
+    # a kettle's translucent bowl by plain alpha blending (HeadScene) against vtk's own
+    # order-independent transparency (the reference): the same picture to a few levels of 255
+    from membrane.render.animate import HeadScene, View
+
+    modes = solve(load_drum("kettledrum"), "ideal", m_max=2, n_max=1)
+    frames = []
+    for oit in (False, True):
+        scene = HeadScene(modes, modes.find(2, 1), View(frames=2, width=96, height=96))
+        try:
+            scene.plotter.renderer.SetUseOIT(oit)
+            frames.append(scene.frame(0.4).astype(int))
+        finally:
+            scene.close()
+    assert np.abs(frames[0] - frames[1]).max() <= 8
+
+
 def test_mp4_has_the_frames_and_size_asked_for(tmp_path):
     out = tmp_path / "mode.mp4"
     result = run("render", "kettledrum", "--physics", "ideal", "--mode", "1,1", "--frames", 5,

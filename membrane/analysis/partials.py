@@ -31,6 +31,7 @@ import scipy.fft
 from membrane.errors import InputError, RecordingError
 
 from . import esprit
+from ..blas import one_blas_thread
 from .audio import Recording
 from . import lines as line_fit
 from .onset import find_strike
@@ -82,6 +83,7 @@ class Analysis:
         return tuple(sorted(kept, key=lambda p: p.frequency))
 
 
+@one_blas_thread  # many small matrix products (membrane/blas.py)
 def analyse(recording: Recording, *, floor_db: float = DEFAULT_FLOOR_DB,
             max_partials: int | None = None,
             min_frequency: float = MIN_FREQUENCY_HZ) -> Analysis:

@@ -49,7 +49,7 @@ def save_wav(path, samples: np.ndarray, *, rate: int, sample_format: str = "int1
     int16 samples are ``round(32767 x)`` after clipping to [-1, 1] (full scale 32767, so +1
     and -1 are symmetric); float32 samples are written as they are. Writes ``path``
     directly; callers wanting all-or-nothing writing pass a temporary path (see
-    membrane.cli.common.write_atomic).
+    membrane.cli.files.write_atomic).
 
     Parameters
     ----------

@@ -26,38 +26,6 @@ from ..errors import MembraneError
 from .common import print_error
 
 
-def _skip_coercing_unset_options() -> None:
-    """Let an option that was not given stay None without typer building a validator for it.
-
-    typer 0.28 and later coerce every parameter's value through a pydantic TypeAdapter,
-    built on first use, even when the value is None (an option not given, as most of the
-    drum flags are on every call). Building them costs a command about 60 ms (measured:
-    ``modes kettledrum --physics ideal`` 0.32 -> 0.26 s CPU). typer's own coercion of None
-    returns None for a single-valued option, and then checks ``required`` and runs the
-    callback; this returns the same None directly in exactly that case (not required, no
-    callback, single-valued) and leaves everything else to typer. A typer without this
-    method is left as it is.
-    """
-    from typer import core
-
-    cls = getattr(core, "_TyperParameter", None)
-    original = getattr(cls, "process_value", None)
-    if original is None or getattr(original, "_membrane_skips_unset", False):
-        return
-
-    def process_value(self, ctx, value):
-        if (value is None and not self.required and self.callback is None
-                and self.nargs == 1 and not self.multiple):
-            return None
-        return original(self, ctx, value)
-
-    process_value._membrane_skips_unset = True
-    cls.process_value = process_value
-
-
-_skip_coercing_unset_options()
-
-
 class _OneLineErrors(TyperGroup):
     """Click group whose usage errors and library errors print one line, exit 2."""
 

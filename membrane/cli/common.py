@@ -1,33 +1,24 @@
-"""Pieces every command shares: errors, output formats, safe writing, the drum flags."""
+"""Pieces every command shares: the input error, the physics and loss choices, the drum flags.
+
+The output formats are :mod:`membrane.cli.output` and safe file writing
+:mod:`membrane.cli.files`; their names are importable from here too, so a command module
+imports what it shares from one place.
+"""
 
 from __future__ import annotations
 
-import csv
 import functools
 import inspect
-import io
-import json
-import math
-import os
 import sys
-import tempfile
 from enum import Enum
-from pathlib import Path
 from typing import Annotated, Callable, Optional
 
 import typer
 
 from ..drum import Drum, load_drum, override_table, parse_drum
 from ..errors import InputError, MembraneError
-
-
-class Format(str, Enum):
-    """Output formats every table-printing command offers."""
-
-    table = "table"
-    csv = "csv"
-    json = "json"
-    markdown = "markdown"
+from .files import TEMP_PREFIX, check_target, write_atomic  # noqa: F401
+from .output import Format, emit, num, signed, t60  # noqa: F401
 
 
 class Physics(str, Enum):
@@ -252,184 +243,6 @@ def check_float(key: str, value: float | None, rng) -> float | None:
     return None if value is None else rng.check(value, key=key)
 
 
-# ------------------------------------------------------------------ output
-def _clean(value):
-    """JSON-safe: NaN and infinities become null, numpy scalars plain numbers."""
-    if isinstance(value, dict):
-        return {k: _clean(v) for k, v in value.items()}
-    if isinstance(value, (list, tuple)):
-        return [_clean(v) for v in value]
-    if hasattr(value, "item") and not isinstance(value, (str, bytes)):
-        value = value.item()
-    if isinstance(value, float) and not math.isfinite(value):
-        return None
-    return value
-
-
-def emit(fmt: Format, *, payload: dict, rows: list[dict], columns: list[tuple[str, str, Callable]],
-         title: str = "", notes: tuple[str, ...] | list[str] = ()) -> None:
-    """Print a result in the chosen format.
-
-    Parameters
-    ----------
-    fmt : Format
-        ``json`` prints ``payload``; the others print ``rows`` through ``columns``,
-        a list of (key, header, formatter) with formatter(value) -> str.
-    title, notes
-        Shown above and below the table (table and markdown formats).
-    """
-    if fmt is Format.json:
-        print(json.dumps(_clean(payload), indent=2))
-        return
-    cells = [[fmtr(row.get(key)) if row.get(key) is not None else "" for key, _, fmtr in columns]
-             for row in rows]
-    headers = [header for _, header, _ in columns]
-    if fmt is Format.csv:
-        out = io.StringIO()
-        writer = csv.writer(out, lineterminator="\n")
-        writer.writerow([key for key, _, _ in columns])
-        for row in rows:
-            writer.writerow(["" if row.get(k) is None else _clean(row.get(k)) for k, _, _ in columns])
-        sys.stdout.write(out.getvalue())
-        return
-    if fmt is Format.markdown:
-        lines = [f"**{title}**", ""] if title else []
-        lines.append("| " + " | ".join(headers) + " |")
-        lines.append("|" + "|".join("---:" if i else "---" for i in range(len(headers))) + "|")
-        lines.extend("| " + " | ".join(c) + " |" for c in cells)
-        if notes:
-            lines.append("")
-            lines.extend(f"- {n}" for n in notes)
-        print("\n".join(lines))
-        return
-    from rich.console import Console
-    from rich.table import Table
-
-    # a two-column summary (what, value) needs no header row: an empty one reads as a gap
-    table = Table(title=title or None, title_justify="left", show_header=any(headers))
-    for i, header in enumerate(headers):
-        table.add_column(header, justify="left" if i == 0 else "right", no_wrap=i == 0)
-    for c in cells:
-        table.add_row(*c)
-    console = Console(soft_wrap=False)
-    if not console.is_terminal:  # piped or captured: no terminal width to respect
-        console = Console(soft_wrap=False, width=160)
-    console.print(table)
-    for n in notes:
-        console.print(f"[dim]- {n}[/dim]", highlight=False)
-
-
-def num(digits: int) -> Callable:
-    """Formatter: a float with a fixed number of decimals."""
-    return lambda v: f"{v:.{digits}f}"
-
-
-def t60(value) -> str:
-    """Formatter for T60 columns (see :func:`membrane.modes.t60_text`)."""
-    from ..modes import t60_text
-
-    return t60_text(value)
-
-
-def signed(digits: int) -> Callable:
-    """Formatter: a float with a sign and a fixed number of decimals."""
-    return lambda v: f"{v:+.{digits}f}"
-
-
-# ------------------------------------------------------------------ files
-TEMP_PREFIX = ".membrane-tmp-"  # our temporary files: TEMP_PREFIX + pid + "-" + random + suffix
-
-
-def check_target(path: str | Path, *, force: bool, key: str = "--out") -> Path:
-    """The file to write for ``path``, after refusing what must not be replaced.
-
-    A folder (or a link to one) is refused as a folder; an existing file needs ``force``;
-    anything existing that is not a regular file (a FIFO, a device node, a socket, a link
-    to nothing) is refused even with ``force``, because replacing it would destroy it.
-    A link to a regular file is followed: the file it names is replaced, the link kept.
-    """
-    path = Path(path)
-    if path.is_dir():
-        fail(key, str(path), "is a folder; give a file name")
-    if os.path.lexists(path):
-        if not path.exists():
-            fail(key, str(path), "is a link to nothing; remove it or give another file name")
-        if not path.is_file():
-            fail(key, str(path), "is not a regular file (a device, pipe or socket); it is never replaced")
-        if not force:
-            fail(key, str(path), "exists already; add --force to overwrite it")
-        path = Path(os.path.realpath(path))
-    folder = path.parent if str(path.parent) else Path(".")
-    if not folder.is_dir():
-        fail(key, str(path), f"folder {str(folder)!r} does not exist")
-    if not os.access(folder, os.W_OK):
-        fail(key, str(path), f"folder {str(folder)!r} is not writable")
-    return path
-
-
-def _remove_stale_temporaries(folder: Path) -> None:
-    """Delete our temporary files in ``folder`` left by a process that no longer runs."""
-    try:
-        names = [n for n in os.listdir(folder) if n.startswith(TEMP_PREFIX)]
-    except OSError:
-        return
-    for name in names:
-        pid = name[len(TEMP_PREFIX):].split("-", 1)[0]
-        if not pid.isdigit() or _alive(int(pid)):
-            continue
-        try:
-            (folder / name).unlink()
-        except OSError:
-            pass
-
-
-def _alive(pid: int) -> bool:
-    if pid == os.getpid():
-        return True
-    try:
-        os.kill(pid, 0)
-    except ProcessLookupError:
-        return False
-    except (PermissionError, OverflowError, OSError):
-        return True  # someone else's process, or not ours to judge: leave its files alone
-    return True
-
-
-def write_atomic(path: str | Path, writer: Callable[[Path], None], *, force: bool,
-                 key: str = "--out") -> Path:
-    """Write a file whole or not at all.
-
-    ``writer(tmp_path)`` writes the content to a temporary file in the target's folder
-    (with the target's suffix, so format-sniffing writers behave); it is then moved
-    over the target in one step. What :func:`check_target` refuses is refused here.
-    A temporary file left by a killed run (its process gone) is removed on the next
-    write to that folder.
-    """
-    shown = Path(path)
-    path = check_target(path, force=force, key=key)
-    folder = path.parent if str(path.parent) else Path(".")
-    _remove_stale_temporaries(folder)
-    try:
-        fd, tmp = tempfile.mkstemp(prefix=f"{TEMP_PREFIX}{os.getpid()}-", suffix=path.suffix, dir=folder)
-    except OSError as exc:
-        fail(key, str(shown), f"cannot be written ({exc.strerror or exc})")
-    os.close(fd)
-    tmp = Path(tmp)
-    try:
-        writer(tmp)
-        umask = os.umask(0)  # mkstemp makes 0600 files; give the usual permissions instead
-        os.umask(umask)
-        os.chmod(tmp, 0o666 & ~umask)
-        os.replace(tmp, path)
-    except OSError as exc:
-        tmp.unlink(missing_ok=True)
-        fail(key, str(shown), f"cannot be written ({exc.strerror or exc})")
-    except BaseException:
-        tmp.unlink(missing_ok=True)
-        raise
-    return shown
-
-
 def print_error(message: str) -> None:
     """The one line a user sees for bad input."""
     try:
@@ -440,4 +253,4 @@ def print_error(message: str) -> None:
 
 __all__ = ["Format", "Physics", "BodyKind", "fail", "parse_mode", "drum_from", "emit", "num",
            "signed", "t60", "check_target", "check_float", "write_atomic", "print_error",
-           "MembraneError"]
+           "MembraneError", "TEMP_PREFIX"]

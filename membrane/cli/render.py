@@ -179,7 +179,8 @@ def render(
     else:
         names = _physics_list(compare, "--compare") or [physics.value]
         modesets = [_solve(drum, name, m_max, n_max, losses=losses.value) for name in names]
-        from ..render.stills import ratio_chart as chart, save
+        from ..render.ratio_chart import ratio_chart as chart
+        from ..render.stills import save
 
         def writer(tmp):
             save(chart(modesets), tmp)

@@ -22,14 +22,16 @@ off-diagonal entry is a divided difference (Green's identity along the axis):
 
 and the cross terms of a shell the same with csc for cot. With :math:`H_{qp} = s_{qp}/
 (\gamma_p^2 - \gamma_q^2)` (s the side wall's angular and radial factor, H antisymmetric, zero
-diagonal, fixed per order) a form is :math:`H\circ(u\mathbf{1}^T)^T - \ldots =
-HU - UH` plus a diagonal, U = diag(u), so projected on amplitudes w = A x it is
+diagonal, fixed per order) a form's off-diagonal part :math:`H_{qp}(u_p - u_q)` is
+HU - UH, U = diag(u); with its diagonal D, projected on amplitudes w = A x, it is
 
 .. math::
 
-    A^T (HU - UH + D) A = -(B^T U A) - (B^T U A)^T + A^T D A,\qquad B = HA,
+    A^T (HU - UH + D) A = \sum_q d_q\,a_q a_q^T - u_q\,(b_q a_q^T + a_q b_q^T),\qquad B = HA,
 
-two small matrix products per frequency instead of building (Q, Q) arrays.
+(a_q, b_q the rows of A and B): linear in the per-mode weights (d, u), whose outer products
+are fixed per order. Each frequency then costs one real matrix product of its 2Q (4Q for a
+shell) weights with them, instead of building and multiplying (Q, Q) arrays.
 """
 
 from __future__ import annotations
@@ -180,12 +182,38 @@ class DuctWalls:
         self.tang = (m / a) ** 2
         self.face_norms = weight * np.asarray(norms, dtype=float)
         amp = np.asarray(amp, dtype=float)
-        self.A = [amp[h * Q:(h + 1) * Q] for h in range(self.heads)]  # (Q, n) each
-        # per head: the right factor [A; B] and the left factors A^T, B^T (B = H A)
-        self.B = [H @ A for A in self.A]
-        self.right = [np.vstack([A, B]) for A, B in zip(self.A, self.B)]
-        self.AT = [np.ascontiguousarray(A.T) for A in self.A]
-        self.BT = [np.ascontiguousarray(B.T) for B in self.B]
+        n = amp.shape[1]
+        A = [amp[h * Q:(h + 1) * Q] for h in range(self.heads)]  # (Q, n) per head
+        B = [H @ a_ for a_ in A]
+
+        def outer(x, y):  # per duct mode q, x_q y_q^T flattened: (Q, cols of x * cols of y)
+            return np.einsum("qi,qj->qij", x, y).reshape(Q, x.shape[1] * y.shape[1])
+
+        def pair(i, j, ci=slice(None), cj=slice(None)):
+            # A_i^T (HU - UH + D) A_j = sum_q d_q a_iq a_jq^T - u_q (b_iq a_jq^T + a_iq b_jq^T)
+            ai, aj, bi, bj = A[i][:, ci], A[j][:, cj], B[i][:, ci], B[j][:, cj]
+            return outer(ai, aj), outer(bi, aj) + outer(ai, bj)
+
+        # W = [d, -u] @ X: the form is linear in the per-mode weights (d, u), so the products
+        # with the fixed A and B are done once here; per frequency one real matrix product
+        self.n = n
+        self.blocks = None
+        if self.heads == 2:
+            spans = [_span(a_) for a_ in A]
+            if None not in spans and (spans[0].stop <= spans[1].start or spans[1].stop <= spans[0].start):
+                # two different heads, each on its own coordinates: the own-head terms fill
+                # the diagonal blocks only and the cross terms the off-diagonal ones, so each
+                # block gets only its own products (a third of the work of the whole matrix)
+                s0, s1 = spans
+                own = [np.vstack(pair(h, h, sp, sp)) for h, sp in ((0, s0), (1, s1))]
+                self.blocks = (s0, s1, own, np.vstack(pair(0, 1, s0, s1)))
+                return
+        own = [pair(h, h) for h in range(self.heads)]
+        rows = [sum(p[0] for p in own), sum(p[1] for p in own)]
+        if self.heads == 2:
+            x01, x10 = pair(0, 1), pair(1, 0)
+            rows += [x01[0] + x10[0], x01[1] + x10[1]]
+        self.X = np.vstack(rows)
 
     def forms(self, k, thermal, viscous) -> np.ndarray:
         r""":math:`A^T (t\,\Pi(k) + v\,\Upsilon(k)) A`, (R, n, n) complex.
@@ -215,18 +243,38 @@ class DuctWalls:
         d_own = self.side_diag * (alpha * (0.5 * (lcsc2 + fcot) / bb) + v * (0.5 * (lcsc2 - fcot)))
         d_own = d_own + self.face_norms * (fcot * fcot + fcsc * fcsc) * grad
         if self.heads == 1:
-            return self._pair(0, 0, u_own, d_own)
+            return self._combine([d_own, -u_own])
         # across (csc): the same with csc for cot; limits (csc/b + L csc cot) / (2 b^2) and
         # -(csc/b - L csc cot) / 2; the end faces couple w_1 and w_2 by 2 cot csc / b^2
         lcc = L * csc * cot
         u_x = alpha * fcsc + v * (b * csc)
         d_x = self.side_diag * (alpha * (0.5 * (fcsc + lcc) / bb) - v * (0.5 * (fcsc - lcc)))
         d_x = d_x + self.face_norms * (2.0 * fcot * fcsc) * grad
-        out = self._pair(0, 0, u_own, d_own) + self._pair(1, 1, u_own, d_own)
-        return out + self._pair(0, 1, u_x, d_x) + self._pair(1, 0, u_x, d_x)
+        if self.blocks is None:
+            return self._combine([d_own, -u_own, d_x, -u_x])
+        s0, s1, own, cross = self.blocks
+        out = np.zeros((k.shape[0], self.n, self.n), complex)
+        for sp, X in zip((s0, s1), own):
+            size = sp.stop - sp.start
+            out[:, sp, sp] = self._combine([d_own, -u_own], X, (size, size))
+        x = self._combine([d_x, -u_x], cross, (s0.stop - s0.start, s1.stop - s1.start))
+        out[:, s0, s1] = x
+        out[:, s1, s0] = np.swapaxes(x, 1, 2)
+        return out
 
-    def _pair(self, i: int, j: int, u, d):
-        r""":math:`A_i^T (H U - U H + D) A_j = (A_i^T D - B_i^T U) A_j - A_i^T U B_j`, (R, n, n)."""
-        left = np.concatenate([self.AT[i][None] * d[:, None, :] - self.BT[i][None] * u[:, None, :],
-                               -self.AT[i][None] * u[:, None, :]], axis=2)
-        return left @ self.right[j]
+    def _combine(self, weights, X=None, shape=None):
+        """sum of weights @ X: complex (R, rows) times the real X, as (R, n, n) (or shape)."""
+        X = self.X if X is None else X
+        shape = (self.n, self.n) if shape is None else shape
+        w = np.concatenate(weights, axis=1)
+        R = w.shape[0]
+        out = np.vstack([w.real, w.imag]) @ X
+        return (out[:R] + 1j * out[R:]).reshape(R, *shape)
+
+
+def _span(a):
+    """The columns of ``a`` that are not all zero, as a slice if they are contiguous, else None."""
+    cols = np.flatnonzero(np.any(a != 0, axis=0))
+    if not len(cols) or cols[-1] - cols[0] + 1 != len(cols):
+        return None
+    return slice(int(cols[0]), int(cols[-1]) + 1)

@@ -7,6 +7,10 @@ the harmonic fit and T60, and what the model leaves out; 3 the grid of mode shap
 matplotlib's PdfPages: text stays text (TrueType fonts, so it can be searched and
 copied) and lines stay vectors; only the colour fill of each mode shape is a small
 raster. Every page is laid out in inches from its top, so A4 and Letter both fit.
+
+One module for about 430 lines on purpose: it is one document, its pages laid out by one
+writer (``_Writer``) on one set of measures (paper, margins, type size); the pictures it places
+are drawn in :mod:`membrane.render.stills` and :mod:`membrane.render.ratio_chart`.
 """
 
 from __future__ import annotations
@@ -17,8 +21,9 @@ import textwrap
 import numpy as np
 
 from ..notation import mode_list
-from .shape import head_words, physics_words, reference_of, wrap_title
-from .stills import draw_nodal_lines, mode_grid, ratio_chart
+from .shape import physics_words, reference_of, wrap_title
+from .ratio_chart import ratio_chart
+from .stills import draw_nodal_lines, mode_grid
 
 PAPER = {"a4": (8.27, 11.69), "letter": (8.5, 11.0)}  # inches: ISO 216 A4, US Letter
 PAGES = 4

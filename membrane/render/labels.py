@@ -19,7 +19,7 @@ MARKER_HALF = 4.0  # points: the box kept clear around each point
 
 
 def _canvas(fig):
-    """A renderer for a bare Figure (attach an Agg canvas if it has none that renders)."""
+    """A renderer for a bare Figure, laid out (attach an Agg canvas if it has none that renders)."""
     if not hasattr(fig.canvas, "get_renderer"):
         from matplotlib.backends.backend_agg import FigureCanvasAgg
 
@@ -38,7 +38,8 @@ def _overlap(a, b) -> float:
 
 
 def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 7.0, colors=None,
-                 obstacles=(), gid_prefix: str = "label", background: bool = False, below=None):
+                 obstacles=(), gid_prefix: str = "label", background: bool = False, below=None,
+                 renderer=None):
     """Annotate ``points`` (data coordinates) with ``texts``, avoiding overlaps.
 
     Parameters
@@ -61,6 +62,10 @@ def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 
         Put each label on a white patch (over lines drawn through it).
     below : sequence of bool, optional
         Per label: try the places below the point first (a point on the top edge).
+    renderer : optional
+        The renderer of a figure already laid out (:func:`_canvas`): several axes of
+        one figure are labelled after one layout instead of one each (labels placed are
+        kept out of the layout, so it does not change between them).
 
     Returns
     -------
@@ -68,7 +73,8 @@ def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 
         One per label, in order; each has ``gid`` ``"{gid_prefix} {text}"``.
     """
     fig = ax.figure
-    renderer = _canvas(fig)
+    if renderer is None:
+        renderer = _canvas(fig)
     scale = fig.dpi / 72.0
     to_px = ax.transData.transform
     frame = ax.get_window_extent(renderer)
