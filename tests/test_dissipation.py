@@ -297,8 +297,8 @@ def test_wall_and_face_forms_against_direct_quadrature(heads):
 
 
 @pytest.mark.parametrize("m", [0, 1, 4])
-@pytest.mark.parametrize("heads", [1, 2])
-def test_projected_wall_forms_equal_the_full_forms(m, heads):
+@pytest.mark.parametrize("heads, separate", [(1, False), (2, False), (2, True)])
+def test_projected_wall_forms_equal_the_full_forms(m, heads, separate):
     # internal consistency: DuctWalls (divided differences, two matrix products) gives
     # A^T (t Pi + v Ups) A of duct_wall_forms (checked against quadrature above) to round-off,
     # at complex k below, between and just above and below cut-ons (at one exactly both are
@@ -310,6 +310,9 @@ def test_projected_wall_forms_equal_the_full_forms(m, heads):
     norms = duct_norms(m=m, gamma=gamma, radius=a)
     rng = np.random.default_rng(m + 10 * heads)
     amp = rng.normal(size=(heads * Q, n))
+    if separate:  # two different heads, each on its own Ritz coordinates (a shell's pair)
+        amp[:Q, 12:] = 0.0
+        amp[Q:, :12] = 0.0
     k = np.array([0.3 + 0j, 1.0 + 0.01j, 5.3 - 0.2j, 12.7 + 1e-3j, 30.0 + 0.5j,
                   gamma[3] * (1 + 1e-4) + 1e-4j, gamma[5] * (1 - 1e-6) + 0j])
     t = rng.normal(size=len(k)) + 1j * rng.normal(size=len(k))
@@ -319,3 +322,55 @@ def test_projected_wall_forms_equal_the_full_forms(m, heads):
     fast = DuctWalls(amp, gamma, norms, a, L, m, heads).forms(k, t, v)
     scale = np.max(np.abs(full), axis=(1, 2), keepdims=True)
     assert np.max(np.abs(fast - full) / scale) < 1e-11
+
+
+def _shapes_and_slopes(space, r):
+    """phi and d phi / dr of every function of a Ritz space at r (from their definitions)."""
+    from scipy import special
+
+    b, m, a = space.basis, space.m, space.radius
+    x = np.outer(b.k1, r)
+    phi = special.jv(m, x)
+    dphi = b.k1[:, None] * special.jvp(m, x)
+
+    def ihat(k, d=0):  # I_m(k r) / I_m(k a) (d = 1: its r-derivative), scaled against overflow
+        k = np.atleast_1d(k)[:, None]
+        value = special.ive(m, k * r) / special.ive(m, k * a) * np.exp(k * (r - a))
+        return value if d == 0 else k * (special.ive(m + 1, k * r) / special.ive(m, k * r) + m / (k * r)) * value
+
+    phi, dphi = phi + b.c[:, None] * ihat(b.k2), dphi + b.c[:, None] * ihat(b.k2, 1)
+    xr = r / a
+    chi = xr ** (m + 2) - space.a1 * xr**m - space.b1 * ihat(space.ks)[0]
+    dchi = ((m + 2) * xr ** (m + 1) - space.a1 * m * xr ** max(m - 1, 0) * (m > 0)) / a \
+        - space.b1 * ihat(space.ks, 1)[0]
+    return np.vstack([phi, chi]), np.vstack([dphi, dchi])
+
+
+@pytest.mark.parametrize("drum, m", [("kettledrum", 3), ("bass_drum", 6), ("tom", 0)])
+def test_tension_gram_against_adaptive_quadrature(drum, m):
+    # the closed form of dissipation.tension_gram against scipy's adaptive quadrature of
+    # int (phi_i' phi_j' + m^2 phi_i phi_j / r^2) r dr, the functions from their definitions
+    # (J_m and I_m of the in-vacuum modes, the rim polynomial); a few entries, the highest
+    # mode (whose rim layer is the thinnest) among them
+    from scipy import integrate
+
+    from membrane import load_drum
+    from membrane.physics import operator
+
+    head = load_drum(drum).head
+    shape = operator.shape_of(head, m=m, count=19, rim=True)
+    space = operator.unit_space(shape)
+    gram = dz.tension_gram(space)
+    layer = float(np.max(space.basis.k2))
+    points = sorted(1 - d / layer for d in (100, 30, 10, 3, 1) if 1 - d / layer > 0)
+
+    def entry(i, j):
+        def f(r):
+            phi, dphi = _shapes_and_slopes(space, np.array([r]))
+            return (dphi[i, 0] * dphi[j, 0] + m * m / (r * r) * phi[i, 0] * phi[j, 0]) * r
+        return space.basis.angular_weight * integrate.quad(f, 1e-9, 1.0, points=points, limit=400,
+                                                           epsabs=0, epsrel=1e-11)[0]
+
+    n = space.size
+    for i, j in [(0, 0), (1, 0), (n - 2, n - 2), (n - 1, n - 1), (n - 1, 0), (n - 2, 3)]:
+        assert gram[i, j] == pytest.approx(entry(i, j), rel=1e-10, abs=1e-12 * abs(gram[0, 0])), (i, j)

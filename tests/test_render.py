@@ -247,6 +247,23 @@ def test_a_gif_repeats_the_first_half_period_as_a_fresh_render_would():
     assert reused[5] is reused[1] and reused[4] is reused[2]  # rendered once
 
 
+def test_the_see_through_body_is_drawn_as_order_independent_transparency_draws_it():
+    # a kettle's translucent bowl by plain alpha blending (HeadScene) against vtk's own
+    # order-independent transparency (the reference): the same picture to a few levels of 255
+    from membrane.render.animate import HeadScene, View
+
+    modes = solve(load_drum("kettledrum"), "ideal", m_max=2, n_max=1)
+    frames = []
+    for oit in (False, True):
+        scene = HeadScene(modes, modes.find(2, 1), View(frames=2, width=96, height=96))
+        try:
+            scene.plotter.renderer.SetUseOIT(oit)
+            frames.append(scene.frame(0.4).astype(int))
+        finally:
+            scene.close()
+    assert np.abs(frames[0] - frames[1]).max() <= 8
+
+
 def test_mp4_has_the_frames_and_size_asked_for(tmp_path):
     out = tmp_path / "mode.mp4"
     result = run("render", "kettledrum", "--physics", "ideal", "--mode", "1,1", "--frames", 5,

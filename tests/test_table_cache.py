@@ -177,24 +177,7 @@ def test_the_fingerprint_covers_every_module_that_computes_a_table():
     from membrane import bessel
     from membrane.physics import operator, radiation, ritz, table_cache, vacuum
 
-    from membrane.physics import dissipation
-
     used = {operator.unit_table.__module__, operator.unit_space.__module__,
             radiation.RadiationTable.__module__, radiation.radiation_integral.__module__,
-            ritz.RitzSpace.__module__, vacuum.stiff_basis.__module__, bessel.jn_zeros.__module__,
-            ritz.radial_nodes.__module__, dissipation.tension_gram.__module__,
-            dissipation._unit_head_terms.__module__}
+            ritz.RitzSpace.__module__, vacuum.stiff_basis.__module__, bessel.jn_zeros.__module__}
     assert used <= set(table_cache.SOURCES), used - set(table_cache.SOURCES)
-
-
-def test_tension_gram_from_disk_equals_the_quadrature(cache):
-    # the stiff head's tension Gram matrix (dissipation.py) is kept on disk like the tables:
-    # read back it is the Gauss-Legendre quadrature's matrix bit for bit
-    from membrane.physics import dissipation
-
-    fresh = dissipation.tension_gram(unit_space(STIFF))
-    first, _ = dissipation._unit_head_terms.__wrapped__(STIFF)  # computes and writes
-    assert len(files(cache)) == 1
-    loaded, _ = dissipation._unit_head_terms.__wrapped__(STIFF)  # reads back
-    np.testing.assert_array_equal(first, fresh)
-    np.testing.assert_array_equal(loaded, fresh)

@@ -51,6 +51,7 @@ from functools import lru_cache
 import numpy as np
 from scipy import special
 
+from ..bessel import lommel
 from ..drum import GAMMA_AIR, R_DRY_AIR
 from .duct_walls import DuctWalls, duct_wall_forms  # noqa: F401 (duct_wall_forms: the definition)
 from .vacuum import ratio_i
@@ -116,59 +117,82 @@ def thermal_layer_admittance(omega, *, density: float, sound_speed: float, visco
 
 
 # ----------------------------------------------------------------------------- the head
-def _basis_values(basis, r):
-    """phi_n(r) and d phi_n / dr, each (N, len r), for an ideal or stiff basis, 0 < r <= a.
-
-    Two Bessel evaluations per point for each part: J_m, J_{m+1} (J_m' = (m/x) J_m - J_{m+1})
-    and the scaled I_m, I_{m+1} (I_m' = I_{m+1} + (m/x) I_m), the I part normalised by its
-    edge value as in vacuum.py.
-    """
-    m, a = basis.m, basis.radius
-    r = np.atleast_1d(np.asarray(r, dtype=float))
-    x = np.outer(basis.k1, r)
-    jm, jm1 = special.jv(m, x), special.jv(m + 1, x)
-    phi = jm
-    dphi = basis.k1[:, None] * ((m / x) * jm - jm1)
-    if basis.k2 is not None:
-        k2 = basis.k2[:, None]
-        y = k2 * r[None, :]
-        scale = basis.c[:, None] * np.exp(k2 * (r[None, :] - a)) / special.ive(m, k2 * a)
-        im, im1 = special.ive(m, y), special.ive(m + 1, y)
-        phi = phi + scale * im
-        dphi = dphi + scale * k2 * (im1 + (m / y) * im)
-    return phi, dphi
-
-
-def _rim_slope(space, r):
-    """d chi / dr of the Ritz space's rim function, (len r,)."""
-    a, m = space.radius, space.m
-    x = np.asarray(r, dtype=float) / a
-    out = ((m + 2) * x ** (m + 1) - space.a1 * m * x ** max(m - 1, 0) * (m > 0)) / a
-    if space.ks is not None:
-        y = space.ks * x * a
-        ihat = special.ive(m, y) / special.ive(m, space.ks * a) * np.exp(space.ks * a * (x - 1.0))
-        out = out - space.b1 * space.ks * ihat * ratio_i(m, y)
-    return out
-
-
 def tension_gram(space) -> np.ndarray:
     r""":math:`\int|\nabla\phi|^2 dA` over the Ritz space (basis and rim function), (size, size).
 
-    Dimensionless (the integral is scale-free in two dimensions); by Gauss-Legendre
-    quadrature on the nodes that assemble the space.
+    Dimensionless (the integral is scale-free in two dimensions). In closed form: every
+    function of the space vanishes at the rim, so by Green's identity the Gram matrix is
+    :math:`-\pi_m\langle\phi_i, L\phi_j\rangle`, L the Bessel operator of order m
+    (:math:`L u = u'' + u'/r - m^2 u/r^2`), and each function is a sum of atoms that L maps
+    onto atoms: :math:`L J_m(kr) = -k^2 J_m(kr)`, :math:`L \hat I_m(kr) = k^2 \hat I_m(kr)`
+    (:math:`\hat I` normalised to 1 at the rim, as in vacuum.py), :math:`L x^{m+2} = 4(m+1)
+    x^m / a^2`, :math:`L x^m = 0` (x = r/a). The atoms' overlaps are Lommel's integrals (and
+    their modified-Bessel forms) and :math:`\int r^{m+1} J_m = r^{m+1} J_{m+1}/k`,
+    :math:`\int r^{m+3} J_m = r^{m+3} J_{m+1}/k - 2 r^{m+2} J_{m+2}/k^2` (the same with I).
+    Checked against scipy's adaptive quadrature in tests/test_dissipation.py (to 1e-13).
     """
-    from .ritz import radial_nodes as _radial_nodes
-
-    r, w = _radial_nodes(space)
     b = space.basis
-    phi, dphi = _basis_values(b, r)
-    if space.rim:
-        phi = np.vstack([phi, space.rim_shape(r)[None, :]])
-        dphi = np.vstack([dphi, _rim_slope(space, r)[None, :]])
-    m = space.m
-    wr = w * r
-    gram = (dphi * wr) @ dphi.T + m * m * (phi * (w / r)) @ phi.T
-    return b.angular_weight * gram
+    m, a = b.m, b.radius
+    N = b.size
+    k1 = b.k1
+    stiff = b.k2 is not None
+    rim = space.rim
+    with_is = rim and space.ks is not None
+    # atoms: J(k1 r) per mode, I^(k2 r) per mode (stiff), x^(m+2), x^m, I^(ks r) (rim)
+    kind = ["J"] * N + (["I"] * N if stiff else []) + (["P2", "P0"] if rim else []) \
+        + (["I"] if with_is else [])
+    kv = np.concatenate([k1, b.k2 if stiff else [], [0.0, 0.0] if rim else [],
+                         [float(space.ks)] if with_is else []])
+    kind = np.array(kind)
+    n_atoms = len(kind)
+    C = np.zeros((space.size, n_atoms))  # each function of the space in atoms
+    C[np.arange(N), np.arange(N)] = 1.0
+    if stiff:
+        C[np.arange(N), N + np.arange(N)] = b.c
+    J, I, P2, P0 = (kind == "J"), (kind == "I"), (kind == "P2"), (kind == "P0")
+    if rim:
+        C[N, P2], C[N, P0] = 1.0, -space.a1
+        if with_is:
+            C[N, n_atoms - 1] = -space.b1
+    M = np.zeros((n_atoms, n_atoms))  # overlaps <atom, atom> = int u v r dr
+    kj = kv[J]
+    xj = kj * a
+    jm, djm = special.jv(m, xj), special.jvp(m, xj)
+    M[np.ix_(J, J)] = lommel(m, kj[:, None], kj[None, :], a)
+    if I.any():
+        ki = kv[I]
+        y = ki * a
+        i0, i1 = special.ive(m, y), special.ive(m + 1, y)
+        rho = i1 / i0  # I_{m+1} / I_m
+        ratio = rho + m / y  # I_m' / I_m
+        ji = a * (jm[:, None] * (ki * ratio)[None, :] - (kj * djm)[:, None]) \
+            / (kj[:, None] ** 2 + ki[None, :] ** 2)
+        M[np.ix_(J, I)], M[np.ix_(I, J)] = ji, ji.T
+        # I^ I^: a (k_p R_p - k_q R_q) / (k_p^2 - k_q^2); the m/a of R cancels exactly
+        num = (ki * rho)[:, None] - (ki * rho)[None, :]
+        den = ki[:, None] ** 2 - ki[None, :] ** 2
+        same = np.abs(den) <= 1e-12 * ki[:, None] ** 2
+        diag = 0.5 * a * a * (1.0 + m * m / (y * y) - ratio * ratio)
+        M[np.ix_(I, I)] = np.where(same, diag[:, None], a * num / np.where(same, 1.0, den))
+        if rim:
+            q2 = special.ive(m + 2, y) / i0
+            ip0, ip2 = a * rho / ki, a * rho / ki - 2.0 * q2 / ki**2
+            M[np.ix_(I, P0)], M[np.ix_(P0, I)] = ip0[:, None], ip0[None, :]
+            M[np.ix_(I, P2)], M[np.ix_(P2, I)] = ip2[:, None], ip2[None, :]
+    if rim:
+        jm1, jm2 = special.jv(m + 1, xj), special.jv(m + 2, xj)
+        jp0, jp2 = a * jm1 / kj, a * jm1 / kj - 2.0 * jm2 / kj**2
+        M[np.ix_(J, P0)], M[np.ix_(P0, J)] = jp0[:, None], jp0[None, :]
+        M[np.ix_(J, P2)], M[np.ix_(P2, J)] = jp2[:, None], jp2[None, :]
+        M[np.ix_(P2, P2)] = a * a / (2 * m + 6)
+        M[np.ix_(P2, P0)] = M[np.ix_(P0, P2)] = a * a / (2 * m + 4)
+        M[np.ix_(P0, P0)] = a * a / (2 * m + 2)
+    # <atom, L atom>
+    S = M * np.where(J, -kv**2, np.where(I, kv**2, 0.0))[None, :]
+    if rim:
+        S[:, P2] = (4.0 * (m + 1) / a**2) * M[:, P0]
+    gram = -b.angular_weight * (C @ S @ C.T)
+    return 0.5 * (gram + gram.T)  # symmetric to round-off: the mean of the two halves
 
 
 def edge_force(space) -> np.ndarray:
@@ -202,26 +226,11 @@ def edge_force(space) -> np.ndarray:
 
 @lru_cache(maxsize=512)
 def _unit_head_terms(shape):
-    """Tension Gram matrix and edge force of the unit space of ``shape``.
-
-    The Gram matrix of a stiff head depends on the dimensionless shape only, so, like the
-    radiation tables, it is kept on disk between processes (table_cache.py: exact keys, the
-    stored matrix is bit for bit the computed one).
-    """
-    from . import table_cache
+    """Tension Gram matrix and edge force of the unit space of ``shape``."""
     from .operator import unit_space
 
     space = unit_space(shape)
-    if shape.s is None:
-        gram = space.K
-    else:
-        name = table_cache.key("tension-gram", shape)
-        stored = table_cache.load(name, {"gram": (space.size, space.size)})
-        if stored is not None:
-            gram = stored["gram"]
-        else:
-            gram = tension_gram(space)
-            table_cache.store(name, gram=gram)
+    gram = space.K if shape.s is None else tension_gram(space)
     return gram, edge_force(space)
 
 

@@ -186,21 +186,34 @@ class DuctWalls:
         A = [amp[h * Q:(h + 1) * Q] for h in range(self.heads)]  # (Q, n) per head
         B = [H @ a_ for a_ in A]
 
-        def outer(x, y):  # per duct mode q, x_q y_q^T flattened: (Q, n * n)
-            return np.einsum("qi,qj->qij", x, y).reshape(Q, n * n)
+        def outer(x, y):  # per duct mode q, x_q y_q^T flattened: (Q, cols of x * cols of y)
+            return np.einsum("qi,qj->qij", x, y).reshape(Q, x.shape[1] * y.shape[1])
 
-        def pair(i, j):  # A_i^T (HU - UH + D) A_j = sum_q d_q a_iq a_jq^T - u_q (b_iq a_jq^T + a_iq b_jq^T)
-            return outer(A[i], A[j]), outer(B[i], A[j]) + outer(A[i], B[j])
+        def pair(i, j, ci=slice(None), cj=slice(None)):
+            # A_i^T (HU - UH + D) A_j = sum_q d_q a_iq a_jq^T - u_q (b_iq a_jq^T + a_iq b_jq^T)
+            ai, aj, bi, bj = A[i][:, ci], A[j][:, cj], B[i][:, ci], B[j][:, cj]
+            return outer(ai, aj), outer(bi, aj) + outer(ai, bj)
 
         # W = [d, -u] @ X: the form is linear in the per-mode weights (d, u), so the products
         # with the fixed A and B are done once here; per frequency one real matrix product
+        self.n = n
+        self.blocks = None
+        if self.heads == 2:
+            spans = [_span(a_) for a_ in A]
+            if None not in spans and (spans[0].stop <= spans[1].start or spans[1].stop <= spans[0].start):
+                # two different heads, each on its own coordinates: the own-head terms fill
+                # the diagonal blocks only and the cross terms the off-diagonal ones, so each
+                # block gets only its own products (a third of the work of the whole matrix)
+                s0, s1 = spans
+                own = [np.vstack(pair(h, h, sp, sp)) for h, sp in ((0, s0), (1, s1))]
+                self.blocks = (s0, s1, own, np.vstack(pair(0, 1, s0, s1)))
+                return
         own = [pair(h, h) for h in range(self.heads)]
         rows = [sum(p[0] for p in own), sum(p[1] for p in own)]
         if self.heads == 2:
             x01, x10 = pair(0, 1), pair(1, 0)
             rows += [x01[0] + x10[0], x01[1] + x10[1]]
         self.X = np.vstack(rows)
-        self.n = n
 
     def forms(self, k, thermal, viscous) -> np.ndarray:
         r""":math:`A^T (t\,\Pi(k) + v\,\Upsilon(k)) A`, (R, n, n) complex.
@@ -237,11 +250,31 @@ class DuctWalls:
         u_x = alpha * fcsc + v * (b * csc)
         d_x = self.side_diag * (alpha * (0.5 * (fcsc + lcc) / bb) - v * (0.5 * (fcsc - lcc)))
         d_x = d_x + self.face_norms * (2.0 * fcot * fcsc) * grad
-        return self._combine([d_own, -u_own, d_x, -u_x])
+        if self.blocks is None:
+            return self._combine([d_own, -u_own, d_x, -u_x])
+        s0, s1, own, cross = self.blocks
+        out = np.zeros((k.shape[0], self.n, self.n), complex)
+        for sp, X in zip((s0, s1), own):
+            size = sp.stop - sp.start
+            out[:, sp, sp] = self._combine([d_own, -u_own], X, (size, size))
+        x = self._combine([d_x, -u_x], cross, (s0.stop - s0.start, s1.stop - s1.start))
+        out[:, s0, s1] = x
+        out[:, s1, s0] = np.swapaxes(x, 1, 2)
+        return out
 
-    def _combine(self, weights):
-        """sum of weights @ X: complex (R, rows) times the real X, as (R, n, n)."""
+    def _combine(self, weights, X=None, shape=None):
+        """sum of weights @ X: complex (R, rows) times the real X, as (R, n, n) (or shape)."""
+        X = self.X if X is None else X
+        shape = (self.n, self.n) if shape is None else shape
         w = np.concatenate(weights, axis=1)
         R = w.shape[0]
-        out = np.vstack([w.real, w.imag]) @ self.X
-        return (out[:R] + 1j * out[R:]).reshape(R, self.n, self.n)
+        out = np.vstack([w.real, w.imag]) @ X
+        return (out[:R] + 1j * out[R:]).reshape(R, *shape)
+
+
+def _span(a):
+    """The columns of ``a`` that are not all zero, as a slice if they are contiguous, else None."""
+    cols = np.flatnonzero(np.any(a != 0, axis=0))
+    if not len(cols) or cols[-1] - cols[0] + 1 != len(cols):
+        return None
+    return slice(int(cols[0]), int(cols[-1]) + 1)

@@ -129,40 +129,62 @@ def radiation_integral(space, k, *, quadrature: Quadrature = Quadrature()) -> np
     numpy.ndarray
         Complex (N, N) in m^3; A = rho pi_m I.
     """
+    return radiation_integrals(space, np.array([complex(k)]), quadrature=quadrature)[0]
+
+
+def radiation_integrals(space, k, *, quadrature: Quadrature = Quadrature()) -> np.ndarray:
+    r""":func:`radiation_integral` at many wavenumbers at once, (len k, N, N) complex, m^3.
+
+    The same quadrature at each k; the transforms of all the nodes of all the k are
+    evaluated together (a table fit needs tens of k, and one evaluation per k was mostly
+    the cost of calling numpy, not of the Bessel functions).
+    """
     q = quadrature
-    k = complex(k)
+    k = np.atleast_1d(np.asarray(k, dtype=complex))
+    D = len(k)
     a = space.radius
-    k0 = space.pole_bound + abs(k) + q.margin / a
+    k0 = space.pole_bound + np.abs(k) + q.margin / a
     # On the real axis (every node of a table fit) the arc and the straight path are real:
     # the transforms then take real Bessel functions, about twice as fast as complex ones.
-    kk = k.real if k.imag == 0.0 else k
+    kk = k.real if np.all(k.imag == 0.0) else k
     xs, ws = _legendre(q.arc)
     phi = 0.5 * np.pi * xs
-    kap = kk * np.sin(phi)
-    # straight path in u from 0 to U0, split into panels of about panel_width / a
+    kap = kk[:, None] * np.sin(phi)[None, :]  # (D, arc)
+    # straight path in u from 0 to U0, split into panels of about panel_width / a: as many
+    # panels as the longest path needs, the extra ones of a shorter path with zero weight
     u0 = np.sqrt(k0 * k0 - kk * kk)
-    panels = max(1, int(np.ceil(abs(u0) * a / q.panel_width)))
+    panels = np.maximum(1, np.ceil(np.abs(u0) * a / q.panel_width).astype(int))
+    top = int(panels.max())
     xp, wp = _legendre(q.panel)
-    s = (np.arange(panels)[:, None] + xp[None, :]).ravel() / panels
-    wu = np.tile(wp, panels) / panels * u0
-    both = space.transform(np.concatenate([kap, np.sqrt(kk * kk + (u0 * s) ** 2)]))
-    f, g = both[:, :kap.size], both[:, kap.size:]
-    total = -1j * ((f * (0.5 * np.pi * ws * kap)) @ f.T) + (g * wu) @ g.T
+    idx = np.arange(top)[:, None] + xp[None, :]  # panel number + node, (top, panel)
+    s_nodes = (idx.ravel()[None, :] / panels[:, None]).astype(float)  # (D, top * panel)
+    live = (np.repeat(np.arange(top), q.panel)[None, :] < panels[:, None])
+    s_nodes = np.where(live, s_nodes, 0.0)
+    wu = np.where(live, np.tile(wp, top)[None, :] / panels[:, None], 0.0) * u0[:, None]
+    straight = np.sqrt((kk * kk)[:, None] + (u0[:, None] * s_nodes) ** 2)
+    nodes = np.concatenate([kap, straight], axis=1)  # (D, arc + top * panel)
+    both = space.transform(nodes.ravel()).reshape(-1, D, nodes.shape[1]).transpose(1, 0, 2)
+    f, g = both[:, :, :q.arc], both[:, :, q.arc:]
+    warc = (0.5 * np.pi * ws)[None, :] * kap
+    total = -1j * ((f * warc[:, None, :]) @ np.swapaxes(f, 1, 2)) \
+        + (g * wu[:, None, :]) @ np.swapaxes(g, 1, 2)
     # tails beyond K0: rotated H1 H1 (up), H2 H2 (down), mixed on the real axis
     xl, wl = _laguerre(q.laguerre)
     t = xl / (2 * a)
+    kc = k[:, None]
     for kind, sign in ((1, 1.0), (2, -1.0)):
-        kap = k0 + sign * 1j * t
-        g = _tail_factor(space, kind, kap)
-        wt = wl * kap / np.sqrt(kap * kap - k * k) * (sign * 1j / (2 * a))
-        total = total + 0.25 * np.exp(sign * 2j * k0 * a) * (g * wt) @ g.T
+        kap = k0[:, None] + sign * 1j * t[None, :]  # (D, laguerre)
+        g = _tail_factor(space, kind, kap.ravel()).reshape(-1, D, len(t)).transpose(1, 0, 2)
+        wt = wl[None, :] * kap / np.sqrt(kap * kap - kc * kc) * (sign * 1j / (2 * a))
+        total = total + (0.25 * np.exp(sign * 2j * k0 * a))[:, None, None] * \
+            ((g * wt[:, None, :]) @ np.swapaxes(g, 1, 2))
     xm, wm = _legendre(q.mixed)
-    kap = k0 / xm
-    g1, g2 = _tail_factor(space, 1, kap), _tail_factor(space, 2, kap)
-    wt = wm * k0 / xm**2 * kap / np.sqrt(kap * kap - k * k)
-    mix = (g1 * wt) @ g2.T
-    total = total + 0.25 * (mix + mix.T)
-    return total
+    kap = k0[:, None] / xm[None, :]  # (D, mixed)
+    g1 = _tail_factor(space, 1, kap.ravel()).reshape(-1, D, len(xm)).transpose(1, 0, 2)
+    g2 = _tail_factor(space, 2, kap.ravel()).reshape(-1, D, len(xm)).transpose(1, 0, 2)
+    wt = wm[None, :] * k0[:, None] / xm[None, :] ** 2 * kap / np.sqrt(kap * kap - kc * kc)
+    mix = (g1 * wt[:, None, :]) @ np.swapaxes(g2, 1, 2)
+    return total + 0.25 * (mix + np.swapaxes(mix, 1, 2))
 
 
 def radiation_matrix(space, *, k, density: float,
@@ -287,7 +309,7 @@ class RadiationTable:
         nodes = np.cos(np.pi * (np.arange(degree) + 0.5) / degree)  # Chebyshev points
         t = 0.5 * self.t_max * (nodes + 1.0)
         k = np.sqrt(t)
-        vals = np.array([radiation_integral(space, kk, quadrature=quadrature) for kk in k])
+        vals = radiation_integrals(space, k, quadrature=quadrature)
         x = vals.real
         y = -vals.imag / k[:, None, None]
         cx = chebyshev.chebfit(nodes, x.reshape(degree, -1), degree - 1)

@@ -1,5 +1,4 @@
-"""A folder of computed tables (radiation-table coefficients, tension Gram matrices), so a new
-process skips rebuilding them.
+"""A folder of computed radiation-table coefficients, so a new process skips rebuilding them.
 
 Only numbers are stored (numpy ``.npz``, no pickles), one file per table, named by a hash of
 everything the numbers depend on: the fields of the key objects given by the caller, exactly
@@ -47,11 +46,10 @@ def cache_dir() -> Path | None:
     return base / "membrane"
 
 
-# The modules whose code computes the stored tables, fingerprinted by their source files. They are
+# The modules whose code computes the tables, fingerprinted by their source files. They are
 # found, not imported: coupled.py uses this module, so importing it here would be a loop.
 SOURCES = ("membrane.bessel", "membrane.physics.vacuum", "membrane.physics.radiation",
-           "membrane.physics.ritz", "membrane.physics.operator", "membrane.physics.coupled",
-           "membrane.physics.dissipation")
+           "membrane.physics.ritz", "membrane.physics.operator", "membrane.physics.coupled")
 
 
 def _source_fingerprint() -> str:

@@ -133,6 +133,10 @@ class HeadScene:
         # vtk's default multisampling costs 3-5x per frame in software rendering
         # (no GPU); the mesh is fine enough that the edges stay clean without it.
         p.disable_anti_aliasing()
+        # The only see-through part is the body, one colour: its layers blend alike in any
+        # order, so plain alpha blending draws what vtk's order-independent transparency
+        # does (measured: within 3/255 per pixel) at three quarters of the time per frame.
+        p.renderer.SetUseOIT(False)
         p.set_background("white")
         drum = modeset.drum
         kind = getattr(getattr(drum, "body", None), "kind", "none")
@@ -225,12 +229,17 @@ def write_gif(path, frames, *, fps: float) -> None:
     """GIF that loops forever, one shared 256-colour palette (smaller, no flicker)."""
     from PIL import Image
 
-    images = [Image.fromarray(f) for f in frames]
+    frames = list(frames)
     # The palette comes from the frames together, so every frame maps to the same colours.
-    strip = Image.fromarray(np.concatenate([np.asarray(im) for im in images[:: max(1, len(images) // 6)]]))
+    strip = Image.fromarray(np.concatenate(frames[:: max(1, len(frames) // 6)]))
     # Octree palettes band least on shaded gradients here, and are the fastest to build.
     palette = strip.quantize(colors=255, method=Image.Quantize.FASTOCTREE, dither=Image.Dither.NONE)
-    paletted = [im.quantize(palette=palette, dither=Image.Dither.NONE) for im in images]
+    done = {}  # a frame repeated (HeadScene.frames with reuse) is converted once
+    paletted = []
+    for f in frames:
+        if id(f) not in done:
+            done[id(f)] = Image.fromarray(f).quantize(palette=palette, dither=Image.Dither.NONE)
+        paletted.append(done[id(f)])
     paletted[0].save(path, format="GIF", save_all=True, append_images=paletted[1:],
                      duration=int(round(1000.0 / fps)), loop=0, optimize=False, disposal=1)
 
