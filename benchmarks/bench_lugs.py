@@ -49,7 +49,7 @@ def main() -> None:
     first = best(lambda: split_table(drum, rim, physics="stiff", method="first-order", m_max=6, n_max=3))
     table = split_table(drum, rim, physics="stiff", m_max=2, n_max=1)
     pitches = 150.0 * np.sqrt(lugs / lugs.mean())
-    splits = [MeasuredSplit(s.m, s.n, s.low_hz, s.high_hz) for s in table.splits if s.m > 0]
+    splits = [MeasuredSplit(s.m, s.n, s.low_frequency, s.high_frequency) for s in table.splits if s.m > 0]
 
     def inverse():
         est = estimate_lugs(drum, count=8, pitches=pitches, splits=splits, physics="stiff")

@@ -112,8 +112,9 @@ def check(drum, *, m_max=6, n_max=3):
 SLOPE = 0.6  # |d ln f / d ln T| allowed between two values of a track
 
 
-def continuity(drum, index):
-    """Follow one order's roots over T/2..2T; (problems, roots followed, steps)."""
+def continuity(drum, index, *, points: int = 5):
+    """Follow one order's roots over T/2..2T at ``points`` values each way (both ends
+    included); (problems, roots followed, steps, kinds of the roots followed)."""
     from dataclasses import replace
 
     from membrane.branches import follow, order_roots
@@ -135,12 +136,13 @@ def continuity(drum, index):
     pick = [r for r, lab in enumerate(start.labels) if lab is not None and start.omega[r].real <= top]
     problems, steps = [], 0
     for factor in (2.0, 0.5):
-        xs = np.linspace(math.log(t0), math.log(factor * t0), 5)
+        xs = np.linspace(math.log(t0), math.log(factor * t0), points)
         track = follow(at, xs, m=m, n_max=2, roots=pick, losses=drum.losses, labels=False)
         steps += track.steps
         f = track.frequencies()
         if not np.all(np.isfinite(f)):
-            problems.append(f"x{factor:g}: followed only to value {int(np.sum(np.all(np.isfinite(f), axis=1)))} of 5")
+            problems.append(f"x{factor:g}: followed only to value "
+                            f"{int(np.sum(np.all(np.isfinite(f), axis=1)))} of {points}")
             continue
         slope = np.abs(np.diff(np.log(f), axis=0)) / np.abs(np.diff(xs))[:, None]
         if np.any(slope > SLOPE):
@@ -152,7 +154,7 @@ def continuity(drum, index):
             for lab, w in lost:
                 problems.append(f"x2: the root from {lab} at {w.real / (2 * np.pi):.2f} Hz is not in "
                                 "the whole solve there")
-    return problems, len(pick), steps
+    return problems, len(pick), steps, [start.labels[r][0] for r in pick]
 
 
 def main_continuity(count: int, seed: int) -> None:
@@ -160,7 +162,7 @@ def main_continuity(count: int, seed: int) -> None:
     start = time.perf_counter()
     for i, (drum, table) in enumerate(drums(count, seed)):
         t = time.perf_counter()
-        problems, roots, steps = continuity(drum, i)
+        problems, roots, steps, _ = continuity(drum, i)
         failures += bool(problems)
         print(f"drum {i} (m = {i % 3}, {table.get('body', {}).get('kind', 'none')}): {roots} roots, "
               f"{steps} local steps, {time.perf_counter() - t:.1f} s" +

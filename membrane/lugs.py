@@ -46,6 +46,7 @@ from .drum import Drum
 from .errors import InputError
 from .notation import cents
 from .physics.prestress import RimTension, lug_angles, rim_tension
+from .renamed import renamed_attribute, warn_renamed
 from .physics.uneven import (NOTE_AIR, NOTE_EXACT, NOTE_FIRST_ORDER, Split, exact_splits,
                              first_order_splits, split_weight, with_air)
 
@@ -81,8 +82,8 @@ class SplitTable:
     notes: tuple = ()
 
     def __repr__(self) -> str:
-        worst = max(self.splits, key=lambda s: s.beat_hz, default=None)
-        most = f", widest ({worst.m},{worst.n}) beating {worst.beat_hz:.2f} Hz" if worst is not None else ""
+        worst = max(self.splits, key=lambda s: s.beat_frequency, default=None)
+        most = f", widest ({worst.m},{worst.n}) beating {worst.beat_frequency:.2f} Hz" if worst is not None else ""
         return f"SplitTable({len(self.splits)} modes, {self.physics} physics, {self.method}{most})"
 
     def find(self, m: int, n: int) -> Split:
@@ -131,23 +132,47 @@ def split_table(drum: Drum, rim: RimTension, *, physics: str = "full", method: s
                          "struck head alone carried it (an overestimate where both heads move)")
     else:
         notes.append("in vacuum: no air loading, no body")
-    splits = sorted(splits, key=lambda s: s.uniform_hz)
+    splits = sorted(splits, key=lambda s: s.uniform_frequency)
     return SplitTable(splits=tuple(splits), rim=rim, physics=physics, method=method, notes=tuple(notes))
 
 
 # ------------------------------------------------------------------ inverse
-@dataclass(frozen=True)
+@dataclass(frozen=True, init=False)
 class MeasuredSplit:
-    """A split pair as measured: mode and both members' frequencies in Hz."""
+    """A split pair as measured: mode and both members' frequencies in Hz.
+
+    ``MeasuredSplit(m, n, low_frequency, high_frequency)``; ``low_hz`` and ``high_hz`` are the
+    older names (keywords and attributes).
+    """
 
     m: int
     n: int
-    low_hz: float
-    high_hz: float
+    low_frequency: float
+    high_frequency: float
+
+    def __init__(self, m: int, n: int, low_frequency: float | None = None,
+                 high_frequency: float | None = None, *, low_hz: float | None = None,
+                 high_hz: float | None = None):
+        if low_hz is not None or high_hz is not None:
+            warn_renamed("MeasuredSplit(low_hz=, high_hz=)", "MeasuredSplit(low_frequency=, high_frequency=)")
+        low = low_frequency if low_frequency is not None else low_hz
+        high = high_frequency if high_frequency is not None else high_hz
+        if low is None or high is None:
+            raise TypeError("MeasuredSplit needs low_frequency and high_frequency (Hz)")
+        for name, value in (("m", m), ("n", n), ("low_frequency", low), ("high_frequency", high)):
+            object.__setattr__(self, name, value)
 
     @property
     def relative(self) -> float:
-        return 2 * (self.high_hz - self.low_hz) / (self.high_hz + self.low_hz)
+        return 2 * (self.high_frequency - self.low_frequency) / (self.high_frequency + self.low_frequency)
+
+    @property
+    def beat_frequency(self) -> float:
+        """high - low in Hz: the beat rate heard."""
+        return self.high_frequency - self.low_frequency
+
+    low_hz = renamed_attribute("MeasuredSplit.low_hz", "low_frequency")
+    high_hz = renamed_attribute("MeasuredSplit.high_hz", "high_frequency")
 
 
 @dataclass(frozen=True)
@@ -277,7 +302,7 @@ def estimate_lugs(drum: Drum, *, count: int, tensions: Sequence[float] | None = 
                          "do not make: it is a second-order effect here and is not used")
             continue
         w = split_weight(drum.head, m=s.m, n=s.n, stiff=stiff, tension=t0)
-        sigma = max(SPLIT_FRACTION * s.relative, SPLIT_HZ / (0.5 * (s.low_hz + s.high_hz)))
+        sigma = max(SPLIT_FRACTION * s.relative, SPLIT_HZ / (0.5 * (s.low_frequency + s.high_frequency)))
         split_terms.append((_harmonic_rows(count, k), s.relative / abs(w), abs(w) / sigma, k))
         seen_k.setdefault(k, []).append((s.relative / abs(w), abs(w) / sigma))
     A = np.vstack(rows) if rows else np.zeros((0, count))
@@ -334,8 +359,8 @@ def measured_splits(identification) -> list[MeasuredSplit]:
     """Split pairs out of :func:`membrane.identify.identify`'s result."""
     out = []
     for pair in getattr(identification, "splits", ()):
-        out.append(MeasuredSplit(m=int(pair.m), n=int(pair.n), low_hz=float(pair.low.frequency),
-                                 high_hz=float(pair.high.frequency)))
+        out.append(MeasuredSplit(m=int(pair.m), n=int(pair.n), low_frequency=float(pair.low.frequency),
+                                 high_frequency=float(pair.high.frequency)))
     return out
 
 
@@ -388,13 +413,13 @@ def prescribe_turns(drum: Drum, tensions: Sequence[float], *, cents_per_turn: fl
     rim = rim_tension(t)
     stiff = physics != "ideal"
     now = exact_splits(drum.head, rim, m_max=1, n_max=1, stiff=stiff)[1]
-    # uniform head at T: f11 = now.uniform_hz at T0; keep the pair's mean
-    mean_now = 0.5 * (now.low_hz + now.high_hz)
-    target = rim.mean * (mean_now / now.uniform_hz) ** 2  # sqrt(T) for the (1,1) near T0
+    # uniform head at T: f11 = now.uniform_frequency at T0; keep the pair's mean
+    mean_now = 0.5 * (now.low_frequency + now.high_frequency)
+    target = rim.mean * (mean_now / now.uniform_frequency) ** 2  # sqrt(T) for the (1,1) near T0
     if stiff and drum.head.bending_stiffness > 0:
         # stiffness breaks the sqrt law a little: one secant-free correction step
         even = exact_splits(drum.head, rim_tension(np.full(t.size, target)), m_max=1, n_max=1,
-                            stiff=True)[1].uniform_hz
+                            stiff=True)[1].uniform_frequency
         target *= (mean_now / even) ** 2
     change = target - t
     tap = 0.5 * cents(target, t)  # f ~ sqrt(T)

@@ -34,3 +34,15 @@ def old_names(module_name: str, renamed: dict[str, str]):
         raise AttributeError(f"module {module_name!r} has no attribute {name!r}")
 
     return __getattr__
+
+
+def renamed_attribute(old: str, new: str) -> property:
+    """A read-only property under an old attribute name that returns ``new``, with a warning.
+
+    ``old`` is the qualified old name shown to the user (``"Split.low_hz"``).
+    """
+    def get(self):
+        warn_renamed(old, f"{type(self).__name__}.{new}")
+        return getattr(self, new)
+
+    return property(get, doc=f"The older name of :attr:`{new}`.")

@@ -53,8 +53,8 @@ def split_partials(modeset: ModeSet, table: SplitTable, *, strike: Strike = Stri
             continue
         m = mode.m
         psi = math.radians(s.high_antinode_deg) if s.high_antinode_deg is not None else 0.0
-        for f, gain in ((s.high_hz, math.cos(m * (theta0 - psi)) * math.cos(m * (phi - psi))),
-                        (s.low_hz, math.sin(m * (theta0 - psi)) * math.sin(m * (phi - psi)))):
+        for f, gain in ((s.high_frequency, math.cos(m * (theta0 - psi)) * math.cos(m * (phi - psi))),
+                        (s.low_frequency, math.sin(m * (theta0 - psi)) * math.sin(m * (phi - psi)))):
             omega = complex(2 * math.pi * f, mode.omega.imag)
             member = replace(mode, frequency=f, omega=omega, multiplicity=1)
             out.append(replace(part, mode=member, frequency=f, pressure=part.pressure * gain))

@@ -1,4 +1,4 @@
-"""Tuning: the tension that puts chosen modes on target pitches, and lug equalisation.
+"""Tuning: the tension that puts chosen modes on target pitches.
 
 With air loading and a body, a mode's frequency is not proportional to sqrt(T) (the
 air's added mass and the kettle's air spring do not scale with tension), so the
@@ -11,9 +11,8 @@ Safety and validity (film stress, the slack limit, the practical minimum, the ca
 importable from here as before. A target the model cannot reach above the slack limit is
 refused; a suggestion below it (several targets) gets a caution.
 
-* Lugs: the pitch tapped near a lug is taken as proportional to sqrt(local tension).
-  This is a rule of thumb (common practice, no source), not a result of the model,
-  which treats the tension as uniform; it is labelled so wherever it is printed.
+Lug by lug equalisation from tap pitches lives in :mod:`membrane.lug_changes` (its names are
+importable from here as before).
 
 Everything here takes and returns SI floats (N/m, Hz, kg/m^2, m^3, Pa).
 """
@@ -33,6 +32,7 @@ from .notation import cents as _cents
 from .safety import (CAUTIONS, MIN_HOLDING_STRAIN, MIN_RULE, SAFE_STRESS_FRACTION, TENSION_CEILING,  # noqa: F401
                      below_minimum, practical_minimum, safety_warnings, slack_tension, stress, tension_ceiling)
 from . import tension_search
+from .lug_changes import LUG_RULE, TURN_STEP, LugChange, equalise_lugs, turns_text  # noqa: F401  (their old address)
 from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
 # Targets count as met together when every residual is within this many cents.
@@ -41,11 +41,8 @@ TOGETHER_CENTS = 1.0
 TOLERANCE_CENTS = 1e-3
 # the other branch of a crossing is offered only within this factor of the crossing's tension
 BRANCH_RANGE = 1.5  # our choice: beyond it the branch is usually another partial
-TURN_STEP = 1 / 8  # lug changes are rounded to eighths of a turn  # common practice, no source
 
-LUG_RULE = ("rule of thumb: the pitch tapped near a lug is taken as proportional to the square "
-            "root of the local tension, so relative tension = (tap pitch / rms tap pitch)^2")
-FREE = ("areal-density", "volume")
+FREE = ("areal_density", "volume")
 
 
 # ------------------------------------------------------------------ the model as a function
@@ -66,7 +63,7 @@ class _Model:
 
     def variant(self, tension: float, free: str | None = None, value: float | None = None) -> Drum:
         drum = self.drum.with_tension(tension)
-        if free == "areal-density":
+        if free == "areal_density":
             drum = replace(drum, head=replace(drum.head, areal_density=value))
         elif free == "volume":
             drum = replace(drum, body=replace(drum.body, volume=value))
@@ -146,7 +143,7 @@ class Tuning:
     modes : ModeSet or None
         All modes solved at the suggestion (the new ratio table), if asked for.
     free, current_value, value : str, float or None
-        The freed parameter ("areal-density" kg/m^2 or "volume" m^3), before and after.
+        The freed parameter ("areal_density" kg/m^2 or "volume" m^3), before and after.
     together : bool
         Whether every target is met within :data:`TOGETHER_CENTS`.
     warnings : tuple of str
@@ -206,7 +203,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
         Modes (m, n) and their target frequencies in Hz.
     physics : {"ideal", "stiff", "full"}
         Model, as in :func:`membrane.solve`.
-    free : {None, "areal-density", "volume"}
+    free : {None, "areal_density", "volume"}
         A second parameter to fit with several targets: the head's areal density
         (kg/m^2) or the kettle's volume (m^3).
     n_max, m_max : int
@@ -263,7 +260,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
         x0 = [math.log(min(max(naive, math.exp(lo)), math.exp(hi)))]
         bounds = ([lo], [hi])
         if free is not None:
-            current_value = drum.head.areal_density if free == "areal-density" else drum.body.volume
+            current_value = drum.head.areal_density if free == "areal_density" else drum.body.volume
             x0.append(math.log(current_value))
             # within a factor of 10 either way, and the drum-file range (10 kg/m^2, 10 m^3)
             bounds = ([lo, math.log(current_value / 10)], [hi, math.log(min(current_value * 10, 10.0))])
@@ -291,7 +288,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     warnings = safety_warnings(suggested.head, tension)
     if free is not None and not 0.5 <= value / current_value <= 2.0:
         # a fit may buy a cent or two with a drum nobody would build: say so
-        what = "areal density" if free == "areal-density" else "kettle volume"
+        what = "areal density" if free == "areal_density" else "kettle volume"
         warnings.append(f"the fit changes the {what} by a factor of {value / current_value:.2f} "
                         f"({current_value:.4g} -> {value:.4g} SI): check it is a drum you can build")
     return Tuning(current_tension=t_now, tension=tension, naive_tension=naive, targets=tuple(found),
@@ -308,7 +305,7 @@ def _check_free(drum: Drum, free: str, physics: str, count: int) -> None:
         raise InputError("free", free, f"only a kettle has a volume (this drum's body is {drum.body.kind!r})")
     if free == "volume" and physics != "full":
         raise InputError("free", free, "the volume acts through the air in the body: use physics full")
-    if free == "areal-density" and physics == "ideal":
+    if free == "areal_density" and physics == "ideal":
         raise InputError("free", free, "with ideal physics the mass scales every mode alike and cannot "
                          "change their ratios: use physics stiff or full")
 
@@ -380,75 +377,3 @@ def _crossing(drum: Drum, mode, hz: float, model: _Model, jump, lo: float, hi: f
               f"the upper branch from {f2:.4g} Hz{other}; choose a target outside "
               f"{f1:.4g}-{f2:.4g} Hz")
     raise InputError("target", f"{hz:.4g} Hz", words)
-
-
-# ------------------------------------------------------------------ lugs
-@dataclass(frozen=True)
-class LugChange:
-    """What one lug needs. Tension and turns are positive for tightening."""
-
-    lug: int
-    tap_hz: float
-    relative_tension: float
-    change_cents: float
-    tension_change_percent: float
-    turns: float | None
-
-
-def equalise_lugs(pitches, *, tension_ratio: float = 1.0, cents_per_turn: float | None = None,
-                  key: str = "lugs.pitches") -> tuple[float, tuple[LugChange, ...]]:
-    """Per-lug changes that bring every lug to one tap pitch (rule of thumb, see LUG_RULE).
-
-    Parameters
-    ----------
-    pitches : sequence of float
-        Tap pitch near each lug in Hz, at least 3.
-    tension_ratio : float
-        New mean tension over the current one (1: just even the head out).
-    cents_per_turn : float or None
-        Measured pitch change for one full turn of a lug, in cents; gives turns,
-        rounded to :data:`TURN_STEP`.
-
-    Returns
-    -------
-    (float, tuple of LugChange)
-        The target tap pitch in Hz and each lug's change.
-
-    Notes
-    -----
-    With tap pitch proportional to sqrt(local tension), the rms tap pitch stands for
-    the head's mean tension, and the target tap pitch is it times sqrt(tension_ratio).
-    """
-    f = np.asarray(pitches, dtype=float)
-    if f.size < 3:
-        raise InputError(key, list(pitches), "give the tap pitch at each of at least 3 lugs")
-    if not np.all(np.isfinite(f)) or np.any(f <= 0):
-        raise InputError(key, list(pitches), "tap pitches must be positive frequencies")
-    if cents_per_turn is not None and not (math.isfinite(cents_per_turn) and cents_per_turn > 0):
-        raise InputError("cents_per_turn", cents_per_turn, "must be a positive number of cents per turn")
-    rms = float(np.sqrt(np.mean(f * f)))
-    target = rms * math.sqrt(tension_ratio)
-    lugs = []
-    for i, tap in enumerate(f):
-        change = float(_cents(target, tap))
-        turns = None
-        if cents_per_turn is not None:
-            turns = round(change / cents_per_turn / TURN_STEP) * TURN_STEP + 0.0
-        lugs.append(LugChange(lug=i + 1, tap_hz=float(tap), relative_tension=float((tap / rms) ** 2),
-                              change_cents=change, tension_change_percent=float(100.0 * ((target / tap) ** 2 - 1)),
-                              turns=turns))
-    return target, tuple(lugs)
-
-
-def turns_text(turns: float) -> str:
-    """Eighths of a turn in words a person can act on: ``+1 3/8``, ``-1/4``, ``0``."""
-    eighths = round(turns * 8)
-    if eighths == 0:
-        return "0"
-    sign = "+" if eighths > 0 else "-"
-    whole, rest = divmod(abs(eighths), 8)
-    frac = ""
-    if rest:
-        g = math.gcd(rest, 8)
-        frac = f"{rest // g}/{8 // g}"
-    return sign + " ".join(p for p in (str(whole) if whole else "", frac) if p)

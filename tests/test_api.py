@@ -62,6 +62,19 @@ def test_one_spelling_and_the_old_names_still_resolve():
         assert strike.at == 0.4
     with pytest.raises(AttributeError):
         membrane.strike.no_such_name
+    # attributes are SI without a unit in the name (docs/physics.md, "Notation"); old names warn
+    from membrane.lugs import MeasuredSplit
+    from membrane.physics.uneven import Split
+
+    split = Split(m=1, n=1, low_frequency=99.0, high_frequency=101.0, uniform_frequency=100.0,
+                  orientation_deg=0.0)
+    with pytest.warns(DeprecationWarning, match="low_frequency"):
+        assert split.low_hz == 99.0
+    with pytest.warns(DeprecationWarning, match="beat_frequency"):
+        assert split.beat_hz == split.beat_frequency == 2.0
+    with pytest.warns(DeprecationWarning, match="low_frequency"):
+        measured = MeasuredSplit(1, 1, low_hz=99.0, high_hz=101.0)
+    assert measured == MeasuredSplit(1, 1, 99.0, 101.0) and measured.beat_frequency == 2.0
     # the two kinds of partial are different classes with different names
     assert membrane.SoundingMode is not membrane.analysis.Partial
     # a fit over named modes and over raw frequencies: HarmonicFit from the ModeSet

@@ -157,3 +157,25 @@ def test_a_contour_node_on_an_eigenvalue_asks_for_another_curve():
     lam = z[0]
     with pytest.raises(TooMany):
         eigen_in_circle(lambda s: (s - lam)[:, None, None], 10.0, 1.0, points=16)
+
+
+@pytest.mark.parametrize("m", [1, 3, 6])
+def test_high_circles_are_labelled_in_the_in_vacuum_order(m):
+    # `modes kettledrum --m-max 20 --n-max 10`: the roots labelled (m,1)..(m,10) are, in order,
+    # the in-vacuum modes n = 1..10 of the head (each holds at least 90 % of its head motion
+    # in that mode), and sit a few % below the ideal membrane's j_mn c / (2 pi a) (air loading
+    # lowers, the film's stiffness raises them slightly; j_mn from scipy.special.jn_zeros)
+    from scipy.special import jn_zeros
+
+    from membrane.physics.assembly import mode_energy
+
+    drum = load_drum("kettledrum")
+    od = solve_drum(drum, m_max=m, n_max=10, only=m, losses=drum.losses)[0]
+    e = mode_energy(od.order, od.vectors)[:, 0, :]
+    heads = sorted((lab[2], r) for r, lab in enumerate(od.labels) if lab is not None and lab[0] == "head")
+    assert [n for n, _ in heads] == list(range(1, 11))
+    c = math.sqrt(drum.head.tension / drum.head.areal_density)
+    ideal = jn_zeros(m, 10) * c / (2 * math.pi * drum.head.radius)
+    for (n, r), f_ideal in zip(heads, ideal):
+        assert int(np.argmax(e[r])) == n - 1 and e[r, n - 1] >= 0.9, (n, e[r].round(2))
+        assert 0.6 < od.omega[r].real / (2 * math.pi) / f_ideal < 1.0, n

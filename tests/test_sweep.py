@@ -20,3 +20,21 @@ DRUMS = sweep.drums(8, seed=7)
 def test_generated_drum_solves_with_every_decay_shown(index):
     drum, table = DRUMS[index]
     assert sweep.check(drum, m_max=3, n_max=2) == [], table
+
+
+# three of benchmarks/sweep_drums.py --continuity's 20 drums (seed 11; the benchmark follows all
+# 20): no body, and two kettles, one of whose followed roots is an air row of the bowl
+CONTINUITY = sweep.drums(20, seed=11)
+
+
+@pytest.mark.parametrize("index, kinds", [(15, ["head", "head"]), (16, ["head", "head"]),
+                                          (5, ["head", "air", "head"])])
+def test_each_followed_root_is_continuous_in_tension(index, kinds):
+    # each root of one order (the head modes n = 1, 2 and every air row below them) is
+    # followed from T to 2T and to T/2 without a jump steeper than |d ln f / d ln T| = 0.6
+    # (tension's share of the stiffness, over 2, is at most 1/2: first-order perturbation,
+    # from memory), and the roots reached at 2T are those a whole solve finds there
+    drum, table = CONTINUITY[index]
+    problems, roots, steps, found = sweep.continuity(drum, index)
+    assert found == kinds, table
+    assert problems == [], table

@@ -206,12 +206,12 @@ def test_free_areal_density_recovers_a_stiff_head():
     truth = replace(truth, head=replace(truth.head, areal_density=1.3 * drum.head.areal_density))
     there = solve(truth, "stiff")
     targets = [((1, 1), there.find(1, 1).frequency), ((3, 1), there.find(3, 1).frequency)]
-    result = tension_for(drum, targets=targets, physics="stiff", free="areal-density")
+    result = tension_for(drum, targets=targets, physics="stiff", free="areal_density")
     assert result.together
     assert result.tension == pytest.approx(120.0, rel=1e-4)
     assert result.value == pytest.approx(truth.head.areal_density, rel=1e-4)
     with pytest.raises(InputError, match="ratios"):
-        tension_for(drum, targets=targets, physics="ideal", free="areal-density")
+        tension_for(drum, targets=targets, physics="ideal", free="areal_density")
     with pytest.raises(InputError, match="kettle"):
         tension_for(drum, targets=targets, physics="full", free="volume")
 

@@ -150,7 +150,8 @@ def lugs(
                "mean_tension_n_per_m": estimate.mean_tension,
                "harmonics": {str(k): v for k, v in sorted(estimate.harmonics.items())},
                "seen": list(estimate.seen), "unseen": list(estimate.unseen),
-               "measured_splits": [vars(s) | {"beat_hz": s.high_hz - s.low_hz} for s in measured]}
+               "measured_splits": [{"m": s.m, "n": s.n, "low_hz": s.low_frequency, "high_hz": s.high_frequency,
+                                    "beat_hz": s.beat_frequency} for s in measured]}
     split_rows, lug_rows, turns, table = [], [], None, None
     if estimate.tensions is not None:
         spread = {} if hoop_stiffness is None else {"spread": "hoop", "hoop_stiffness": hoop_stiffness}
@@ -164,9 +165,9 @@ def lugs(
                                    physics="ideal" if physics.value == "ideal" else "stiff",
                                    method=method, m_max=1, n_max=1).find(1, 1)
         for s in table.splits:
-            split_rows.append({"mode": mode_label(s.m, s.n), "m": s.m, "n": s.n, "low_hz": s.low_hz,
-                               "high_hz": s.high_hz, "frequency_hz": [s.low_hz, s.high_hz],
-                               "beat_hz": s.beat_hz, "cents": s.cents, "orientation_deg": s.orientation_deg})
+            split_rows.append({"mode": mode_label(s.m, s.n), "m": s.m, "n": s.n, "low_hz": s.low_frequency,
+                               "high_hz": s.high_frequency, "frequency_hz": [s.low_frequency, s.high_frequency],
+                               "beat_hz": s.beat_frequency, "cents": s.cents, "orientation_deg": s.orientation_deg})
         angles = np.degrees(lug_angles(n_lugs))
         for j in range(n_lugs):
             lug_rows.append({"lug": str(j + 1), "angle_deg": angles[j], "tension_n_per_m": estimate.tensions[j],
@@ -181,7 +182,7 @@ def lugs(
             "tap_cents_changes": list(turns.tap_cents),
             "turns": None if turns.turns is None else list(turns.turns),
             "calibration": {"cents_per_turn": cents_per_turn, "turns_per_newton": turns_per_newton},
-            "after_turns_beat_11_hz": after.beat_hz,
+            "after_turns_beat_11_hz": after.beat_frequency,
         })
         if hoop_stiffness is not None:
             notes.append(f"hoop model: each lug a point pull spread by a hoop bending on the film "

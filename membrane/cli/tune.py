@@ -44,6 +44,11 @@ class Free(str, Enum):
     volume = "volume"
 
 
+def _cli_name(free: str) -> str:
+    """The library's name of a free parameter as the command line spells it (areal-density)."""
+    return free.replace("_", "-")
+
+
 def parse_lug_pitches(texts: list[str]) -> tuple[float, ...]:
     """``--lug-pitches`` (comma-separated, or repeated) -> Hz, each positive."""
     items = [item.strip() for text in texts for item in text.split(",") if item.strip()]
@@ -146,7 +151,7 @@ def tune(
     if targets:
         try:
             result = tuning.tension_for(drum, targets=[(mn, hz) for mn, hz, _ in targets],
-                                        physics=physics.value, free=free.value if free else None,
+                                        physics=physics.value, free=free.value.replace("-", "_") if free else None,
                                         m_max=m_max, n_max=n_max, losses=losses.value)
         except InputError as exc:
             if exc.key == "target" and len(targets) == 1:
@@ -205,7 +210,7 @@ def _result_payload(result: tuning.Tuning) -> dict:
         "together": result.together,
         "statement": _statement(result),
         "free": None if result.free is None else
-        {"parameter": result.free, "unit": "kg/m^2" if result.free == "areal-density" else "m^3",
+        {"parameter": _cli_name(result.free), "unit": "kg/m^2" if result.free == "areal_density" else "m^3",
          "current": result.current_value, "value": result.value},
         "stress_pa": s,
         "yield_stress_pa": head.yield_stress,
@@ -237,7 +242,7 @@ def _statement(result: tuning.Tuning) -> str:
     worst = max(result.targets, key=lambda t: abs(t.residual_cents))
     hint = "" if result.free else " To change the modes' ratios, free the head's mass (--free areal-density) " \
         "or, for a kettle, its volume (--free volume)."
-    return (f"No {'tension and ' + result.free if result.free else 'single tension'} puts these targets "
+    return (f"No {'tension and ' + _cli_name(result.free) if result.free else 'single tension'} puts these targets "
             f"on pitch together: the best compromise (least squares in cents) leaves ({worst.m},{worst.n}) "
             f"{worst.residual_cents:+.1f} cents off, rms {result.rms_cents:.1f} cents.{hint}")
 
@@ -257,7 +262,7 @@ def _print_human(fmt: Format, drum, payload: dict, result) -> None:
         ]
         if result.free:
             unit = payload["free"]["unit"]
-            head_rows.append({"what": f"{result.free}", "value": f"{result.current_value:.4g} -> "
+            head_rows.append({"what": f"{_cli_name(result.free)}", "value": f"{result.current_value:.4g} -> "
                                                                  f"{result.value:.4g} {unit}"})
         if payload["stress_pa"] is not None:
             frac = payload["stress_fraction_of_yield"]

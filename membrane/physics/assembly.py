@@ -60,7 +60,7 @@ class OrderRoots:
     vectors : numpy.ndarray
         Ritz vectors (R, size), unit M-norm.
     head_fraction : numpy.ndarray
-        Share of each root's energy in the head(s) (spectrum.head_fractions).
+        Share of each root's energy in the head(s) (energy_share.head_fractions).
     labels : list
         Per root: ("head", head index, n) for the root that is most the in-vacuum mode n of
         that head, ("air", q, p) for a root that is mostly the body's air (duct mode q

@@ -74,15 +74,17 @@ def duct_terms(k, gamma, depth: float):
     (numpy.ndarray, numpy.ndarray)
         Each (R, Q), complex.
     """
-    k = np.atleast_1d(np.asarray(k, dtype=complex))[:, None]
-    gamma = np.atleast_2d(np.asarray(gamma, dtype=float))
+    k = np.asarray(k, dtype=complex).reshape(-1, 1)
+    gamma = np.asarray(gamma, dtype=float)
+    if gamma.ndim == 1:
+        gamma = gamma[None, :]
     mu = np.sqrt(gamma * gamma - k * k)  # principal: Re mu >= 0
-    x = mu * np.reshape(depth, (-1, 1))
+    x = mu * (depth if np.ndim(depth) == 0 else np.reshape(depth, (-1, 1)))
     e1 = np.exp(-x)
-    den = -np.expm1(-2.0 * x)  # 1 - e^{-2 mu L}, accurate for small mu L
-    coth = (1.0 + e1 * e1) / den
-    csch = 2.0 * e1 / den
-    return -coth / mu, -csch / mu
+    # -coth / mu and -csch / mu, with 1 - e^{-2 mu L} from expm1 (accurate for small mu L);
+    # one shared factor (the solver evaluates this hundreds of times per order)
+    scale = 1.0 / (mu * np.expm1(-2.0 * x))
+    return (1.0 + e1 * e1) * scale, (2.0 * e1) * scale
 
 
 def plane_wave_stiffness(omega: complex, *, volume_displacements, radius: float, depth: float,

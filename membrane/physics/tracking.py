@@ -57,7 +57,7 @@ def match(prev, new, M):
     One-to-one by an optimal assignment of :func:`scores`; -1 where a root has no successor.
     ``margin`` is the smallest amount by which a match beats its runner-up.
     """
-    from scipy.optimize import linear_sum_assignment
+    from ..assignment import linear_sum_assignment  # scipy's algorithm without scipy.optimize's import
 
     score = scores(prev, new, M)
     rows, cols = linear_sum_assignment(-score)

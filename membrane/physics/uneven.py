@@ -55,6 +55,7 @@ from scipy import linalg, optimize, special
 
 from ..errors import InputError
 from ..notation import cents
+from ..renamed import renamed_attribute
 from ..physics.vacuum import RadialBasis, i_hat, ideal_basis, stiff_basis
 from .prestress import RimTension, stress_profiles
 
@@ -79,37 +80,39 @@ class Split:
     Attributes
     ----------
     m, n : int
-    low_hz, high_hz : float
+    low_frequency, high_frequency : float
         The two members' frequencies in Hz (equal for m = 0).
-    uniform_hz : float
+    uniform_frequency : float
         The uniform head's frequency at the mean tension, Hz.
     orientation_deg : float or None
         Angle of one nodal diameter of the higher member, degrees from lug 1 in the lugs'
         counting direction, in [0, 180/m); the lower member has a nodal diameter
         90/m degrees further on. None for m = 0 or a split below round-off.
+
+    ``low_hz``, ``high_hz``, ``uniform_hz`` and ``beat_hz`` are the older names.
     """
 
     m: int
     n: int
-    low_hz: float
-    high_hz: float
-    uniform_hz: float
+    low_frequency: float
+    high_frequency: float
+    uniform_frequency: float
     orientation_deg: float | None
 
     @property
-    def beat_hz(self) -> float:
+    def beat_frequency(self) -> float:
         """high - low in Hz: the beat rate heard."""
-        return self.high_hz - self.low_hz
+        return self.high_frequency - self.low_frequency
 
     @property
     def cents(self) -> float:
         """The split in cents."""
-        return cents(self.high_hz, self.low_hz)
+        return cents(self.high_frequency, self.low_frequency)
 
     @property
     def relative(self) -> float:
         """(high - low) / uniform, dimensionless."""
-        return self.beat_hz / self.uniform_hz
+        return self.beat_frequency / self.uniform_frequency
 
     @property
     def high_antinode_deg(self) -> float | None:
@@ -117,6 +120,11 @@ class Split:
         if self.orientation_deg is None:
             return None
         return (self.orientation_deg + 90.0 / self.m) % (180.0 / self.m)
+
+    low_hz = renamed_attribute("Split.low_hz", "low_frequency")
+    high_hz = renamed_attribute("Split.high_hz", "high_frequency")
+    uniform_hz = renamed_attribute("Split.uniform_hz", "uniform_frequency")
+    beat_hz = renamed_attribute("Split.beat_hz", "beat_frequency")
 
 
 @lru_cache(maxsize=8)
@@ -324,7 +332,8 @@ def exact_splits(head, rim: RimTension, *, m_max: int = 6, n_max: int = 3, stiff
             v = vec[:, js[1]]
             ant = _antinode(v[system.index(m, n)], v[system.index(-m, n)], m)
             orient = _orientation(ant, m, (f[1] - f[0]) / f0)
-        out.append(Split(m=m, n=n, low_hz=f[0], high_hz=f[-1], uniform_hz=f0, orientation_deg=orient))
+        out.append(Split(m=m, n=n, low_frequency=f[0], high_frequency=f[-1], uniform_frequency=f0,
+                         orientation_deg=orient))
     return out
 
 
@@ -374,7 +383,8 @@ def first_order_splits(head, rim: RimTension, *, m_max: int = 6, n_max: int = 3,
         for n in range(1, n_max + 1):
             f0 = float(basis.frequency[n - 1])
             if m == 0:
-                out.append(Split(m=0, n=n, low_hz=f0, high_hz=f0, uniform_hz=f0, orientation_deg=None))
+                out.append(Split(m=0, n=n, low_frequency=f0, high_frequency=f0, uniform_frequency=f0,
+                                 orientation_deg=None))
                 continue
             c = rim.harmonic(2 * m) / rim.mean
             weight = split_weight(head, m=m, n=n, stiff=stiff, tension=rim.mean)
@@ -382,8 +392,8 @@ def first_order_splits(head, rim: RimTension, *, m_max: int = 6, n_max: int = 3,
             # a negative W swaps the members, a quarter period further on)
             ant = (-np.angle(c * (1.0 if weight >= 0 else -1.0)) / (2 * m)) % (np.pi / m)
             rel = abs(weight * abs(c))
-            out.append(Split(m=m, n=n, low_hz=f0 * (1 - rel / 2), high_hz=f0 * (1 + rel / 2),
-                             uniform_hz=f0, orientation_deg=_orientation(ant, m, rel)))
+            out.append(Split(m=m, n=n, low_frequency=f0 * (1 - rel / 2), high_frequency=f0 * (1 + rel / 2),
+                             uniform_frequency=f0, orientation_deg=_orientation(ant, m, rel)))
     return out
 
 
@@ -400,7 +410,8 @@ def with_air(splits: list[Split], coupled_hz: dict) -> list[Split]:
     out = []
     for s in splits:
         f = coupled_hz[(s.m, s.n)]
-        scale = f / s.uniform_hz
-        out.append(Split(m=s.m, n=s.n, low_hz=s.low_hz * scale, high_hz=s.high_hz * scale,
-                         uniform_hz=f, orientation_deg=s.orientation_deg))
+        scale = f / s.uniform_frequency
+        out.append(Split(m=s.m, n=s.n, low_frequency=s.low_frequency * scale,
+                         high_frequency=s.high_frequency * scale, uniform_frequency=f,
+                         orientation_deg=s.orientation_deg))
     return out

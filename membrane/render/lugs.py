@@ -99,8 +99,8 @@ def lug_map(drum, tensions, *, turns=None, split=None, physics: str = "", rim=No
         ax.text(lx, ly, label, ha="center", va="center", fontsize=7.5, zorder=6)
 
     if split is not None and split.orientation_deg is not None:
-        for deg, style, f, word in ((split.orientation_deg, "-", split.high_hz, "higher"),
-                                    (split.orientation_deg + 90.0, "--", split.low_hz, "lower")):
+        for deg, style, f, word in ((split.orientation_deg, "-", split.high_frequency, "higher"),
+                                    (split.orientation_deg + 90.0, "--", split.low_frequency, "lower")):
             a = np.radians(deg)
             ax.plot([-np.cos(a), np.cos(a)], [-np.sin(a), np.sin(a)], style, color="0.1", lw=1.6, zorder=3)
             ax.text(0.62 * np.cos(a), 0.62 * np.sin(a), f"{word}\n{f:.2f} Hz", fontsize=7.5, ha="center",
@@ -111,7 +111,7 @@ def lug_map(drum, tensions, *, turns=None, split=None, physics: str = "", rim=No
     ax.set_ylim(-lim, lim)
     title = f"{drum.name}: uneven lugs, seen from above"
     if split is not None:
-        title += f"\n(1,1) pair beats at {split.beat_hz:.2f} Hz"
+        title += f"\n(1,1) pair beats at {split.beat_frequency:.2f} Hz"
     ax.set_title(title, fontsize=10)
     dial = "dial: turn to make, full circle = 1 turn (or more)" if unit == "turn" else \
         "dial: tap-pitch change to make, full circle = 50 cents"
