@@ -127,9 +127,9 @@ def test_a_shell_mode_drawn_alone_has_its_diameter_and_an_unclipped_title():
     fig = stills.nodal_diagram(snare, mode)
     diameters, circles = drawn_nodal_lines(fig.axes[0])
     assert len(diameters) == 1 and circles == []
-    from membrane.render.labels import _canvas
+    from membrane.render.labels import laid_out_renderer
 
-    renderer = _canvas(fig)
+    renderer = laid_out_renderer(fig)
     page = fig.bbox
     for text in [fig._suptitle, *fig.texts]:
         box = text.get_window_extent(renderer)
@@ -188,14 +188,14 @@ def test_ratio_chart_places_modes_at_their_frequency_ratios(ideal):
 
 
 def test_ratio_chart_clips_outliers_and_labels_do_not_overlap():
-    from membrane.render.labels import _canvas, boxes_overlap
+    from membrane.render.labels import laid_out_renderer, boxes_overlap
 
     full = solve(load_drum("kettledrum"), "ideal")  # 6 x 3 modes: a crowded chart
     fig = stills.ratio_chart([full])
     ax = next(ax for ax in fig.axes if ax.get_lines())
     labels = [t for t in ax.texts if (t.get_gid() or "").startswith("label")]
     assert len(labels) >= 10
-    assert boxes_overlap(labels, _canvas(fig)) == []
+    assert boxes_overlap(labels, laid_out_renderer(fig)) == []
     # modes far off a harmonic (the (0,n) family) must not set the scale of the fitted (m,1) band:
     # they sit on the chart's edge with their deviation written out
     low, high = ax.get_ylim()

@@ -5,7 +5,7 @@ from types import SimpleNamespace as NS
 
 import numpy as np
 
-from membrane.render.labels import _canvas, boxes_overlap
+from membrane.render.labels import laid_out_renderer, boxes_overlap
 from membrane.render.spectrum import BAND_FACTOR, spectrum_figure
 
 
@@ -32,7 +32,7 @@ def test_the_axis_holds_the_identified_partials_and_labels_stay_apart():
     assert "1 above" in ax.get_title()
     labels = [t for t in ax.texts if (t.get_gid() or "").startswith("mode")]
     assert len(labels) == 5
-    assert boxes_overlap(labels, _canvas(fig)) == []
+    assert boxes_overlap(labels, laid_out_renderer(fig)) == []
     # one level scale: each partial is marked at the spectrum's own level at its frequency
     dots = next(line for line in ax.get_lines() if line.get_label() == "partials found")
     x, y = dots.get_xdata(), dots.get_ydata()

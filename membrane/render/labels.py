@@ -18,7 +18,7 @@ CANDIDATES = tuple((d * dx, d * dy) for d in RINGS for dx, dy in _DIRECTIONS)
 MARKER_HALF = 4.0  # points: the box kept clear around each point
 
 
-def _canvas(fig):
+def laid_out_renderer(fig):
     """A renderer for a bare Figure, laid out (attach an Agg canvas if it has none that renders)."""
     if not hasattr(fig.canvas, "get_renderer"):
         from matplotlib.backends.backend_agg import FigureCanvasAgg
@@ -63,7 +63,7 @@ def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 
     below : sequence of bool, optional
         Per label: try the places below the point first (a point on the top edge).
     renderer : optional
-        The renderer of a figure already laid out (:func:`_canvas`): several axes of
+        The renderer of a figure already laid out (:func:`laid_out_renderer`): several axes of
         one figure are labelled after one layout instead of one each (labels placed are
         kept out of the layout, so it does not change between them).
 
@@ -74,7 +74,7 @@ def place_labels(ax, points, texts, *, candidates=CANDIDATES, fontsize: float = 
     """
     fig = ax.figure
     if renderer is None:
-        renderer = _canvas(fig)
+        renderer = laid_out_renderer(fig)
     scale = fig.dpi / 72.0
     to_px = ax.transData.transform
     frame = ax.get_window_extent(renderer)

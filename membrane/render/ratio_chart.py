@@ -92,7 +92,7 @@ def ratio_chart(modesets, *, fit_modes=None, width: float = 11.0, height: float 
         Part of the figure the panels fill (left, bottom, width, height as fractions),
         leaving the rest for text; default all of it.
     """
-    from .labels import _canvas, place_labels
+    from .labels import laid_out_renderer, place_labels
     from .stills import blank_figure
 
     modesets = list(modesets)
@@ -154,7 +154,7 @@ def ratio_chart(modesets, *, fit_modes=None, width: float = 11.0, height: float 
         fig.suptitle(wrap_title(f"{drum}\nmodes against the best harmonic series; filled: modes in the fit; "
                                 "hollow: the others; triangles: beyond the chart (value written); "
                                 "grey band: within 10 cents", size[0] * 0.95, fontsize + 2), fontsize=fontsize + 2)
-    renderer = _canvas(fig) if pending else None  # one layout for every panel's labels
+    renderer = laid_out_renderer(fig) if pending else None  # one layout for every panel's labels
     for ax, spots, texts, colours, downs, all_points in pending:  # last: labels need the final layout
         place_labels(ax, spots, texts, fontsize=fontsize - 0.5, colors=colours, below=downs,
                      renderer=renderer,
