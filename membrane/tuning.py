@@ -35,6 +35,7 @@ from . import tension_search
 from .lug_changes import LUG_RULE, TURN_STEP, LugChange, equalise_lugs, turns_text  # noqa: F401  (their old address)
 from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
+CENTS_PER_LN = 1200.0 / math.log(2.0)  # cents per unit of ln f
 # Targets count as met together when every residual is within this many cents.
 TOGETHER_CENTS = 1.0
 # The root is polished until the mode is within this many cents of its target.
@@ -59,6 +60,7 @@ class _Model:
         self.n_max = max(n_max, max(n for _, n in self.modes))
         self.cache: dict = {}
         self.roots: dict = {}
+        self.sets: dict = {}  # operators of the targets' orders by parameter set (slopes)
         self.solves = 0
 
     def variant(self, tension: float, free: str | None = None, value: float | None = None) -> Drum:
@@ -86,6 +88,28 @@ class _Model:
             self.roots[key] = {m: solve_drum(drum, m_max=m, n_max=self.n_max, losses=losses, only=m)[0]
                                for m in sorted({m for m, _ in self.modes})}
         return self.roots[key]
+
+    def slopes(self, tension: float, free: str | None = None, value: float | None = None) -> np.ndarray:
+        """d ln f / d ln T (and d ln f / d ln value when ``free``) of each target mode at a
+        point already solved: (modes, 1 or 2), from the solved roots by first-order
+        perturbation (physics/sensitivity.py), no solve of its own (full physics, one head)."""
+        from .branches import labelled_root
+        from .physics.assembly import order_root_set
+        from .physics.sensitivity import log_slopes
+
+        key = (float(tension), free, value)
+        ods = self.order_roots(tension, free, value)
+        drum = self.variant(tension, free, value)
+        losses = drum.losses if self.losses == "all" else None
+        names = ["tension"] + ([free] if free else [])
+        sets = self.sets.setdefault(key, {})
+        out = []
+        for m, n in self.modes:
+            if m not in sets:
+                sets[m] = order_root_set(drum, m=m, n_max=self.n_max, losses=losses)
+            r = labelled_root(ods[m], n)
+            out.append(log_slopes(sets[m], 0, complex(ods[m].omega[r]), ods[m].vectors[r], names))
+        return np.array(out)
 
     def frequencies(self, tension: float, free: str | None = None, value: float | None = None) -> np.ndarray:
         key = (float(tension), free, value)
@@ -224,7 +248,9 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     One target: a root of ln(f_mn(T) / f*) in ln T (membrane.tension_search), to within
     0.001 cent, or a refusal in words (below the slack limit, beyond the film's strength,
     or across an air resonance of the body, where the labelled mode jumps). Several: least squares in cents over
-    ln T (and the free parameter's log), tension_search.fit (scipy's trust-region solver).
+    ln T (and the free parameter's log), tension_search.fit: Gauss-Newton with the
+    perturbation Jacobian of the solved roots for full physics on one head (physics/
+    sensitivity.py), else scipy's trust-region solver.
     """
     targets = [((int(m), int(n)), float(hz)) for (m, n), hz in targets]
     if not targets:
@@ -249,8 +275,10 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     if len(targets) == 1 and free is None:
         (m, n), hz = targets[0]
         g = lambda x: float(np.log(model.frequencies(math.exp(x))[0] / hz))  # noqa: E731
+        slope = (lambda x: float(model.slopes(math.exp(x))[0, 0])) if model.by_order else None  # noqa: E731
         out = tension_search.search(g, x0=math.log(t_now), g0=float(np.log(f_now[0] / hz)),
-                                    lo=lo, hi=hi, close=TOLERANCE_CENTS / 1200 * math.log(2))
+                                    lo=lo, hi=hi, close=TOLERANCE_CENTS / 1200 * math.log(2),
+                                    slope=slope)
         if isinstance(out, tension_search.Beyond):
             _no_root(drum, (m, n), hz, model, lo, hi)
         if isinstance(out, tension_search.Jump):
@@ -269,7 +297,12 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
             v = math.exp(p[1]) if free else None
             return _cents(model.frequencies(math.exp(p[0]), free, v), wanted)
 
-        fit = tension_search.fit(residuals, x0=x0, lower=bounds[0], upper=bounds[1])
+        def jacobian(p):  # cents per unit of each log, at a point residuals() just solved
+            v = math.exp(p[1]) if free else None
+            return CENTS_PER_LN * model.slopes(math.exp(p[0]), free, v)
+
+        fit = tension_search.fit(residuals, x0=x0, lower=bounds[0], upper=bounds[1],
+                                 jacobian=jacobian if model.by_order else None)
         tension = math.exp(fit.x[0])
         value = math.exp(fit.x[1]) if free else None
 
