@@ -265,4 +265,4 @@ def _glide_partial(comps, tr: Track, *, shift: float, duration: float) -> Partia
     p = line_partial(comps, shift=shift, duration=duration)
     return Partial(frequency=tr.initial, amplitude=p.amplitude, decay_rate=p.decay_rate,
                    glide_cents=tr.cents, settled_frequency=tr.settled,
-                   flags=("glide",) + p.flags)
+                   flags=("glide",) + tuple(f for f in p.flags if f != "glide"))
