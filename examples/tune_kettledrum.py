@@ -19,7 +19,7 @@ if __name__ == "__main__":
     print(f"target C3 = {TARGET_HZ:.2f} Hz")
     print(f"current tension {RESULT.current_tension:.0f} N/m")
     print(f"full model:      {RESULT.tension:.1f} N/m -> (1,1) at "
-          f"{RESULT.targets[0].predicted_hz:.3f} Hz")
+          f"{RESULT.targets[0].predicted_frequency:.3f} Hz")
     print(f"sqrt(T) scaling: {RESULT.naive_tension:.1f} N/m -> (1,1) at {NAIVE_HZ:.3f} Hz "
           f"({NAIVE_MISS_CENTS:+.1f} cents)")
     for warning in RESULT.warnings:

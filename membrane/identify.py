@@ -67,6 +67,7 @@ from .mode_matching import (MAX_CENTS, SPLIT_CENTS, assign, beats, best_start, b
                             splittable, start_tensions, weights)
 from .modes import ModeSet
 from .recording import Partial
+from .renamed import renamed_attribute
 from .solver import solve
 from .tension_fit import MAX_TENSION_FACTOR, refine, refine_full, tension_uncertainty
 
@@ -134,8 +135,8 @@ class SplitPair:
     ----------
     m, n : int
     low, high : Partial
-    beat_hz : float
-        Their difference frequency: the beat heard [Hz].
+    beat_frequency : float
+        Their difference frequency: the beat heard [Hz] (``beat_hz`` is the older name).
     """
 
     m: int
@@ -143,8 +144,10 @@ class SplitPair:
     low: Partial
     high: Partial
 
+    beat_hz = renamed_attribute("SplitPair.beat_hz", "beat_frequency")
+
     @property
-    def beat_hz(self) -> float:
+    def beat_frequency(self) -> float:
         """Beat rate [Hz]."""
         return self.high.frequency - self.low.frequency
 

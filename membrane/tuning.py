@@ -30,6 +30,7 @@ from .drum import Drum, Head
 from .errors import InputError, SolverError
 from .modes import ModeSet
 from .notation import cents as _cents
+from .renamed import renamed_attribute
 from .safety import (CAUTIONS, MIN_HOLDING_STRAIN, MIN_RULE, SAFE_STRESS_FRACTION, TENSION_CEILING,  # noqa: F401
                      below_minimum, practical_minimum, safety_warnings, slack_tension, stress, tension_ceiling)
 from . import tension_search
@@ -137,18 +138,36 @@ class _Model:
 # ------------------------------------------------------------------ results
 @dataclass(frozen=True)
 class Target:
-    """One mode's target and how close the suggestion gets (Hz, cents)."""
+    """One mode's target and how close the suggestion gets.
+
+    Attributes
+    ----------
+    m, n : int
+        The mode.
+    target_frequency : float
+        The pitch asked for [Hz].
+    current_frequency : float
+        The mode's frequency at the drum's present tension (and body) [Hz].
+    predicted_frequency : float
+        The mode's frequency at the suggested tension [Hz].
+
+    ``target_hz``, ``current_hz`` and ``predicted_hz`` are the older names.
+    """
 
     m: int
     n: int
-    target_hz: float
-    current_hz: float
-    predicted_hz: float
+    target_frequency: float
+    current_frequency: float
+    predicted_frequency: float
+
+    target_hz = renamed_attribute("Target.target_hz", "target_frequency")
+    current_hz = renamed_attribute("Target.current_hz", "current_frequency")
+    predicted_hz = renamed_attribute("Target.predicted_hz", "predicted_frequency")
 
     @property
     def residual_cents(self) -> float:
         """Predicted minus target, in cents."""
-        return float(_cents(self.predicted_hz, self.target_hz))
+        return float(_cents(self.predicted_frequency, self.target_frequency))
 
 
 @dataclass(frozen=True)
@@ -191,7 +210,7 @@ class Tuning:
     solves: int
 
     def __repr__(self) -> str:
-        goals = ", ".join(f"({t.m},{t.n}) {t.target_hz:.2f} Hz" for t in self.targets)
+        goals = ", ".join(f"({t.m},{t.n}) {t.target_frequency:.2f} Hz" for t in self.targets)
         return (f"Tuning({self.current_tension:.1f} -> {self.tension:.1f} N/m ({self.change_percent:+.1f} %), "
                 f"targets {goals}, rms {self.rms_cents:.3f} cents, {len(self.warnings)} warnings)")
 
@@ -313,7 +332,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
         predicted = [final.find(m, n).frequency for m, n in modes]
     else:  # the search's own solve at the suggestion (same orders and basis)
         final, predicted = None, model.frequencies(tension, free, value)
-    found = [Target(m=m, n=n, target_hz=hz, current_hz=float(f0), predicted_hz=float(f1))
+    found = [Target(m=m, n=n, target_frequency=hz, current_frequency=float(f0), predicted_frequency=float(f1))
              for ((m, n), hz), f0, f1 in zip(targets, f_now, predicted)]
     together = all(abs(t.residual_cents) <= TOGETHER_CENTS for t in found)
     if len(found) == 1 and free is None and not together:

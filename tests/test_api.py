@@ -75,6 +75,13 @@ def test_one_spelling_and_the_old_names_still_resolve():
     with pytest.warns(DeprecationWarning, match="low_frequency"):
         measured = MeasuredSplit(1, 1, low_hz=99.0, high_hz=101.0)
     assert measured == MeasuredSplit(1, 1, 99.0, 101.0) and measured.beat_frequency == 2.0
+    from membrane.tuning import Target
+
+    target = Target(m=1, n=1, target_frequency=130.8, current_frequency=128.0, predicted_frequency=130.8)
+    with pytest.warns(DeprecationWarning, match="predicted_frequency"):
+        assert target.predicted_hz == 130.8
+    with pytest.warns(DeprecationWarning, match="target_frequency"):
+        assert target.target_hz == 130.8
     # the two kinds of partial are different classes with different names
     assert membrane.SoundingMode is not membrane.analysis.Partial
     # a fit over named modes and over raw frequencies: HarmonicFit from the ModeSet

@@ -85,7 +85,7 @@ def test_missing_modes_spurious_peaks_and_a_split_mode(kettle):
     assert sorted(round(p.frequency, 1) for p in result.unmatched) == list(extra)
     (split,) = result.splits
     assert (split.m, split.n) == (2, 1)
-    assert split.beat_hz == pytest.approx(0.8, abs=1e-9)
+    assert split.beat_frequency == pytest.approx(0.8, abs=1e-9)
 
 
 @pytest.mark.parametrize("nominal", [1100.0, 16000.0])

@@ -65,7 +65,7 @@ def test_acoustician(load):
 def test_drum_maker(load):
     ex = load("drum_maker")
     # C3 = 440 * 2^(-21/12) Hz (ISO 16 pitch)
-    assert ex.TUNING.targets[0].predicted_hz == pytest.approx(440 * 2 ** (-21 / 12), rel=1e-5)
+    assert ex.TUNING.targets[0].predicted_frequency == pytest.approx(440 * 2 ** (-21 / 12), rel=1e-5)
     # thin-film stress sigma = T / h, against the film's yield (membrane/data/films.toml)
     assert ex.TUNING.stress == pytest.approx(ex.TUNING.tension / ex.HEAD.thickness)
     assert ex.TUNING.stress < 0.5 * ex.HEAD.yield_stress
@@ -88,4 +88,4 @@ def test_readme_library_lines_run():
     with contextlib.redirect_stdout(io.StringIO()):
         exec(code, namespace)
     # C3 = 440 * 2^(-21/12) Hz (ISO 16 pitch) on the (1,1), within the search's tolerance
-    assert namespace["tuning"].targets[0].predicted_hz == pytest.approx(440 * 2 ** (-21 / 12), rel=1e-5)
+    assert namespace["tuning"].targets[0].predicted_frequency == pytest.approx(440 * 2 ** (-21 / 12), rel=1e-5)

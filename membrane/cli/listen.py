@@ -124,8 +124,8 @@ def listen(
     shown = analysis.strongest(max_partials)
     partners = {}
     for sp in (ident.splits if ident else ()):
-        partners[id(sp.low)] = (sp.high.frequency, sp.beat_hz)
-        partners[id(sp.high)] = (sp.low.frequency, sp.beat_hz)
+        partners[id(sp.low)] = (sp.high.frequency, sp.beat_frequency)
+        partners[id(sp.high)] = (sp.low.frequency, sp.beat_frequency)
     for p in shown:
         note, off = note_name(p.frequency)
         row = {"frequency_hz": p.frequency, "level_db": p.level_db, "decay_s": p.t60,
@@ -287,7 +287,7 @@ def _identification_payload(ident, physics: str) -> dict:
         "unmatched": [{"frequency_hz": p.frequency, "level_db": p.level_db} for p in ident.unmatched],
         "beyond_model_range": [{"frequency_hz": p.frequency, "level_db": p.level_db} for p in ident.beyond],
         "splits": [{"m": s.m, "n": s.n, "low_hz": s.low.frequency, "high_hz": s.high.frequency,
-                    "beat_hz": s.beat_hz, "cents": s.cents} for s in ident.splits],
+                    "beat_hz": s.beat_frequency, "cents": s.cents} for s in ident.splits],
         "model_notes": list(ident.modes.notes) + [MODEL_NOTE],
     }
 
@@ -299,7 +299,7 @@ def _identification_notes(ident, physics: str) -> list[str]:
            f"{len(ident.matches)} partials matched, rms {ident.rms_cents:.1f} cents; {ident.verdict}"]
     for s in ident.splits:
         out.append(f"mode ({s.m},{s.n}) is split: {s.low.frequency:.2f} and {s.high.frequency:.2f} Hz, "
-                   f"beating at {s.beat_hz:.2f} Hz ({s.cents:.1f} cents) - uneven tension round the rim")
+                   f"beating at {s.beat_frequency:.2f} Hz ({s.cents:.1f} cents) - uneven tension round the rim")
     if ident.unmatched:
         few = sorted(ident.unmatched, key=lambda p: -p.amplitude)[:8]
         out.append("no mode within reach: " + ", ".join(f"{p.frequency:.1f} Hz" for p in
@@ -318,9 +318,9 @@ def _tune(drum, targets, physics: str) -> dict:
     result = tuning.tension_for(drum, targets=targets, physics=physics)
     return {"tension_n_per_m": result.tension, "current_tension_n_per_m": result.current_tension,
             "change_percent": result.change_percent,
-            "predicted_hz": result.targets[0].predicted_hz,
-            "targets": [{"m": t.m, "n": t.n, "target_hz": t.target_hz, "current_hz": t.current_hz,
-                         "predicted_hz": t.predicted_hz, "residual_cents": t.residual_cents}
+            "predicted_hz": result.targets[0].predicted_frequency,
+            "targets": [{"m": t.m, "n": t.n, "target_hz": t.target_frequency, "current_hz": t.current_frequency,
+                         "predicted_hz": t.predicted_frequency, "residual_cents": t.residual_cents}
                         for t in result.targets],
             "stress_pa": result.stress, "warnings": list(result.warnings),
             "cautions": list(tuning.CAUTIONS)}

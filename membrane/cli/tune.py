@@ -198,13 +198,13 @@ def _result_payload(result: tuning.Tuning) -> dict:
     data = {
         "tension_n_per_m": result.tension,
         "change_percent": result.change_percent,
-        "predicted_hz": first.predicted_hz,
-        "target_hz": first.target_hz,
+        "predicted_hz": first.predicted_frequency,
+        "target_hz": first.target_frequency,
         "error_cents": first.residual_cents,
         "mode": {"m": first.m, "n": first.n},
         "naive_tension_n_per_m": result.naive_tension,
-        "targets": [{"m": t.m, "n": t.n, "target_hz": t.target_hz, "current_hz": t.current_hz,
-                     "predicted_hz": t.predicted_hz, "residual_cents": t.residual_cents}
+        "targets": [{"m": t.m, "n": t.n, "target_hz": t.target_frequency, "current_hz": t.current_frequency,
+                     "predicted_hz": t.predicted_frequency, "residual_cents": t.residual_cents}
                     for t in result.targets],
         "rms_cents": result.rms_cents,
         "together": result.together,

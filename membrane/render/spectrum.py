@@ -115,7 +115,7 @@ def spectrum_figure(frequencies, level_db, partials, *, ident=None, name: str = 
         ax.plot(ring, np.interp(ring, freqs, level), "o", ms=9, mfc="none", mec=PARTIAL_COLOUR, mew=1.0,
                 label="split pairs (uneven tension)", zorder=3)
         ax.legend(loc="upper right", fontsize=8, framealpha=0.9)
-        words = "; ".join(f"{mode_label(sp.m, sp.n)} beat {sp.beat_hz:.2f} Hz" for sp in splits)
+        words = "; ".join(f"{mode_label(sp.m, sp.n)} beat {sp.beat_frequency:.2f} Hz" for sp in splits)
         bx.set_title(wrap_title(f"split pairs: {words}", 10.5, 9), fontsize=9, color=PARTIAL_COLOUR, loc="left")
     bx.set_xlim(0, top)
     bx.set_xlabel("frequency (Hz)")
