@@ -203,7 +203,7 @@ class OrderProblem:
         """
         evaluate, c = self.prepared(z0, 1e-3 * abs(z0))
         z = complex(z0)
-        D, zd = None, None
+        D, zd, step = None, None, np.inf
         for _ in range(iterations):
             try:
                 if D is None or abs(z - zd) > CHORD * abs(z):
@@ -213,7 +213,8 @@ class OrderProblem:
                 else:
                     T = evaluate(np.array([z]))
                 step = 1.0 / np.trace(np.linalg.solve(T[0], D))
-            except np.linalg.LinAlgError:
+            except np.linalg.LinAlgError:  # singular at z: a root to round-off
+                step = np.inf
                 break
             z = z - step
             if not np.isfinite(z) or abs(z - z0) > reach * abs(z0):
@@ -222,7 +223,11 @@ class OrderProblem:
                 break
         else:
             return None
-        _, _, vh = np.linalg.svd(evaluate(np.array([z]))[0])
+        # the vector: from T where the last step was taken if that step was below round-off
+        # level (1e-3 tol; the vector moves by about as much), else from T at the root
+        if abs(step) > 1e-3 * tol * abs(z):
+            T = evaluate(np.array([z]))
+        _, _, vh = np.linalg.svd(T[0])
         v = np.conj(vh[-1]) * c
         return z, v[: self.size]
 
