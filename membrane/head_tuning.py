@@ -20,7 +20,7 @@ on one of two models of the drum:
 
 Everything here takes and returns SI floats (N/m, Hz) and cents.
 
-One module for about 400 lines on purpose: the targets, the two models of the drum, the
+One module of a little over 400 lines on purpose: the targets, the two models of the drum, the
 Newton-Broyden search over both tensions (``_newton``: several residuals in several unknowns,
 unlike the one-tension search of :mod:`membrane.tension_search`) and its report are one
 calculation.

@@ -28,7 +28,7 @@ changes a lug's value by a calibration: ``cents_per_turn`` (the tap pitch near t
 turn, so T scales by 2^(2 c t / 1200)) or ``turns_per_newton`` (turns per newton of the
 lug's pull, the pull being T 2 pi a / N).
 
-One module for about 400 lines on purpose: the forward table, its inverse and the turns are
+One module of a little over 400 lines on purpose: the forward table, its inverse and the turns are
 one model read three ways, and share its harmonic rows (``_harmonic_rows``) and the
 first-order split weights; split apart, each part would import the others' internals.
 """

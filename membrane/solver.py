@@ -35,7 +35,8 @@ def head_basis(head: Head, *, m: int, count: int, stiff: bool) -> RadialBasis:
                        areal_density=head.areal_density)
 
 
-def _check_orders(m_max, n_max) -> None:
+def check_orders(m_max, n_max) -> None:
+    """Raise InputError unless m_max is a whole number 0..M_MAX_LIMIT and n_max 1..N_MAX_LIMIT."""
     for key, value, hi, low in (("m_max", m_max, M_MAX_LIMIT, 0), ("n_max", n_max, N_MAX_LIMIT, 1)):
         if isinstance(value, bool) or not isinstance(value, int) or not low <= value <= hi:
             raise InputError(key, value, f"must be a whole number from {low} to {hi}")
@@ -94,7 +95,7 @@ def solve(drum: Drum, physics: str = "full", *, m_max: int = 6, n_max: int = 3,
     """
     if physics not in PHYSICS:
         raise InputError("physics", physics, f"must be one of: {', '.join(PHYSICS)}")
-    _check_orders(m_max, n_max)
+    check_orders(m_max, n_max)
     check_choice(losses)
     notes = []
     if physics in ("ideal", "stiff"):

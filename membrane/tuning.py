@@ -11,7 +11,8 @@ Safety and validity (film stress, the slack limit, the practical minimum, the ca
 importable from here as before. A target the model cannot reach above the slack limit is
 refused; a suggestion below it (several targets) gets a caution.
 
-Lug by lug equalisation from tap pitches lives in :mod:`membrane.lug_changes` (its names are
+The refusals in words are :mod:`membrane.tune_refusals`; lug by lug equalisation from tap
+pitches lives in :mod:`membrane.lug_changes` (its names are
 importable from here as before).
 
 Everything here takes and returns SI floats (N/m, Hz, kg/m^2, m^3, Pa).
@@ -32,15 +33,16 @@ from .notation import cents as _cents
 from .safety import (CAUTIONS, MIN_HOLDING_STRAIN, MIN_RULE, SAFE_STRESS_FRACTION, TENSION_CEILING,  # noqa: F401
                      below_minimum, practical_minimum, safety_warnings, slack_tension, stress, tension_ceiling)
 from . import tension_search
+from . import tune_refusals as refusals
+from .tune_refusals import BRANCH_RANGE  # noqa: F401  (its old address)
 from .lug_changes import LUG_RULE, TURN_STEP, LugChange, equalise_lugs, turns_text  # noqa: F401  (their old address)
 from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
+CENTS_PER_LN = 1200.0 / math.log(2.0)  # cents per unit of ln f
 # Targets count as met together when every residual is within this many cents.
 TOGETHER_CENTS = 1.0
 # The root is polished until the mode is within this many cents of its target.
 TOLERANCE_CENTS = 1e-3
-# the other branch of a crossing is offered only within this factor of the crossing's tension
-BRANCH_RANGE = 1.5  # our choice: beyond it the branch is usually another partial
 
 FREE = ("areal_density", "volume")
 
@@ -59,6 +61,7 @@ class _Model:
         self.n_max = max(n_max, max(n for _, n in self.modes))
         self.cache: dict = {}
         self.roots: dict = {}
+        self.sets: dict = {}  # operators of the targets' orders by parameter set (slopes)
         self.solves = 0
 
     def variant(self, tension: float, free: str | None = None, value: float | None = None) -> Drum:
@@ -86,6 +89,28 @@ class _Model:
             self.roots[key] = {m: solve_drum(drum, m_max=m, n_max=self.n_max, losses=losses, only=m)[0]
                                for m in sorted({m for m, _ in self.modes})}
         return self.roots[key]
+
+    def slopes(self, tension: float, free: str | None = None, value: float | None = None) -> np.ndarray:
+        """d ln f / d ln T (and d ln f / d ln value when ``free``) of each target mode at a
+        point already solved: (modes, 1 or 2), from the solved roots by first-order
+        perturbation (physics/sensitivity.py), no solve of its own (full physics, one head)."""
+        from .branches import labelled_root
+        from .physics.assembly import order_root_set
+        from .physics.sensitivity import log_slopes
+
+        key = (float(tension), free, value)
+        ods = self.order_roots(tension, free, value)
+        drum = self.variant(tension, free, value)
+        losses = drum.losses if self.losses == "all" else None
+        names = ["tension"] + ([free] if free else [])
+        sets = self.sets.setdefault(key, {})
+        out = []
+        for m, n in self.modes:
+            if m not in sets:
+                sets[m] = order_root_set(drum, m=m, n_max=self.n_max, losses=losses)
+            r = labelled_root(ods[m], n)
+            out.append(log_slopes(sets[m], 0, complex(ods[m].omega[r]), ods[m].vectors[r], names))
+        return np.array(out)
 
     def frequencies(self, tension: float, free: str | None = None, value: float | None = None) -> np.ndarray:
         key = (float(tension), free, value)
@@ -224,7 +249,9 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     One target: a root of ln(f_mn(T) / f*) in ln T (membrane.tension_search), to within
     0.001 cent, or a refusal in words (below the slack limit, beyond the film's strength,
     or across an air resonance of the body, where the labelled mode jumps). Several: least squares in cents over
-    ln T (and the free parameter's log), tension_search.fit (scipy's trust-region solver).
+    ln T (and the free parameter's log), tension_search.fit: Gauss-Newton with the
+    perturbation Jacobian of the solved roots for full physics on one head (physics/
+    sensitivity.py), else scipy's trust-region solver.
     """
     targets = [((int(m), int(n)), float(hz)) for (m, n), hz in targets]
     if not targets:
@@ -249,12 +276,14 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     if len(targets) == 1 and free is None:
         (m, n), hz = targets[0]
         g = lambda x: float(np.log(model.frequencies(math.exp(x))[0] / hz))  # noqa: E731
+        slope = (lambda x: float(model.slopes(math.exp(x))[0, 0])) if model.by_order else None  # noqa: E731
         out = tension_search.search(g, x0=math.log(t_now), g0=float(np.log(f_now[0] / hz)),
-                                    lo=lo, hi=hi, close=TOLERANCE_CENTS / 1200 * math.log(2))
+                                    lo=lo, hi=hi, close=TOLERANCE_CENTS / 1200 * math.log(2),
+                                    slope=slope)
         if isinstance(out, tension_search.Beyond):
-            _no_root(drum, (m, n), hz, model, lo, hi)
+            refusals.no_root(drum, (m, n), hz, model, lo, hi)
         if isinstance(out, tension_search.Jump):
-            _crossing(drum, (m, n), hz, model, out, lo, hi)
+            refusals.crossing(drum, (m, n), hz, model, out, lo, hi)
         tension = math.exp(out.x)
     else:
         x0 = [math.log(min(max(naive, math.exp(lo)), math.exp(hi)))]
@@ -269,7 +298,12 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
             v = math.exp(p[1]) if free else None
             return _cents(model.frequencies(math.exp(p[0]), free, v), wanted)
 
-        fit = tension_search.fit(residuals, x0=x0, lower=bounds[0], upper=bounds[1])
+        def jacobian(p):  # cents per unit of each log, at a point residuals() just solved
+            v = math.exp(p[1]) if free else None
+            return CENTS_PER_LN * model.slopes(math.exp(p[0]), free, v)
+
+        fit = tension_search.fit(residuals, x0=x0, lower=bounds[0], upper=bounds[1],
+                                 jacobian=jacobian if model.by_order else None)
         tension = math.exp(fit.x[0])
         value = math.exp(fit.x[1]) if free else None
 
@@ -308,72 +342,3 @@ def _check_free(drum: Drum, free: str, physics: str, count: int) -> None:
     if free == "areal_density" and physics == "ideal":
         raise InputError("free", free, "with ideal physics the mass scales every mode alike and cannot "
                          "change their ratios: use physics stiff or full")
-
-
-def _no_root(drum: Drum, mode, hz: float, model: _Model, lo: float, hi: float):
-    """Raise the error that says why no tension reaches the target."""
-    m, n = mode
-    f_lo = float(model.frequencies(math.exp(lo))[0])
-    if hz < f_lo:
-        raise InputError("target", f"{hz:.4g} Hz",
-                         f"below the slack limit: at {math.exp(lo):.3g} N/m, where bending stiffness sets "
-                         f"the (1,1) frequency as much as tension, mode ({m},{n}) is already at {f_lo:.4g} Hz; "
-                         f"choose a higher target")
-    f_hi = float(model.frequencies(math.exp(hi))[0])
-    why = "the film's tensile strength" if math.exp(hi) < TENSION_CEILING else "the largest tension accepted"
-    raise InputError("target", f"{hz:.4g} Hz",
-                     f"unreachable: even at {math.exp(hi):.0f} N/m ({why}) mode ({m},{n}) reaches only "
-                     f"{f_hi:.4g} Hz; choose a lower target")
-
-
-def _crossing(drum: Drum, mode, hz: float, model: _Model, jump, lo: float, hi: float):
-    """Raise the refusal for a target inside a jump of the labelled mode's frequency.
-
-    Only full physics has such jumps: where the head mode crosses an air resonance of the
-    body, the label (m,n) passes from the lower root to the upper one (docs/mode-identity.md).
-    The refusal names the body's air resonance crossed (its rigid-walled value) and the two
-    tensions the crossing lies between. If the continuous branch that does not carry the
-    label reaches the target near the crossing, that tension is given too, with a caution:
-    there the root is partly (or mostly) the body's air. That branch is followed by local
-    solves from the search's own solve at the crossing (branches.branch_tension): a few
-    seconds, not a re-solve of the drum at every step.
-    """
-    from . import branches
-
-    m, n = mode
-    t1, t2 = math.exp(jump.x_lo), math.exp(jump.x_hi)
-    f1, f2 = hz * math.exp(jump.g_lo), hz * math.exp(jump.g_hi)
-    kind = drum.body.kind
-    where = {"kettle": ("kettle", "the bowl's air resonance"),
-             "shell": ("drum", "the shell's air resonance")}.get(kind, ("drum", "an air resonance"))
-    dec = max(0, -math.floor(math.log10(max(t2 - t1, 1e-12))))  # enough digits to tell them apart
-    words = (f"({m},{n}) cannot sit at {hz:.4g} Hz on this {where[0]}: between {t1:,.{dec}f} and "
-             f"{t2:,.{dec}f} N/m it crosses {where[1]}")
-    other = ""
-    if model.by_order:
-        od_lo, od_hi = model.order_roots(t1)[m], model.order_roots(t2)[m]
-        air, f_lo, f_hi, r_lo, r_hi = branches.crossing_note(
-            drum, m=m, n=n, n_max=model.n_max, lo=od_lo, hi=od_hi, sound_speed=drum.air.sound_speed)
-        words += f" near {air:.0f} Hz"
-        # the continuous branches repel at the air resonance: the lower one (the label's
-        # below the jump) rises towards it with tension, the upper one (the label's above)
-        # falls towards it as the tension drops; a target below the air resonance can only be
-        # on the first, one above only on the second; near the crossing only (further on, a
-        # branch meets other crossings and becomes other partials)
-        start, od, r = (t1, od_lo, r_lo) if hz < air else (t2, od_hi, r_hi)
-        losses = drum.losses if model.losses == "all" else None
-        got = branches.branch_tension(drum, m=m, n_max=model.n_max, start_tension=start,
-                                      start_omega=complex(od.omega[r]), start_vector=od.vectors[r],
-                                      target_hz=hz, t_min=max(math.exp(lo), t1 / BRANCH_RANGE),
-                                      t_max=min(math.exp(hi), t2 * BRANCH_RANGE), losses=losses)
-        if got is not None:
-            t, frac, _ = got
-            other = (f"; the other branch does reach {hz:.4g} Hz, at {t:,.{dec}f} N/m, but there only "
-                     f"{100 * frac:.0f} % of its energy is in the head, the rest in the body's air "
-                     f"(caution: a partly air-like partial, not the principal ({m},{n}); check it by ear)")
-    else:
-        words += " (or meets another root of its order)"
-    words += (f"; below that the head-like ({m},{n}) reaches {f1:.4g} Hz, above it it continues on "
-              f"the upper branch from {f2:.4g} Hz{other}; choose a target outside "
-              f"{f1:.4g}-{f2:.4g} Hz")
-    raise InputError("target", f"{hz:.4g} Hz", words)

@@ -71,3 +71,49 @@ def test_several_targets_are_fitted_in_the_least_squares_sense():
     # and a bound holds: on [2.5, 12] the optimum is the bound itself
     out = fit(lambda p: [p[0] - 1.0, p[0] - 3.0], x0=[5.0], lower=[2.5], upper=[12.0])
     assert abs(out.x[0] - 2.5) < 1e-9
+
+
+def test_with_a_derivative_the_search_takes_newton_steps():
+    # g = ln(f / f*) of an ideal membrane, f ~ sqrt(T) (Rayleigh, from memory): slope 1/2;
+    # with the slope at hand the first step lands on the root (one solve), without it the
+    # secant needs a few more
+    f = lambda x: 0.5 * (x - 8.0) + 0.02 * math.sin(x)  # noqa: E731  (a little curvature)
+    df = lambda x: 0.5 + 0.02 * math.cos(x)  # noqa: E731
+    g, calls = counted(f)
+    out = search(g, x0=7.0, g0=f(7.0), lo=0.0, hi=12.0, close=CLOSE, slope=df)
+    assert isinstance(out, Found) and abs(f(out.x)) < CLOSE and out.solves <= 3
+    g2, calls2 = counted(f)
+    plain = search(g2, x0=7.0, g0=f(7.0), lo=0.0, hi=12.0, close=CLOSE)
+    assert isinstance(plain, Found) and out.solves <= plain.solves
+
+
+def test_a_derivative_does_not_hide_a_jump():
+    # the derivative of each smooth piece knows nothing of the jump between them: the target
+    # inside the jump is still reported as one
+    f = lambda x: 0.5 * (x - 8.0) + (0.3 if x > 8.1 else -0.3)  # noqa: E731
+    g, _ = counted(f)
+    out = search(g, x0=7.0, g0=f(7.0), lo=0.0, hi=12.0, close=CLOSE, slope=lambda x: 0.5)
+    assert isinstance(out, Jump) and out.x_lo <= 8.1 <= out.x_hi
+
+
+def test_gauss_newton_agrees_with_scipys_least_squares():
+    # two residuals nonlinear in two logs, with a misfit left at the optimum and a bound on
+    # the second parameter that is active: scipy.optimize.least_squares is the reference
+    import numpy as np
+    from scipy.optimize import least_squares
+
+    from membrane.tension_search import fit
+
+    def res(p):
+        return np.array([100 * (np.exp(0.5 * p[0]) - 3.0) + 5 * p[1], 80 * (p[0] - 2.0) - 40 * p[1] ** 2,
+                         3.0 * p[1] - 1.0])
+
+    def jac(p):
+        return np.array([[50 * np.exp(0.5 * p[0]), 5.0], [80.0, -80 * p[1]], [0.0, 3.0]])
+
+    for upper in ([5.0, 5.0], [5.0, 0.1]):
+        ref = least_squares(res, [1.0, 0.0], bounds=([0.0, -1.0], upper), xtol=1e-14, ftol=1e-14,
+                            gtol=1e-14)
+        out = fit(res, x0=[1.0, 0.0], lower=[0.0, -1.0], upper=upper, jacobian=jac)
+        assert np.allclose(out.x, ref.x, atol=1e-7), (out.x, ref.x)
+        assert out.solves < 15

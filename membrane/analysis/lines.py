@@ -27,8 +27,12 @@ line is reported with
   :data:`.glide.GLIDE_MIN_CENTS` from its first :data:`INITIAL_S` to its stretch after
   :data:`SETTLED_FROM_S`, that glide (initial and settled frequencies).
 
-Gliding lines (:mod:`.glide`) are merged the same way, over the comb that follows the
-glide.
+A glide's comb is joined into one line across bands (:func:`glide_chains`): from a
+long-ringing line up through the next lines above, each dying faster than the one below
+and within its own line width of it (the early part of a falling partial is higher and
+dies first), when the joined line falls by at least :data:`.glide.GLIDE_MIN_CENTS`. Lines
+the short-time spectrum's ridge shows gliding (:mod:`.glide`) are merged the same way,
+over the comb that follows the ridge.
 """
 
 from __future__ import annotations
@@ -44,6 +48,7 @@ from .glide import GLIDE_MIN_CENTS, Track, frames, track
 from .partial import LN1000, Partial
 
 MIN_BEATS = 1.0  # lines beating fewer times than this while they ring are one line
+FEW_BEATS = LN1000 / math.pi  # within a line's width r / pi: fewer beats than this as it rings
 INITIAL_S = 0.1  # a line's initial frequency: over this long from the reference time [s]
 #                  (what a 0.1 s window there would show)
 SETTLED_FROM_S = 0.3  # its settled frequency: from this time on [s] (a struck head's glide
@@ -92,6 +97,56 @@ def group(comps: list[esprit.Component], *, duration: float) -> list[list[esprit
         info.pop(j)
         info[i] = summary(lines[i])
     return lines
+
+
+def glide_chains(lines: list[list[esprit.Component]], *, shift: float,
+                 duration: float) -> list[list[esprit.Component]]:
+    """Join the comb along each glide, over the lines of every band: from a line (the
+    longest-ringing first), the lines above it one by one (none skipped: a glide's comb is
+    contiguous), each dying faster than the one below and within its own line width of it (``gap * T60 < 3 ln 10 / pi``: fewer than 2.2 beats
+    while it rings), as long as together they fall by a glide's worth (:func:`glide_of`).
+    A glide may cross from one band into the next; the model of the line is the sum of
+    its components whichever band fitted them."""
+    rates = [envelope_fit(line, duration=duration)[1] for line in lines]
+    rings = [LN1000 / r if r > 0 else math.inf for r in rates]
+    lo = [min(c.frequency for c in line) for line in lines]
+    hi = [max(c.frequency for c in line) for line in lines]
+    free = set(range(len(lines)))
+    out = []
+    for a in sorted(range(len(lines)), key=lambda k: -rings[k]):
+        if a not in free:
+            continue
+        chain, top = [a], a
+        while True:
+            # the next line up, none skipped: a glide's comb is contiguous
+            above = [k for k in free if k not in chain and lo[k] > hi[top]]
+            if not above:
+                break
+            k = min(above, key=lambda k: lo[k])
+            if not (esprit.FAST_T60_S <= rings[k] < rings[top]
+                    and (lo[k] - hi[top]) * rings[k] < FEW_BEATS):
+                break
+            top = k
+            chain.append(top)
+        comps = [c for k in chain for c in lines[k]]
+        if len(chain) > 1 and glide_of(comps, shift=shift, duration=duration) is not None:
+            free.difference_update(chain)
+            out.append(comps)
+    return out + [lines[k] for k in sorted(free)]
+
+
+def glide_of(comps: list[esprit.Component], *, shift: float,
+             duration: float) -> tuple[float, float, float] | None:
+    """(initial Hz, settled Hz, cents) of a line that falls by :data:`.glide.GLIDE_MIN_CENTS`
+    or more from its first :data:`INITIAL_S` after the reference time (``shift`` [s] after
+    the start of the decay) to its stretch from :data:`SETTLED_FROM_S` on; else None."""
+    if len(comps) < 2:
+        return None
+    t0 = min(max(shift, 0.0), 0.5 * duration)
+    initial = mean_frequency(comps, t0, min(duration, t0 + INITIAL_S))
+    settled = mean_frequency(comps, min(SETTLED_FROM_S, 0.5 * duration), duration)
+    fall = float(cents(settled, initial))
+    return (initial, settled, fall) if fall <= -GLIDE_MIN_CENTS else None
 
 
 def _pair_integrals(sig: np.ndarray, t1: float, t2: float) -> tuple[np.ndarray, np.ndarray]:
@@ -193,13 +248,11 @@ def line_partial(comps: list[esprit.Component], *, shift: float, duration: float
     if len(comps) == 1:
         return Partial(frequency=comps[0].frequency, amplitude=amplitude, decay_rate=rate,
                        flags=tuple(flags))
-    t0 = min(max(shift, 0.0), 0.5 * duration)
-    initial = mean_frequency(comps, t0, min(duration, t0 + INITIAL_S))
-    settled = mean_frequency(comps, min(SETTLED_FROM_S, 0.5 * duration), duration)
-    glide = cents(settled, initial)
-    if glide <= -GLIDE_MIN_CENTS:
+    glide = glide_of(comps, shift=shift, duration=duration)
+    if glide is not None:
+        initial, settled, fall = glide
         return Partial(frequency=initial, amplitude=amplitude, decay_rate=rate,
-                       glide_cents=float(glide), settled_frequency=settled,
+                       glide_cents=fall, settled_frequency=settled,
                        flags=("glide",) + tuple(flags))
     members = tuple(line_partial([c], shift=shift, duration=duration) for c in comps)
     return Partial(frequency=mean_frequency(comps, 0.0, duration), amplitude=amplitude,
@@ -242,13 +295,14 @@ def merge_glides(lines: list[list[esprit.Component]], *, y: np.ndarray, rate: fl
         p = parts[i]
         # anchor where the partial has fallen 15 dB: late enough to have settled
         anchor = min(15.0 / 60.0 * p.t60, 0.6 * y.size / rate)
-        tr = track(y, frequency=p.frequency, rate=rate, t_from=t_ref, anchor_s=anchor,
+        tr = track(y, frequency=p.settled, rate=rate, t_from=t_ref, anchor_s=anchor,
                    shared=shared)
         if tr is None or not tr.is_glide or any(lo_ <= tr.settled <= hi_ for lo_, hi_ in ranges):
             continue
         lo = tr.settled - max(1.5, 3.0 * tr.wobble)
         hi = float(np.max(tr.frequencies[:2])) + max(1.5, 0.02 * tr.initial)
-        members = [j for j in range(len(parts)) if j not in used and lo <= parts[j].frequency <= hi]
+        members = [j for j in range(len(parts)) if j not in used and
+                   lo <= parts[j].settled and parts[j].frequency <= hi]
         if not members:
             continue
         used.update(members)
@@ -265,4 +319,4 @@ def _glide_partial(comps, tr: Track, *, shift: float, duration: float) -> Partia
     p = line_partial(comps, shift=shift, duration=duration)
     return Partial(frequency=tr.initial, amplitude=p.amplitude, decay_rate=p.decay_rate,
                    glide_cents=tr.cents, settled_frequency=tr.settled,
-                   flags=("glide",) + p.flags)
+                   flags=("glide",) + tuple(f for f in p.flags if f != "glide"))

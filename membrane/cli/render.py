@@ -150,9 +150,9 @@ def render(
             check_view(view, fmt)
         # One mode's picture needs its own order and the reference's (for the ratio in the
         # title): each order is solved on its own, so leaving the others out changes no number.
-        from ..solver import _check_orders
+        from ..solver import check_orders
 
-        _check_orders(m_max, n_max)  # the options are still checked as given
+        check_orders(m_max, n_max)  # the options are still checked as given
         modeset = _solve(drum, physics.value, max(m, ref[0]), n_max, need=(m, n), losses=losses.value)
         if branch is not None and not any(x.branch for x in modeset):
             fail("--branch", branch, "only a shell's two heads solved together (--physics full) have branches")

@@ -39,7 +39,7 @@ shape: with :math:`\omega^2 = K/(M + A)` a change of K alone moves
 :math:`\delta\omega/\omega = \delta K / 2K` whatever the added mass A. It is an
 approximation for modes the air reshapes (the (0,n) modes with a kettle, which do not split).
 
-One module for about 400 lines on purpose: the exact and the first-order methods are one
+One module of a little over 400 lines on purpose: the exact and the first-order methods are one
 model (the same basis, quadrature and stress integrals, the first order being the 2x2 block
 of the exact matrix), and the tests compare them against each other.
 """

@@ -94,14 +94,14 @@ def stiff_roots(edge: str, m: int, count: int, s: float, nu: float) -> np.ndarra
     lo, hi = _brackets(edge, m, count)
     # all roots of this order at once; a hand-written bracketing solver rather than
     # scipy.optimize, whose import alone costs a command-line call about 0.4 s
-    roots = _illinois(lambda x: _edge_function(edge, m, x, s, nu), lo, hi)
+    roots = illinois(lambda x: _edge_function(edge, m, x, s, nu), lo, hi)
     if roots is None:
         raise SolverError(f"stiff-membrane edge roots did not converge (m = {m}, T a^2/D = {s:g})")
     roots.setflags(write=False)
     return roots
 
 
-def _illinois(f, lo: np.ndarray, hi: np.ndarray, *, rtol: float = 1e-15, maxiter: int = 200):
+def illinois(f, lo: np.ndarray, hi: np.ndarray, *, rtol: float = 1e-15, maxiter: int = 200):
     """All roots of f in the brackets [lo, hi] at once (Illinois regula falsi, vectorised).
 
     f(x) must change sign across each bracket; a step that would leave its bracket is

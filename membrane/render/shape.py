@@ -149,11 +149,11 @@ def _zeros_in(f, lo: np.ndarray, hi: np.ndarray) -> np.ndarray:
     Illinois regula falsi on all brackets at once (the solver's edge-root finder), to a
     relative 1e-13; bisection to the same width if that does not converge.
     """
-    from ..physics.vacuum import _illinois
+    from ..physics.vacuum import illinois
 
     if lo.size == 0:
         return lo
-    roots = _illinois(f, lo, hi, rtol=1e-13)
+    roots = illinois(f, lo, hi, rtol=1e-13)
     if roots is not None:
         return roots
     a, b = lo.astype(float), hi.astype(float)
