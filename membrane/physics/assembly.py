@@ -171,7 +171,10 @@ def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) 
             gamma = order_duct_gammas(order, count=len(air) + 4)
             cands = [(q, p, sound_speed * np.hypot(g, p * np.pi / order.depth))
                      for q, g in enumerate(gamma) for p in range(len(air) + 4)]
-            cost = np.array([[abs(np.log(omega[r].real / max(c[2], 1e-30))) for c in cands]
+            # Squared log distance, not absolute: with both candidates below (or above) both
+            # roots, the absolute costs of the two pairings are equal and round-off picks one;
+            # the square is strictly convex, so the lower root takes the lower duct mode.
+            cost = np.array([[np.log(omega[r].real / max(c[2], 1e-30)) ** 2 for c in cands]
                              for r in air])
             ra, ca = linear_sum_assignment(cost)
             for i, j in zip(ra, ca):
