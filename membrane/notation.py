@@ -31,6 +31,10 @@ PHYSICS_MODELS = ("ideal", "stiff", "full")
 PHYSICS_HELP = "ideal: tension only; stiff: + bending stiffness; full: + air on the faces and in the body."
 
 
+#: Cents per unit of ln f (1200 / ln 2): a step of x cents is a factor exp(x / CENTS_PER_LN).
+CENTS_PER_LN = 1200.0 / math.log(2.0)
+
+
 def cents(frequency: float | ArrayLike, reference: float | ArrayLike) -> float | np.ndarray:
     """Interval from ``reference`` up to ``frequency`` in cents, 1200 log2(frequency / reference).
 

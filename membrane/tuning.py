@@ -29,7 +29,7 @@ from .blas import one_blas_thread
 from .drum import Drum, Head
 from .errors import InputError, SolverError
 from .modes import ModeSet
-from .notation import cents as _cents
+from .notation import CENTS_PER_LN, cents as _cents
 from .renamed import renamed_attribute
 from .safety import (CAUTIONS, MIN_HOLDING_STRAIN, MIN_RULE, SAFE_STRESS_FRACTION, TENSION_CEILING,  # noqa: F401
                      below_minimum, practical_minimum, safety_warnings, slack_tension, stress, tension_ceiling)
@@ -39,7 +39,6 @@ from .tune_refusals import BRANCH_RANGE  # noqa: F401  (its old address)
 from .lug_changes import LUG_RULE, TURN_STEP, LugChange, equalise_lugs, turns_text  # noqa: F401  (their old address)
 from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
 
-CENTS_PER_LN = 1200.0 / math.log(2.0)  # cents per unit of ln f
 # Targets count as met together when every residual is within this many cents.
 TOGETHER_CENTS = 1.0
 # The root is polished until the mode is within this many cents of its target.
@@ -297,7 +296,7 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
         g = lambda x: float(np.log(model.frequencies(math.exp(x))[0] / hz))  # noqa: E731
         slope = (lambda x: float(model.slopes(math.exp(x))[0, 0])) if model.by_order else None  # noqa: E731
         out = tension_search.search(g, x0=math.log(t_now), g0=float(np.log(f_now[0] / hz)),
-                                    lo=lo, hi=hi, close=TOLERANCE_CENTS / 1200 * math.log(2),
+                                    lo=lo, hi=hi, close=TOLERANCE_CENTS / CENTS_PER_LN,
                                     slope=slope)
         if isinstance(out, tension_search.Beyond):
             refusals.no_root(drum, (m, n), hz, model, lo, hi)
