@@ -66,6 +66,15 @@ class OrderRoots:
         that head, ("air", q, p) for a root that is mostly the body's air (duct mode q
         radially, p half-waves along the depth), or None for a root left out (a head mode
         above n_max).
+    root_set : RootSet or None
+        The operators the roots are roots of (this order at ``index``), to carry them on
+        (continuation.py) or take their derivatives (sensitivity.py) without building them
+        again.
+    index : int
+        The order's index in ``root_set``.
+    window : float
+        Angular frequency up to which every root of the order was searched for, rad/s (the
+        top of the whole solve's scan; NaN if unknown).
     """
 
     order: Order
@@ -73,6 +82,9 @@ class OrderRoots:
     vectors: np.ndarray
     head_fraction: np.ndarray
     labels: list
+    root_set: object = None
+    index: int = 0
+    window: float = math.nan
 
 
 def mode_energy(order, vectors) -> np.ndarray:
@@ -223,12 +235,75 @@ def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
     for i, order in enumerate(orders):
         lowest = min(h.omega[0] for h in order.heads)
         top = max(h.omega[n_max - 1] for h in order.heads)
+        reached = [math.nan]
+
+        def covered(w, v, f, hi, o=order):
+            reached[0] = hi  # the scan stops at the first hi that covers
+            return covered_by(o, w, v, f, hi, n_max)
+
         omega, vecs, frac = spectrum.scan_order(
-            rs, i, covered=lambda w, v, f, hi, o=order: covered_by(o, w, v, f, hi, n_max),
+            rs, i, covered=covered,
             lowest=lowest, tol=settings.tol, rounds=settings.max_iter, ceiling=60.0 * top)
         labels = label_roots(order, omega, vecs, frac, n_max=n_max, sound_speed=air[1])
-        out.append(OrderRoots(order, omega, vecs, frac, labels))
+        out.append(OrderRoots(order, omega, vecs, frac, labels, rs, i, reached[0]))
     return out
+
+
+def carry_order(prev, drum_at, steps: dict, *, n_max: int, settings: Settings = DEFAULT,
+                losses=None, halvings: int = 0):
+    """Order ``prev.order.m`` of a nearby drum from the solved roots ``prev`` by continuation.
+
+    Parameters
+    ----------
+    prev : OrderRoots
+        A solved order of one head (with its root set and window).
+    drum_at : callable
+        Changes of the parameters' logs (a dict like ``steps``) -> the drum there (``prev``'s
+        drum at all zeros).
+    steps : dict
+        Parameter name (sensitivity.PARAMETERS) -> change of its log from ``prev``'s drum.
+    n_max, settings, losses
+        As for :func:`solve_drum` (the same as ``prev`` was solved with).
+    halvings : int
+        Where the step cannot be carried in one, it is taken in two halves, each of which may
+        be halved again, this many times.
+
+    Returns
+    -------
+    OrderRoots or None
+        The carried roots, weighed and labelled as a whole solve would (continuation.py);
+        None where a root cannot be carried clearly, or the head modes leave the window the
+        whole solve searched (then solve the order whole). The window is ``prev``'s: roots
+        above it, and roots that enter it, are not looked for.
+    """
+    from . import continuation
+
+    if prev.root_set is None or len(prev.order.heads) != 1 or not math.isfinite(prev.window):
+        return None
+    rs_prev = prev.root_set
+    if prev.index != 0 or len(rs_prev.orders) != 1:
+        rs_prev = RootSet([prev.order], air=(rs_prev.rho, rs_prev.c), settings=rs_prev.settings,
+                          k_max=[rs_prev.k_max[prev.index]], losses=losses)
+    rs = order_root_set(drum_at(steps), m=prev.order.m, n_max=n_max, settings=settings, losses=losses)
+    got = continuation.carry(prev, rs_prev, rs, steps, tol=settings.tol)
+    if got is None:
+        if halvings <= 0:
+            return None
+        half = {p: 0.5 * d for p, d in steps.items()}
+        mid = carry_order(prev, drum_at, half, n_max=n_max, settings=settings, losses=losses,
+                          halvings=halvings - 1)
+        if mid is None:
+            return None
+        return carry_order(mid, lambda st: drum_at({p: half[p] + st[p] for p in st}), half,
+                           n_max=n_max, settings=settings, losses=losses, halvings=halvings - 1)
+    omega, vecs, frac = got
+    order = rs.orders[0]
+    labels = label_roots(order, omega, vecs, frac, n_max=n_max, sound_speed=rs.c)
+    heads = [omega[r].real for r, lab in enumerate(labels) if lab is not None and lab[0] == "head"]
+    # every head mode found again, with the whole solve's room above the highest (covered_by)
+    if len(heads) != n_max or 1.25 * max(heads) > prev.window:
+        return None
+    return OrderRoots(order, omega, vecs, frac, labels, rs, 0, prev.window)
 
 
 def decay_time(omega: complex) -> float:
