@@ -31,6 +31,8 @@ from ..errors import SolverError
 
 from ..notation import EDGES  # noqa: E402
 
+SHAPES_KEPT = 8  # radii arrays whose shapes each basis keeps (RadialBasis.shape)
+
 
 def _ratio_i(m: int, y):
     """I_m'(y) / I_m(y), without overflow (exponentially scaled Bessel functions)."""
@@ -178,11 +180,28 @@ class RadialBasis:
         return 2 * np.pi if self.m == 0 else np.pi
 
     def shape(self, r) -> np.ndarray:
-        """Radial shapes phi_n(r), shape (N, len(r)); r in m, 0 <= r <= a."""
+        """Radial shapes phi_n(r), shape (N, len(r)); r in m, 0 <= r <= a.
+
+        The result is read-only: the last few radii asked for are kept, since every mode of
+        this order shares the basis and a picture, a strike or a nodal-line search asks
+        for the same radii once per mode (the Bessel functions are the cost).
+        """
         r = np.atleast_1d(np.asarray(r, dtype=float))
+        kept = self.__dict__.get("_shapes")
+        if kept is None:
+            kept = {}
+            object.__setattr__(self, "_shapes", kept)  # frozen: the cache is no field
+        key = (r.shape, r.tobytes())
+        out = kept.get(key)
+        if out is not None:
+            return out
         out = special.jv(self.m, np.outer(self.k1, r))
         if self.k2 is not None:  # all modes at once: the same numbers as one at a time
             out += self.c[:, None] * _i_hat(self.m, self.k2[:, None], r[None, :], self.radius)
+        out.setflags(write=False)
+        if len(kept) >= SHAPES_KEPT:
+            del kept[next(iter(kept))]  # the oldest
+        kept[key] = out
         return out
 
     def transform(self, kappa) -> np.ndarray:
