@@ -32,6 +32,7 @@ from ..errors import SolverError
 from ..notation import EDGES  # noqa: E402
 
 SHAPES_KEPT = 8  # radii arrays whose shapes each basis keeps (RadialBasis.shape)
+SHAPES_MIN_POINTS = 16  # ... if they hold at least this many radii
 
 
 def _ratio_i(m: int, y):
@@ -255,6 +256,8 @@ class RadialBasis:
         if self.k2 is not None:  # all modes at once: the same numbers as one at a time
             out += self.c[:, None] * _i_hat(self.m, self.k2[:, None], r[None, :], self.radius)
         out.setflags(write=False)
+        if r.size < SHAPES_MIN_POINTS:  # a root search's few points: cheap, and never asked again
+            return out
         if len(kept) >= SHAPES_KEPT:
             del kept[next(iter(kept))]  # the oldest
         kept[key] = out
