@@ -12,8 +12,9 @@ and then each command, so a machine that speeds up or slows down during the run 
 CPU time (user + system of the child) is reported rather than wall time, because a busy
 machine inflates wall time most. The reference as defined (the issue's) lets OpenBLAS start its
 thread pool, which the commands do not (the command line asks for one BLAS thread before numpy
-loads); its single-threaded time is printed beside it, not used in the ratios. The table gives the median over the repetitions, the median
-of the per-repetition ratios to the reference, and the goals: an absolute goal in CPU seconds
+loads); its single-threaded time is printed beside it, not used in the ratios. The table
+gives the median over the repetitions, the median of the per-repetition ratios to the
+reference, and the goals: an absolute goal in CPU seconds
 (stated for the machine the goals were measured on) and, where one is stated, a ratio goal,
 which is the one that carries over to another machine.
 
