@@ -241,12 +241,26 @@ def pressure_across_radius(modeset: ModeSet, *, radius_fraction=None,
     if radius_fraction is None:
         raise TypeError("pressure_across_radius() needs radius_fraction, the strike radii r0/a")
     radii = np.atleast_1d(np.asarray(radius_fraction, dtype=float))
+    return shapes_times_gains(modeset, radii, gains(modeset, contact_time=contact_time,
+                                                    listener=listener, angle=angle))
+
+
+def gains(modeset: ModeSet, *, contact_time: float, listener: Listener, angle: float) -> np.ndarray:
+    """B_j / phi_j(r0) of every mode: everything of the pressure but the strike radius.
+
+    Complex, shape (len(modeset),); a search over strike radii computes it once
+    (:func:`shapes_times_gains` then needs only the shapes).
+    """
     probe = Strike(radius_fraction=DEFAULT_AT, contact_time=contact_time, angle=angle)
-    rows = []
-    for mode in modeset:
-        g = _gain(mode, probe, listener, modeset.drum, modeset.physics)
-        rows.append(g * _shape(mode, radii) if g != 0 else np.zeros(radii.size, dtype=complex))
-    return np.array(rows)
+    return np.array([_gain(mode, probe, listener, modeset.drum, modeset.physics) for mode in modeset],
+                    dtype=complex)
+
+
+def shapes_times_gains(modeset: ModeSet, radius_fraction: np.ndarray, g: np.ndarray) -> np.ndarray:
+    """B_j(r0) = g_j phi_j(r0) for strike radii r0/a, shape (len(modeset), len(radius_fraction))."""
+    rows = [g_j * _shape(mode, radius_fraction) if g_j != 0 else np.zeros(radius_fraction.size, dtype=complex)
+            for mode, g_j in zip(modeset, g)]
+    return np.array(rows).reshape(len(rows), radius_fraction.size)
 
 
 # Older names (with a DeprecationWarning), and the strike-point search, whose module imports

@@ -6,6 +6,7 @@ sounds like is :mod:`membrane.strike`.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass
 
 import numpy as np
@@ -15,7 +16,32 @@ from .modes import ModeSet
 from .notation import mode_list
 from .presets import DEFAULT_MALLET, MALLETS, SEARCH_RANGE
 from .renamed import warn_renamed
-from .strike import Listener, Strike, pressure_across_radius, strike_partials
+from .strike import Listener, Strike, gains, shapes_times_gains, strike_partials
+
+XTOL = 1e-5  # the strike radius is refined to this fraction of the radius
+_GOLDEN = (math.sqrt(5.0) - 1.0) / 2.0  # 0.618...: the interval shrinks by this per evaluation
+
+
+def golden_maximum(f, a: float, b: float, *, xtol: float) -> tuple[float, float]:
+    """The maximum of a scalar function on [a, b] by golden-section search: (x, f(x)).
+
+    One evaluation per step, the bracket shrinking by 0.618 each time until it is narrower
+    than ``xtol``; f should have one maximum in [a, b] (here the bracket around the best
+    point of a grid). Written out rather than scipy.optimize, whose import alone would cost
+    a strike or a handout about 0.1-0.3 s of CPU.
+    """
+    c, d = b - _GOLDEN * (b - a), a + _GOLDEN * (b - a)
+    fc, fd = f(c), f(d)
+    while b - a > xtol:
+        if fc >= fd:  # the maximum is in [a, d]
+            b, d, fd = d, c, fc
+            c = b - _GOLDEN * (b - a)
+            fc = f(c)
+        else:  # in [c, b]
+            a, c, fc = c, d, fd
+            d = a + _GOLDEN * (b - a)
+            fd = f(d)
+    return (c, fc) if fc >= fd else (d, fd)
 
 
 @dataclass(frozen=True)
@@ -95,10 +121,11 @@ def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS
     if mask.all():
         raise InputError("best-for", " ".join(f"{m},{n}" for m, n in chosen),
                          "leave some solved modes out: the search weighs the chosen against the rest")
+    g = gains(modeset, contact_time=contact_time, listener=listener, angle=angle)  # once: not per radius
+
     def contrast(radius_fraction) -> np.ndarray:
-        power = np.abs(pressure_across_radius(modeset, radius_fraction=radius_fraction,
-                                              contact_time=contact_time, listener=listener,
-                                              angle=angle)) ** 2
+        radii = np.atleast_1d(np.asarray(radius_fraction, dtype=float))
+        power = np.abs(shapes_times_gains(modeset, radii, g)) ** 2
         with np.errstate(divide="ignore"):
             return 10 * np.log10(power[mask].sum(axis=0)) - 10 * np.log10(power[~mask].sum(axis=0))
 
@@ -107,12 +134,8 @@ def best_strike_radius(modeset: ModeSet, *, modes, contact_time: float = MALLETS
     values = contrast(grid)
     i = int(np.argmax(values))
     a, b = grid[max(i - 1, 0)], grid[min(i + 1, len(grid) - 1)]
-    import scipy.optimize  # only here: its import costs every strike about 0.1 s
-
-    res = scipy.optimize.minimize_scalar(lambda x: -float(contrast(x)[0]), bounds=(a, b),
-                                         method="bounded", options={"xatol": 1e-5})
-    where, best = (float(res.x), -float(res.fun)) if -res.fun >= values[i] else \
-        (float(grid[i]), float(values[i]))
+    x, fx = golden_maximum(lambda r: float(contrast(r)[0]), a, b, xtol=XTOL)
+    where, best = (x, fx) if fx >= values[i] else (float(grid[i]), float(values[i]))
     heard = strike_partials(modeset, strike=Strike(radius_fraction=where, contact_time=contact_time,
                                                    angle=angle), listener=listener)
     return StrikeAdvice(radius_fraction=where, contrast_db=best, partials=heard, chosen=chosen)

@@ -45,7 +45,7 @@ import scipy.optimize
 from . import esprit
 from ..notation import cents
 from .glide import GLIDE_MIN_CENTS, Track, frames, track
-from .partial import LN1000, Partial
+from .partial import LN1000, RISE_DB, Partial
 
 MIN_BEATS = 1.0  # lines beating fewer times than this while they ring are one line
 FEW_BEATS = LN1000 / math.pi  # within a line's width r / pi: fewer beats than this as it rings
@@ -240,23 +240,50 @@ def line_partial(comps: list[esprit.Component], *, shift: float, duration: float
     """
     amplitude, rate = envelope_fit(comps, duration=duration)
     flags = []
+    at_least = None
     if rate <= 0:
         flags.append("steady")
+        # it did not fall within the stretch analysed from the reference time on
+        at_least = duration - max(shift, 0.0)
     elif LN1000 / rate < esprit.FAST_T60_S:
         flags.append("fast")
+    if rise_db(comps, shift=shift, duration=duration) >= RISE_DB:
+        flags.append("rising")
     amplitude *= math.exp(-rate * shift)
     if len(comps) == 1:
         return Partial(frequency=comps[0].frequency, amplitude=amplitude, decay_rate=rate,
-                       flags=tuple(flags))
+                       flags=tuple(flags), t60_at_least=at_least)
     glide = glide_of(comps, shift=shift, duration=duration)
     if glide is not None:
         initial, settled, fall = glide
         return Partial(frequency=initial, amplitude=amplitude, decay_rate=rate,
                        glide_cents=fall, settled_frequency=settled,
-                       flags=("glide",) + tuple(flags))
+                       flags=("glide",) + tuple(flags), t60_at_least=at_least)
     members = tuple(line_partial([c], shift=shift, duration=duration) for c in comps)
     return Partial(frequency=mean_frequency(comps, 0.0, duration), amplitude=amplitude,
-                   decay_rate=rate, flags=tuple(flags), members=members)
+                   decay_rate=rate, flags=tuple(flags), members=members,
+                   t60_at_least=at_least)
+
+
+RISE_FROM_S = 0.05  # a rise counts from this long after the reference time [s] (a beat of
+#                     two lines a few hertz apart, or energy still flowing in; not the
+#                     band filter's start-up, which is over by then)
+
+
+def rise_db(comps: list[esprit.Component], *, shift: float, duration: float,
+            points: int = 256) -> float:
+    """How far the line's envelope ``|sum_k a_k exp(s_k t)|`` climbs above its value at the
+    reference time (``shift`` [s] after the start of the decay), at its highest from
+    :data:`RISE_FROM_S` later to the end of the decay [dB]; 0 when it never climbs."""
+    t0 = max(shift, 0.0)
+    if t0 + RISE_FROM_S >= duration:
+        return 0.0
+    s, a = _poles(comps)
+    t = np.concatenate(([t0], np.linspace(t0 + RISE_FROM_S, duration, points)))
+    env = np.abs(np.exp(np.outer(t, s)) @ a)
+    if not env[0] > 0:
+        return 0.0
+    return max(0.0, float(20.0 * np.log10(np.max(env[1:]) / env[0])))
 
 
 def _ring(r: float, duration: float) -> float:
@@ -319,4 +346,5 @@ def _glide_partial(comps, tr: Track, *, shift: float, duration: float) -> Partia
     p = line_partial(comps, shift=shift, duration=duration)
     return Partial(frequency=tr.initial, amplitude=p.amplitude, decay_rate=p.decay_rate,
                    glide_cents=tr.cents, settled_frequency=tr.settled,
-                   flags=("glide",) + tuple(f for f in p.flags if f != "glide"))
+                   flags=("glide",) + tuple(f for f in p.flags if f != "glide"),
+                   t60_at_least=p.t60_at_least)

@@ -16,7 +16,7 @@ from .common import Format, Physics, emit, fail, num, signed, t60, write_atomic
 COLUMNS = [
     ("frequency_hz", "f (Hz)", num(3)),
     ("level_db", "level (dB)", num(1)),
-    ("decay_s", "T60 (s)", t60),
+    ("decay_text", "T60 (s)", str),
     ("note", "note", str),
     ("cents_from_note", "cents off note", signed(0)),
     ("remarks", "remarks", str),
@@ -128,10 +128,13 @@ def listen(
         partners[id(sp.high)] = (sp.low.frequency, sp.beat_frequency)
     for p in shown:
         note, off = note_name(p.frequency)
-        row = {"frequency_hz": p.frequency, "level_db": p.level_db, "decay_s": p.t60,
-               "decay_rate_per_s": p.decay_rate, "note": note, "cents_from_note": off,
+        decay, at_least = p.t60_shown
+        row = {"frequency_hz": p.frequency, "level_db": p.level_db, "decay_s": decay,
+               "decay_s_is_lower_bound": at_least, "decay_rate_per_s": p.decay_rate, "note": note, "cents_from_note": off,
                "settled_frequency_hz": p.settled, "glide_cents": p.glide_cents,
-               "flags": list(p.flags), "remarks": _remarks(p)}
+               "flags": list(p.flags), "remarks": _remarks(p),
+               # a partial that does not decay within the record: its T60 exceeds the record
+               "decay_text": f"> {decay:.3g}" if at_least else t60(decay)}
         mt = labels.get(id(p))
         if mt is not None:
             row.update(m=mt.m, n=mt.n, mode=mode_label(mt.m, mt.n), model_hz=mt.model_frequency,
@@ -151,7 +154,7 @@ def listen(
                "encoding": audio.encoding, "strike_time_s": analysis.strike_time,
                "analysed_from_s": analysis.start_time, "analysed_to_s": analysis.end_time,
                "reference_time_s": analysis.reference_time,
-               "floor_db": floor, "partials": [{k: v for k, v in r.items() if k not in ("mode", "remarks")}
+               "floor_db": floor, "partials": [{k: v for k, v in r.items() if k not in ("mode", "remarks", "decay_text")}
                             for r in rows],
                "partials_found": len(analysis.partials), "warnings": list(analysis.warnings)}
     ref_ms = 1e3 * (analysis.reference_time - analysis.strike_time)
@@ -168,6 +171,13 @@ def listen(
     if any("fast" in p.flags for p in shown):
         notes.append("fast: decays faster than the analysis resolves well; its level and T60 "
                      "are uncertain")
+    if any("steady" in p.flags for p in shown):
+        notes.append("steady: does not fall within the analysed decay; its T60 is only known "
+                     "to be longer than that stretch (> s); left out of the tension fit")
+    if any("rising" in p.flags for p in shown):
+        notes.append("rising: its envelope grows after the reference time (fed by other modes "
+                     "or the air, or lines that beat); level taken at the reference time, T60 "
+                     "from the fall a long window sees")
     if not analysis.partials:
         notes.append(rec.NO_PARTIALS)
     if fit_failed is not None:
@@ -195,7 +205,9 @@ def listen(
         notes.append(f"spectrum picture written to {plot}")
     columns = COLUMNS + (DRUM_COLUMNS if ident else [])
     if format is Format.csv:
-        columns = COLUMNS[:3] + [("decay_rate_per_s", "decay_rate_per_s", str)] + COLUMNS[3:5] + \
+        columns = COLUMNS[:2] + [("decay_s", "decay_s", str),
+                                 ("decay_s_is_lower_bound", "decay_s_is_lower_bound", str),
+                                 ("decay_rate_per_s", "decay_rate_per_s", str)] + COLUMNS[3:5] + \
             [("settled_frequency_hz", "settled_frequency_hz", str), ("glide_cents", "glide_cents", str)] + \
             ([("m", "m", str), ("n", "n", str)] + DRUM_COLUMNS[1:] if ident else [])
     title = f"{recording.name}: {len(rows)} partials ({audio.encoding}, {audio.rate:g} Hz)"
@@ -252,7 +264,7 @@ def _fit_losses(ident, rows, payload, notes) -> None:
 
 
 def _remarks(p) -> str:
-    """Flags in a few words for the table: the glide, fast decays, steady tones."""
+    """Flags in a few words for the table: the glide, fast decays, steady and rising lines."""
     out = []
     if "glide" in p.flags:
         out.append(f"glide {p.glide_cents:+.0f}c to {p.settled:.1f}")

@@ -72,21 +72,9 @@ def emit(fmt: Format, *, payload: dict, rows: list[dict], columns: list[tuple[st
             lines.extend(f"- {n}" for n in notes)
         print("\n".join(lines))
         return
-    from rich.console import Console
-    from rich.table import Table
+    from .table import print_table
 
-    # a two-column summary (what, value) needs no header row: an empty one reads as a gap
-    table = Table(title=title or None, title_justify="left", show_header=any(headers))
-    for i, header in enumerate(headers):
-        table.add_column(header, justify="left" if i == 0 else "right", no_wrap=i == 0)
-    for c in cells:
-        table.add_row(*c)
-    console = Console(soft_wrap=False)
-    if not console.is_terminal:  # piped or captured: no terminal width to respect
-        console = Console(soft_wrap=False, width=160)
-    console.print(table)
-    for n in notes:
-        console.print(f"[dim]- {n}[/dim]", highlight=False)
+    print_table(headers, cells, title=title, notes=notes)
 
 
 def num(digits: int) -> Callable:

@@ -17,6 +17,10 @@ from scipy import special
 from ..notation import POISSON_RATIO
 from .vacuum import RadialBasis, ratio_i
 
+# k_s a = sqrt(T a^2 / D) from which the rim function's integrals take their closed forms
+# (RitzSpace._rim_integrals); below it they cancel (a head nearly a plate) and are integrated.
+CLOSED_FORM_KSA = 20.0
+
 
 def _jx(m: int, p: int, x):
     """J_{m+p}(x) / x^p, with its series near x = 0."""
@@ -186,22 +190,60 @@ class RitzSpace:
         K = np.diag(mass * b.omega**2)
         self.projection = np.zeros(n)
         if self.rim:
-            r, w = radial_nodes(self)
-            chi = self.rim_shape(r)
-            phi = b.shape(r)
+            overlap, chi_chi, chi_xm = self._rim_integrals()
             weight = b.angular_weight
-            overlap = phi @ (w * r * chi)  # <chi, phi_n>
             sigma = b.areal_density
             mc = sigma * weight * overlap
-            mcc = sigma * weight * np.sum(w * r * chi * chi)
-            x = r / self.radius
-            kcc = -4.0 * (self.m + 1) * self.tension / self.radius**2 * weight * \
-                np.sum(w * r * chi * x**self.m)
+            mcc = sigma * weight * chi_chi
+            kcc = -4.0 * (self.m + 1) * self.tension / self.radius**2 * weight * chi_xm
             M = np.block([[M, mc[:, None]], [mc[None, :], np.array([[mcc]])]])
             K = np.block([[K, (mc * b.omega**2)[:, None]],
                           [(mc * b.omega**2)[None, :], np.array([[kcc]])]])
             self.projection = overlap / b.norm  # chi ~ sum_n projection_n phi_n
         self.M, self.K = M, K
+
+    def _rim_integrals(self):
+        r"""<chi, phi_n>, <chi, chi> and <chi, (r/a)^m> (integrals of r dr over [0, a], m^2).
+
+        Closed forms (no quadrature) for the ideal head and for a stiff one with
+        :math:`k_s a \ge` :data:`CLOSED_FORM_KSA` (every practical head: T a^2/D is
+        1e3-1e7). The rim function is a static response, :math:`(D\nabla^4 - T\nabla^2)\chi
+        = -4(m+1)(T/a^2)(r/a)^m`, and satisfies the modes' edge conditions, so Green's
+        identity with :math:`L\phi_n = \sigma\omega_n^2\phi_n` gives
+        :math:`\langle\chi,\phi_n\rangle = -4(m+1) T \langle (r/a)^m, \phi_n\rangle /
+        (a^2\sigma\omega_n^2)`, and the rest are integrals of :math:`x^p` and
+        :math:`x^p I_m` (:math:`\int_0^y u^{m+1} I_m = y^{m+1} I_{m+1}`, :math:`\int_0^y
+        u^{m+3} I_m = y^{m+3} I_{m+1} - 2 y^{m+2} I_{m+2}`) and Lommel's :math:`\hat I^2`.
+        Checked against a fine quadrature: within 1e-13 relative, where the former composite
+        Gauss rule erred by up to 1e-5 on the highest modes of an order. Nearer a plate
+        (small :math:`k_s a`) the closed forms cancel, and the quadrature of
+        :func:`radial_nodes` is used.
+        """
+        b, a, m = self.basis, self.radius, self.m
+        if self.ks is not None and self.ks * a < CLOSED_FORM_KSA:
+            r, w = radial_nodes(self)
+            chi = self.rim_shape(r)
+            return (b.shape(r) @ (w * r * chi), np.sum(w * r * chi * chi),
+                    np.sum(w * r * chi * (r / a) ** m))
+        a1 = self.a1
+        xm_phi = a * special.jv(m + 1, b.k1 * a) / b.k1  # <(r/a)^m, phi_n>
+        if b.k2 is not None:
+            y2 = b.k2 * a
+            xm_phi = xm_phi + a * b.c * special.ive(m + 1, y2) / special.ive(m, y2) / b.k2
+        overlap = -4.0 * (m + 1) * self.tension / (a * a * b.areal_density * b.omega**2) * xm_phi
+        # chi = x^(m+2) - a1 x^m - b1 I_hat(ks r), x = r/a
+        chi_chi = 1.0 / (2 * m + 6) - 2.0 * a1 / (2 * m + 4) + a1 * a1 / (2 * m + 2)
+        chi_xm = 1.0 / (2 * m + 4) - a1 / (2 * m + 2)
+        if self.ks is not None:
+            y, b1 = self.ks * a, self.b1
+            r1 = special.ive(m + 1, y) / special.ive(m, y)
+            r2 = special.ive(m + 2, y) / special.ive(m, y)
+            ratio = ratio_i(m, y)
+            i_i = 0.5 * (1.0 + m * m / (y * y) - ratio * ratio)  # <I_hat, I_hat> / a^2
+            chi_chi += (-2.0 * b1 * (r1 / y - 2.0 * r2 / (y * y)) + 2.0 * a1 * b1 * r1 / y
+                        + b1 * b1 * i_i)
+            chi_xm -= b1 * r1 / y
+        return overlap, a * a * chi_chi, a * a * chi_xm
 
     def to_basis(self, q: np.ndarray) -> np.ndarray:
         """Ritz coordinates -> coefficients over the in-vacuum basis (rim function projected)."""

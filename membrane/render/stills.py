@@ -22,6 +22,9 @@ NODAL_COLOUR = "black"
 # A grid panel is small: a coarser polar grid looks the same and draws 2-3x faster.
 PANEL_GRID = {"radial": 81, "angular": 121}
 RIM_COLOUR = "0.15"
+# zlib level 3 rather than Pillow's 6: measured on a mode grid (1500 x 1537 px), 0.14 s instead
+# of 0.34 s to encode for a file 13 % larger (level 1: 0.10 s, 21 % larger). Lossless either way.
+PNG_OPTIONS = {"compress_level": 3}
 
 
 def blank_figure(size):
@@ -263,8 +266,10 @@ def save(fig, path, *, dpi: int = 150) -> None:
     """Write a figure to ``path`` (format from the suffix), fonts embedded as text."""
     import matplotlib
 
+    fmt = str(path).rsplit(".", 1)[-1].lower()
+    extra = {"pil_kwargs": PNG_OPTIONS} if fmt == "png" else {}
     with matplotlib.rc_context({"pdf.fonttype": 42, "ps.fonttype": 42, "svg.fonttype": "none"}):
-        fig.savefig(path, dpi=dpi, format=str(path).rsplit(".", 1)[-1].lower())
+        fig.savefig(path, dpi=dpi, format=fmt, **extra)
 
 
 from .ratio_chart import cents_span, ratio_chart, ratio_points  # noqa: E402,F401  (their older home)
