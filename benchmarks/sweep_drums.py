@@ -137,7 +137,8 @@ def continuity(drum, index, *, points: int = 5):
     problems, steps = [], 0
     for factor in (2.0, 0.5):
         xs = np.linspace(math.log(t0), math.log(factor * t0), points)
-        track = follow(at, xs, m=m, n_max=2, roots=pick, losses=drum.losses, labels=False)
+        track = follow(at, xs, m=m, n_max=2, roots=pick, losses=drum.losses, labels=False,
+                       parameter="tensions")
         steps += track.steps
         f = track.frequencies()
         if not np.all(np.isfinite(f)):
@@ -187,8 +188,12 @@ def main() -> None:
     reference = time.perf_counter() - t0
     failures = 0
     start = time.perf_counter()
+    progress = os.environ.get("SWEEP_PROGRESS")  # set: each drum's time on stderr
     for i, (drum, table) in enumerate(drums(count, seed)):
+        t = time.perf_counter()
         problems = check(drum)
+        if progress:
+            print(f"drum {i}: {time.perf_counter() - t:.2f} s", file=sys.stderr, flush=True)
         if problems:
             failures += 1
             print(f"drum {i}: {table}\n   " + "\n   ".join(problems), flush=True)

@@ -60,7 +60,7 @@ def order_roots(drum, *, m: int, n_max: int, cross_sign=None, losses=None):
 
 
 def follow(make_drum, values, *, m: int, n_max: int, cross_sign=None, roots=None,
-           losses=None, max_steps: int = 400, labels: bool = True) -> Track:
+           losses=None, max_steps: int = 400, labels: bool = True, parameter=None) -> Track:
     """Track the roots of order m along ``values`` (any monotone parameter path).
 
     Parameters
@@ -81,6 +81,11 @@ def follow(make_drum, values, *, m: int, n_max: int, cross_sign=None, roots=None
         Local solves allowed per root.
     labels : bool
         Solve the whole order at each value too and carry its labels (else labels are None).
+    parameter : str or None
+        What the values are the logarithm of (physics/sensitivity.PARAMETERS: "tension" of
+        the struck head, "tensions" of every head, "areal_density", "volume"). With it each
+        root's first step is predicted along its tangent, d omega / d ln p by perturbation,
+        instead of from standing still.
 
     Returns
     -------
@@ -97,10 +102,17 @@ def follow(make_drum, values, *, m: int, n_max: int, cross_sign=None, roots=None
     om[0], hf[0] = od.omega[pick], od.head_fraction[pick]
     track = Track(values=values)
     x, w, v, f = values[0], om[0].copy(), od.vectors[pick], list(hf[0])
+    slope = None
+    if parameter is not None and R:
+        from .physics.continuation import root_slopes
+
+        slope = root_slopes(od.root_set, od.index, w, v, [parameter])[:, 0]
     for j, goal in enumerate(values[1:], start=1):
         trails = follow_roots(make_drum, m=m, n_max=n_max, x0=x, omega0=w, vectors0=v, x1=goal,
                               step=goal - x, losses=losses, cross_sign=cross_sign,
-                              max_solves=max_steps, extra0=f, sets=sets)
+                              max_solves=max_steps, extra0=f, sets=sets, slope0=slope)
+        if trails and len(trails[0].x) >= 2:  # the last step's secant for the next leg
+            slope = np.array([(t.omega[-1] - t.omega[-2]) / (t.x[-1] - t.x[-2]) for t in trails])
         track.steps += trails[0].solves if trails else 0
         if not trails or trails[0].x[-1] != goal:
             break
@@ -172,10 +184,12 @@ def follow_root(drum_at, *, m: int, n_max: int, x0: float, omega0: complex, vect
 
 def follow_roots(drum_at, *, m: int, n_max: int, x0: float, omega0, vectors0, x1: float,
                  step: float = 0.01, losses=None, cross_sign=None, stop=None,
-                 max_solves: int = 400, extra0=None, sets: dict | None = None) -> list:
+                 max_solves: int = 400, extra0=None, sets: dict | None = None,
+                 slope0=None) -> list:
     """Several roots of order m followed together (the same steps): one Trail per root.
 
-    As :func:`follow_root`, with ``omega0`` (R,) and ``vectors0`` (R, size).
+    As :func:`follow_root`, with ``omega0`` (R,) and ``vectors0`` (R, size); ``slope0`` (R,)
+    d omega / dx at the start, or None (tracking.follow_many).
     """
     from .physics import tracking
 
@@ -186,7 +200,7 @@ def follow_roots(drum_at, *, m: int, n_max: int, x0: float, omega0, vectors0, x1
         return []
     return tracking.follow_many(roots_near, mass, x0=x0,
                                 omega0=omega0, vectors0=vectors0, x1=x1, step=step,
-                                extra0=extra0, stop=stop, max_solves=max_solves)
+                                extra0=extra0, stop=stop, max_solves=max_solves, slope0=slope0)
 
 
 def labelled_root(od, n: int, head: int = 0):

@@ -30,6 +30,11 @@ bisection whenever the bracket is steep (a jump) or has not halved in two steps 
 stretch before a crossing); each evaluation is a model solve, so the count matters more than
 the arithmetic. Used by the single-target tune and meant for every
 tension fit (listen's included).
+
+The tune's trial solves after the first are carried from the nearest solved tension
+(physics/continuation.py: each root moved by its perturbation derivative and corrected by
+Newton's method, instead of a scan of the whole window), and the answer, or a refusal's
+bracket, is confirmed by a whole solve (tuning.py).
 """
 
 from __future__ import annotations

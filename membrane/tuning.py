@@ -21,7 +21,7 @@ Everything here takes and returns SI floats (N/m, Hz, kg/m^2, m^3, Pa).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 import numpy as np
 
@@ -37,7 +37,8 @@ from . import tension_search
 from . import tune_refusals as refusals
 from .tune_refusals import BRANCH_RANGE  # noqa: F401  (its old address)
 from .lug_changes import LUG_RULE, TURN_STEP, LugChange, equalise_lugs, turns_text  # noqa: F401  (their old address)
-from .solver import M_MAX_LIMIT, N_MAX_LIMIT, solve
+from .solver import solve
+from .tune_model import TuneModel as _Model
 
 # Targets count as met together when every residual is within this many cents.
 TOGETHER_CENTS = 1.0
@@ -45,93 +46,6 @@ TOGETHER_CENTS = 1.0
 TOLERANCE_CENTS = 1e-3
 
 FREE = ("areal_density", "volume")
-
-
-# ------------------------------------------------------------------ the model as a function
-class _Model:
-    """Mode frequencies of a drum variant, solved once per parameter set (cached)."""
-
-    def __init__(self, drum: Drum, modes, physics: str, n_max: int, losses: str = "all"):
-        for m, n in modes:
-            if not (0 <= m <= M_MAX_LIMIT and 1 <= n <= N_MAX_LIMIT):
-                raise InputError("mode", f"{m},{n}", f"not a mode the solver has: m must be 0..{M_MAX_LIMIT}"
-                                 f" and n 1..{N_MAX_LIMIT}")
-        self.drum, self.modes, self.physics, self.losses = drum, list(modes), physics, losses
-        self.m_max = max(m for m, _ in self.modes)
-        self.n_max = max(n_max, max(n for _, n in self.modes))
-        self.cache: dict = {}
-        self.roots: dict = {}
-        self.sets: dict = {}  # operators of the targets' orders by parameter set (slopes)
-        self.solves = 0
-
-    def variant(self, tension: float, free: str | None = None, value: float | None = None) -> Drum:
-        drum = self.drum.with_tension(tension)
-        if free == "areal_density":
-            drum = replace(drum, head=replace(drum.head, areal_density=value))
-        elif free == "volume":
-            drum = replace(drum, body=replace(drum.body, volume=value))
-        return drum
-
-    @property
-    def by_order(self) -> bool:
-        """Whether each solve needs only the targets' orders: full physics on one head (the
-        labels of a shell's pairs need the whole table's pairing)."""
-        return self.physics == "full" and self.drum.resonant_head is None
-
-    def order_roots(self, tension: float, free: str | None = None, value: float | None = None) -> dict:
-        """Order m -> its coupled.OrderRoots at a tension (full physics on one head only)."""
-        key = (float(tension), free, value)
-        if key not in self.roots:
-            from .physics.assembly import solve_drum
-
-            drum = self.variant(tension, free, value)
-            losses = drum.losses if self.losses == "all" else None
-            self.roots[key] = {m: solve_drum(drum, m_max=m, n_max=self.n_max, losses=losses, only=m)[0]
-                               for m in sorted({m for m, _ in self.modes})}
-        return self.roots[key]
-
-    def slopes(self, tension: float, free: str | None = None, value: float | None = None) -> np.ndarray:
-        """d ln f / d ln T (and d ln f / d ln value when ``free``) of each target mode at a
-        point already solved: (modes, 1 or 2), from the solved roots by first-order
-        perturbation (physics/sensitivity.py), no solve of its own (full physics, one head)."""
-        from .branches import labelled_root
-        from .physics.assembly import order_root_set
-        from .physics.sensitivity import log_slopes
-
-        key = (float(tension), free, value)
-        ods = self.order_roots(tension, free, value)
-        drum = self.variant(tension, free, value)
-        losses = drum.losses if self.losses == "all" else None
-        names = ["tension"] + ([free] if free else [])
-        sets = self.sets.setdefault(key, {})
-        out = []
-        for m, n in self.modes:
-            if m not in sets:
-                sets[m] = order_root_set(drum, m=m, n_max=self.n_max, losses=losses)
-            r = labelled_root(ods[m], n)
-            out.append(log_slopes(sets[m], 0, complex(ods[m].omega[r]), ods[m].vectors[r], names))
-        return np.array(out)
-
-    def frequencies(self, tension: float, free: str | None = None, value: float | None = None) -> np.ndarray:
-        key = (float(tension), free, value)
-        if key not in self.cache:
-            self.solves += 1
-            if self.by_order:  # only the targets' orders: the same roots and labels as the table's
-                from .branches import labelled_root
-
-                ods = self.order_roots(tension, free, value)
-                out = []
-                for m, n in self.modes:
-                    r = labelled_root(ods[m], n)
-                    if r is None:
-                        raise SolverError(f"mode ({m},{n}) was not among the solved roots")
-                    out.append(ods[m].omega[r].real / (2 * np.pi))
-                self.cache[key] = np.array(out)
-            else:
-                result = solve(self.variant(tension, free, value), self.physics,
-                               m_max=self.m_max, n_max=self.n_max, losses=self.losses)
-                self.cache[key] = np.array([result.find(m, n).frequency for m, n in self.modes])
-        return self.cache[key]
 
 
 # ------------------------------------------------------------------ results
@@ -270,6 +184,11 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     ln T (and the free parameter's log), tension_search.fit: Gauss-Newton with the
     perturbation Jacobian of the solved roots for full physics on one head (physics/
     sensitivity.py), else scipy's trust-region solver.
+
+    With full physics on one head, trial solves after the first are carried from the nearest
+    solved point (physics/continuation.py) instead of scanning the whole window; the answer
+    (or a refusal's bracket) is confirmed by a whole solve, and the search is run again with
+    whole solves throughout if the two disagree by more than the tolerance.
     """
     targets = [((int(m), int(n)), float(hz)) for (m, n), hz in targets]
     if not targets:
@@ -291,46 +210,62 @@ def tension_for(drum: Drum, *, targets, physics: str = "full", free: str | None 
     hi = math.log(tension_ceiling(drum.head))
     current_value = value = None
 
-    if len(targets) == 1 and free is None:
-        (m, n), hz = targets[0]
-        g = lambda x: float(np.log(model.frequencies(math.exp(x))[0] / hz))  # noqa: E731
-        slope = (lambda x: float(model.slopes(math.exp(x))[0, 0])) if model.by_order else None  # noqa: E731
-        out = tension_search.search(g, x0=math.log(t_now), g0=float(np.log(f_now[0] / hz)),
-                                    lo=lo, hi=hi, close=TOLERANCE_CENTS / CENTS_PER_LN,
-                                    slope=slope)
-        if isinstance(out, tension_search.Beyond):
-            refusals.no_root(drum, (m, n), hz, model, lo, hi)
-        if isinstance(out, tension_search.Jump):
-            refusals.crossing(drum, (m, n), hz, model, out, lo, hi)
-        tension = math.exp(out.x)
-    else:
-        x0 = [math.log(min(max(naive, math.exp(lo)), math.exp(hi)))]
-        bounds = ([lo], [hi])
-        if free is not None:
-            current_value = drum.head.areal_density if free == "areal_density" else drum.body.volume
-            x0.append(math.log(current_value))
-            # within a factor of 10 either way, and the drum-file range (10 kg/m^2, 10 m^3)
-            bounds = ([lo, math.log(current_value / 10)], [hi, math.log(min(current_value * 10, 10.0))])
+    close = TOLERANCE_CENTS / CENTS_PER_LN
+    for attempt in range(2):  # carried trial solves; once more solving each whole if the check fails
+        if len(targets) == 1 and free is None:
+            (m, n), hz = targets[0]
+            g = lambda x: float(np.log(model.frequencies(math.exp(x))[0] / hz))  # noqa: E731
+            slope = (lambda x: float(model.slopes(math.exp(x))[0, 0])) if model.by_order else None  # noqa: E731
+            out = tension_search.search(g, x0=math.log(t_now), g0=float(np.log(f_now[0] / hz)),
+                                        lo=lo, hi=hi, close=close, slope=slope)
+            if not isinstance(out, tension_search.Found):
+                # a refusal is said only from whole solves: its ends confirmed first
+                ends = [out.x_lo, out.x_hi] if isinstance(out, tension_search.Jump) else [out.x]
+                signs = [out.g_lo, out.g_hi] if isinstance(out, tension_search.Jump) else [out.g]
+                if model.carried and not all(
+                        (math.log(model.whole_frequencies(math.exp(x))[0] / hz) > 0) == (s > 0)
+                        for x, s in zip(ends, signs)):
+                    model.exact()
+                    continue
+                model.exact()
+                if isinstance(out, tension_search.Beyond):
+                    refusals.no_root(drum, (m, n), hz, model, lo, hi)
+                refusals.crossing(drum, (m, n), hz, model, out, lo, hi)
+            tension = math.exp(out.x)
+        else:
+            x0 = [math.log(min(max(naive, math.exp(lo)), math.exp(hi)))]
+            bounds = ([lo], [hi])
+            if free is not None:
+                current_value = drum.head.areal_density if free == "areal_density" else drum.body.volume
+                x0.append(math.log(current_value))
+                # within a factor of 10 either way, and the drum-file range (10 kg/m^2, 10 m^3)
+                bounds = ([lo, math.log(current_value / 10)], [hi, math.log(min(current_value * 10, 10.0))])
 
-        def residuals(p):
-            v = math.exp(p[1]) if free else None
-            return _cents(model.frequencies(math.exp(p[0]), free, v), wanted)
+            def residuals(p):
+                v = math.exp(p[1]) if free else None
+                return _cents(model.frequencies(math.exp(p[0]), free, v), wanted)
 
-        def jacobian(p):  # cents per unit of each log, at a point residuals() just solved
-            v = math.exp(p[1]) if free else None
-            return CENTS_PER_LN * model.slopes(math.exp(p[0]), free, v)
+            def jacobian(p):  # cents per unit of each log, at a point residuals() just solved
+                v = math.exp(p[1]) if free else None
+                return CENTS_PER_LN * model.slopes(math.exp(p[0]), free, v)
 
-        fit = tension_search.fit(residuals, x0=x0, lower=bounds[0], upper=bounds[1],
-                                 jacobian=jacobian if model.by_order else None)
-        tension = math.exp(fit.x[0])
-        value = math.exp(fit.x[1]) if free else None
+            fit = tension_search.fit(residuals, x0=x0, lower=bounds[0], upper=bounds[1],
+                                     jacobian=jacobian if model.by_order else None)
+            tension = math.exp(fit.x[0])
+            value = math.exp(fit.x[1]) if free else None
 
-    suggested = model.variant(tension, free, value)
-    if table:
-        final = solve(suggested, physics, m_max=max(m_max, model.m_max), n_max=model.n_max, losses=losses)
-        predicted = [final.find(m, n).frequency for m, n in modes]
-    else:  # the search's own solve at the suggestion (same orders and basis)
-        final, predicted = None, model.frequencies(tension, free, value)
+        suggested = model.variant(tension, free, value)
+        searched = model.frequencies(tension, free, value)
+        if table:
+            final = solve(suggested, physics, m_max=max(m_max, model.m_max), n_max=model.n_max, losses=losses)
+            predicted = np.array([final.find(m, n).frequency for m, n in modes])
+        else:  # the search's own solve at the suggestion (same orders and basis), whole
+            final, predicted = None, model.whole_frequencies(tension, free, value)
+        # the carried roots confirmed by a whole solve at the answer (a root that entered the
+        # window, or a label the carried set gave otherwise, would show here)
+        if not model.carried or np.max(np.abs(np.log(predicted / searched))) < close:
+            break
+        model.exact()
     found = [Target(m=m, n=n, target_frequency=hz, current_frequency=float(f0), predicted_frequency=float(f1))
              for ((m, n), hz), f0, f1 in zip(targets, f_now, predicted)]
     together = all(abs(t.residual_cents) <= TOGETHER_CENTS for t in found)

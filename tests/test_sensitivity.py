@@ -39,3 +39,26 @@ def test_perturbation_slopes_match_central_differences(m):
     # an ideal membrane has 1/2 and -1/2 (f ~ sqrt(T / sigma)); air loading takes from both
     assert 0 < got[0] < 0.5 and -0.5 < got[1] < 0
     assert np.isfinite(got).all()
+
+
+def test_both_heads_tension_slope_matches_central_differences():
+    # "tensions": both heads of a shell scaled together (the sweep's continuity path), on the
+    # builtin tom (unequal heads); the same perturbation formula against whole solves
+    from membrane.physics.continuation import root_slopes
+
+    drum = load_drum("tom")
+    assert drum.resonant_head is not None
+
+    def scaled(k):
+        return replace(drum.with_tension(drum.head.tension * k),
+                       resonant_head=replace(drum.resonant_head, tension=drum.resonant_head.tension * k))
+
+    def lowest(d):
+        od = solve_drum(d, m_max=1, n_max=2, only=1, losses=d.losses)[0]
+        return od, int(np.argmin(od.omega.real))
+
+    od, r = lowest(drum)
+    got = root_slopes(od.root_set, od.index, od.omega[[r]], od.vectors[[r]], ["tensions"])[0, 0]
+    fd = [lowest(scaled(math.exp(s * H))) for s in (1, -1)]
+    slope = (math.log(fd[0][0].omega[fd[0][1]].real) - math.log(fd[1][0].omega[fd[1][1]].real)) / (2 * H)
+    assert got.real / od.omega[r].real == pytest.approx(slope, abs=2e-4)

@@ -66,6 +66,15 @@ class OrderRoots:
         that head, ("air", q, p) for a root that is mostly the body's air (duct mode q
         radially, p half-waves along the depth), or None for a root left out (a head mode
         above n_max).
+    root_set : RootSet or None
+        The operators the roots are roots of (this order at ``index``), to carry them on
+        (continuation.py) or take their derivatives (sensitivity.py) without building them
+        again.
+    index : int
+        The order's index in ``root_set``.
+    window : float
+        Angular frequency up to which every root of the order was searched for, rad/s (the
+        top of the whole solve's scan; NaN if unknown).
     """
 
     order: Order
@@ -73,6 +82,9 @@ class OrderRoots:
     vectors: np.ndarray
     head_fraction: np.ndarray
     labels: list
+    root_set: object = None
+    index: int = 0
+    window: float = math.nan
 
 
 def mode_energy(order, vectors) -> np.ndarray:
@@ -104,13 +116,23 @@ def covered_by(order, omega, vectors, frac, top: float, n_max: int) -> bool:
     in-vacuum modes (their energy shares, weighted by head fraction, add up to 0.6 or more
     over the roots) with room above the highest (a factor 1.25)."""
     e = mode_energy(order, vectors)[:, :, :n_max] * frac[:, None, None]
-    if np.all(e.sum(axis=0) >= 0.6):
-        best = np.argmax(e, axis=0)  # the root holding most of each mode
-        if top >= 1.25 * np.max(omega[best].real):
-            return True
+    best = np.argmax(e, axis=0)  # the root holding most of each mode
+    if np.all(e.sum(axis=0) >= 0.6) and top >= 1.25 * np.max(omega[best].real):
+        return True
+    # a very light head over a deep body shares each mode among many of the body's air
+    # resonances, whose crowd thickens with frequency (a 0.054 kg/m^2 head on an 18-inch
+    # kettle: hundreds of roots of m = 2 below 10 kHz, the head's mode 3 still short of 0.6);
+    # past twice both the highest in-vacuum mode wanted and the root holding most of it,
+    # with a root for each head mode and each mode at least half-way held, the roots found
+    # are taken as the order's (the air adds mass: a head mode is raised that far only by a
+    # body's air spring, on a slack head, whose few roots fail this and pass the test below)
+    vacuum = max(h.omega[n_max - 1] for h in order.heads)
+    need = n_max * len(order.heads)
+    if (len(omega) >= need and np.all(e.sum(axis=0) >= 0.3)
+            and top >= 2.0 * max(vacuum, np.max(omega[best].real))):
+        return True
     # a body that reshapes the modes (a very stiff air spring) spreads each in-vacuum mode
     # over many roots: then enough head-like roots, with room above, is the test
-    need = n_max * len(order.heads)
     head_like = np.sort(omega[frac >= 0.5].real)
     return bool(np.sum(frac) >= need + 0.5 and len(head_like) >= need
                 and top >= 1.25 * head_like[need - 1])
@@ -171,6 +193,11 @@ def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) 
             gamma = order_duct_gammas(order, count=len(air) + 4)
             cands = [(q, p, sound_speed * np.hypot(g, p * np.pi / order.depth))
                      for q, g in enumerate(gamma) for p in range(len(air) + 4)]
+            # only those up to twice the highest air row (a crowd of air rows would
+            # otherwise make the cost matrix cubic in their number)
+            reach = 2.0 * max(omega[r].real for r in air)
+            near = [c for c in cands if c[2] <= reach]
+            cands = near if len(near) >= len(air) else cands
             # Squared log distance, not absolute: with both candidates below (or above) both
             # roots, the absolute costs of the two pairings are equal and round-off picks one;
             # the square is strictly convex, so the lower root takes the lower duct mode.
@@ -180,6 +207,34 @@ def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) 
             for i, j in zip(ra, ca):
                 labels[air[i]] = ("air", cands[j][0], cands[j][1])
     return labels
+
+
+def root_floor(order, *, density: float, sound_speed: float) -> float:
+    r"""An angular frequency below which order ``order`` has no root, rad/s (generous).
+
+    A head's lowest mode is lowered by the air it carries: the low-frequency added mass per
+    area of a rigid baffled piston is :math:`8\rho a / 3\pi \approx 0.85\rho a` per face
+    (its radiation mass 8 ρ a^3 / 3, from memory); a floor of each head's lowest in-vacuum
+    mode times :math:`\sqrt{\sigma / (\sigma + 4\rho a)}`, over 1.2, allows more than twice
+    that on both faces. The body's own air resonances: the lowest rigid-walled one of the
+    order (the first half-wave c π / L for m = 0, the first duct mode's cut-on c γ for
+    m ≥ 1) falls towards a quarter-wave resonance (half of it) where a compliant head closes
+    the duct; the floor is 0.3 of it. Generous on purpose, a rule of thumb checked against
+    whole scans from 1/8 of the lowest mode (tests/test_coupled_robust.py): the roots of
+    light and heavy heads of 6 and 32 inches, with no body, a long kettle or a deep shell,
+    lie at 1.3 to 2.6 times the floor.
+    """
+    out = np.inf
+    for h in order.heads:
+        sigma, a = h.head.areal_density, h.radius
+        out = min(out, h.omega[0] * np.sqrt(sigma / (sigma + 4.0 * density * a)) / 1.2)
+    if order.depth is not None:
+        if order.m == 0:
+            rigid = sound_speed * np.pi / order.depth
+        else:
+            rigid = sound_speed * float(order_duct_gammas(order, count=1)[0])
+        out = min(out, 0.3 * rigid)
+    return float(out)
 
 
 def order_duct_gammas(order, *, count: int) -> np.ndarray:
@@ -223,12 +278,75 @@ def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
     for i, order in enumerate(orders):
         lowest = min(h.omega[0] for h in order.heads)
         top = max(h.omega[n_max - 1] for h in order.heads)
+        reached = [math.nan]
+
+        def covered(w, v, f, hi, o=order):
+            reached[0] = hi  # the scan stops at the first hi that covers
+            return covered_by(o, w, v, f, hi, n_max)
+
         omega, vecs, frac = spectrum.scan_order(
-            rs, i, covered=lambda w, v, f, hi, o=order: covered_by(o, w, v, f, hi, n_max),
-            lowest=lowest, tol=settings.tol, rounds=settings.max_iter, ceiling=60.0 * top)
+            rs, i, covered=covered, lowest=lowest, tol=settings.tol, rounds=settings.max_iter,
+            ceiling=60.0 * top, floor=root_floor(order, density=air[0], sound_speed=air[1]))
         labels = label_roots(order, omega, vecs, frac, n_max=n_max, sound_speed=air[1])
-        out.append(OrderRoots(order, omega, vecs, frac, labels))
+        out.append(OrderRoots(order, omega, vecs, frac, labels, rs, i, reached[0]))
     return out
+
+
+def carry_order(prev, drum_at, steps: dict, *, n_max: int, settings: Settings = DEFAULT,
+                losses=None, halvings: int = 0):
+    """Order ``prev.order.m`` of a nearby drum from the solved roots ``prev`` by continuation.
+
+    Parameters
+    ----------
+    prev : OrderRoots
+        A solved order of one head (with its root set and window).
+    drum_at : callable
+        Changes of the parameters' logs (a dict like ``steps``) -> the drum there (``prev``'s
+        drum at all zeros).
+    steps : dict
+        Parameter name (sensitivity.PARAMETERS) -> change of its log from ``prev``'s drum.
+    n_max, settings, losses
+        As for :func:`solve_drum` (the same as ``prev`` was solved with).
+    halvings : int
+        Where the step cannot be carried in one, it is taken in two halves, each of which may
+        be halved again, this many times.
+
+    Returns
+    -------
+    OrderRoots or None
+        The carried roots, weighed and labelled as a whole solve would (continuation.py);
+        None where a root cannot be carried clearly, or the head modes leave the window the
+        whole solve searched (then solve the order whole). The window is ``prev``'s: roots
+        above it, and roots that enter it, are not looked for.
+    """
+    from . import continuation
+
+    if prev.root_set is None or len(prev.order.heads) != 1 or not math.isfinite(prev.window):
+        return None
+    rs_prev = prev.root_set
+    if prev.index != 0 or len(rs_prev.orders) != 1:
+        rs_prev = RootSet([prev.order], air=(rs_prev.rho, rs_prev.c), settings=rs_prev.settings,
+                          k_max=[rs_prev.k_max[prev.index]], losses=losses)
+    rs = order_root_set(drum_at(steps), m=prev.order.m, n_max=n_max, settings=settings, losses=losses)
+    got = continuation.carry(prev, rs_prev, rs, steps, tol=settings.tol)
+    if got is None:
+        if halvings <= 0:
+            return None
+        half = {p: 0.5 * d for p, d in steps.items()}
+        mid = carry_order(prev, drum_at, half, n_max=n_max, settings=settings, losses=losses,
+                          halvings=halvings - 1)
+        if mid is None:
+            return None
+        return carry_order(mid, lambda st: drum_at({p: half[p] + st[p] for p in st}), half,
+                           n_max=n_max, settings=settings, losses=losses, halvings=halvings - 1)
+    omega, vecs, frac = got
+    order = rs.orders[0]
+    labels = label_roots(order, omega, vecs, frac, n_max=n_max, sound_speed=rs.c)
+    heads = [omega[r].real for r, lab in enumerate(labels) if lab is not None and lab[0] == "head"]
+    # every head mode found again, with the whole solve's room above the highest (covered_by)
+    if len(heads) != n_max or 1.25 * max(heads) > prev.window:
+        return None
+    return OrderRoots(order, omega, vecs, frac, labels, rs, 0, prev.window)
 
 
 def decay_time(omega: complex) -> float:

@@ -17,6 +17,7 @@ The parameters, each as a logarithm (``ln T``, ``ln sigma``, ``ln V``):
 
 * tension of the struck head: :math:`\partial Z / \partial\ln T = T\,G`, G the Gram matrix
   :math:`\int|\nabla\phi|^2 dA` of the Ritz space (the bending part does not change with T);
+  ``tensions``: every head's tension scaled together (both heads of a shell);
 * areal density of the struck head: :math:`-\omega^2 M`;
 * kettle volume (the air column's length L = V / (pi a^2)): :math:`L\,\partial Z/\partial L`
   by central differences of the duct terms.
@@ -34,7 +35,7 @@ import numpy as np
 
 from .operator import block_diag
 
-PARAMETERS = ("tension", "areal_density", "volume")
+PARAMETERS = ("tension", "areal_density", "volume", "tensions")
 
 
 @lru_cache(maxsize=512)
@@ -61,6 +62,8 @@ def parameter_operator(rs, i: int, omega: complex, parameter: str) -> np.ndarray
     if parameter == "tension":
         gram = _unit_gram(head.shape)
         return _struck_block(rs, i, head.head.tension * gram).astype(complex)
+    if parameter == "tensions":  # every head's tension scaled together (a shell's both)
+        return block_diag([h.head.tension * _unit_gram(h.shape) for h in order.heads]).astype(complex)
     if parameter == "areal_density":
         return -(omega**2) * _struck_block(rs, i, head.M)
     if parameter == "volume":

@@ -380,7 +380,7 @@ def _dedupe(z, v):
 
 
 def scan_order(rs, i: int, *, covered, lowest: float, tol: float, rounds: int,
-               ceiling: float):
+               ceiling: float, floor: float = 0.0):
     """All roots of order i from about ``lowest`` up, until the heads' modes are covered.
 
     Parameters
@@ -398,6 +398,10 @@ def scan_order(rs, i: int, *, covered, lowest: float, tol: float, rounds: int,
         Refinement rounds allowed per cluster.
     ceiling : float
         Highest angular frequency the scan may reach before giving up, rad/s.
+    floor : float
+        An angular frequency no root lies below, rad/s (assembly.root_floor): the curves
+        whose share of the axis lies wholly below it are not scanned (they would be empty;
+        the curves above are the same as without it, so are the roots).
 
     Returns
     -------
@@ -412,6 +416,9 @@ def scan_order(rs, i: int, *, covered, lowest: float, tol: float, rounds: int,
     allz, allv = known, np.zeros((0, rs.size), complex)
     while True:
         lo, hi = centre / np.sqrt(STEP), centre * np.sqrt(STEP)
+        if hi * OVERLAP < floor:  # wholly below every root: nothing to find
+            centre *= STEP
+            continue
         z = _coarse(problem, lo, hi, centre, RADIUS * centre)
         if len(known):  # found (and refined) already from the circle before
             z = np.array([w for w in z if np.min(np.abs(known - w)) > 1e-3 * abs(w)], complex)

@@ -98,7 +98,8 @@ class Trail:
 
 
 def follow_one(roots_near, mass, *, x0: float, omega0: complex, vector0, x1: float,
-               step: float, extra0=None, stop=None, max_solves: int = 200) -> Trail:
+               step: float, extra0=None, stop=None, max_solves: int = 200,
+               slope0=None) -> Trail:
     """Follow one root from x0 towards x1 by predictor, local solve and shape match.
 
     Parameters
@@ -120,6 +121,8 @@ def follow_one(roots_near, mass, *, x0: float, omega0: complex, vector0, x1: flo
         (x, omega, extra) -> bool: stop early once it holds (the trail ends there).
     max_solves : int
         Local solves allowed.
+    slope0 : complex or None
+        d omega / dx at the start (see :func:`follow_many`).
 
     Returns
     -------
@@ -128,19 +131,24 @@ def follow_one(roots_near, mass, *, x0: float, omega0: complex, vector0, x1: flo
     """
     stops = None if stop is None else (lambda x, w, e: stop(x, w[0], e[0]))
     trails = follow_many(roots_near, mass, x0=x0, omega0=[omega0], vectors0=[vector0], x1=x1,
-                         step=step, extra0=[extra0], stop=stops, max_solves=max_solves)
+                         step=step, extra0=[extra0], stop=stops, max_solves=max_solves,
+                         slope0=None if slope0 is None else [slope0])
     return trails[0]
 
 
 def follow_many(roots_near, mass, *, x0: float, omega0, vectors0, x1: float, step: float,
-                extra0=None, stop=None, max_solves: int = 400) -> list:
+                extra0=None, stop=None, max_solves: int = 400, slope0=None) -> list:
     """Follow several roots together from x0 towards x1 (the same steps for all).
 
     As :func:`follow_one`, with ``omega0`` (R,) and ``vectors0`` (R, n); a step is taken
     only when every root matches clearly, and halved otherwise, so roots that meet are
     followed as finely as the closest pair needs while the operators are built once per
     step for all of them. ``stop`` gets (x, omegas, extras). ``max_solves`` counts steps
-    tried. Returns one Trail per root (all with the same x).
+    tried. ``slope0`` (R,) is d omega / dx at the start (e.g. by perturbation,
+    physics/continuation.root_slopes): the first predictor is then a tangent, not a
+    constant, so the first step need not be halved down to where a root has hardly moved
+    (a heavily damped root, whose shape changes fastest, was lost so). Returns one Trail per
+    root (all with the same x).
     """
     w = np.array(omega0, dtype=complex)
     v = np.array(vectors0)
@@ -149,7 +157,8 @@ def follow_many(roots_near, mass, *, x0: float, omega0, vectors0, x1: float, ste
     trails = [Trail([float(x0)], [complex(w[k])], [v[k]], [ex[k]]) for k in range(R)]
     x = float(x0)
     h = abs(step) * (1.0 if x1 >= x0 else -1.0)
-    slope = np.zeros(R, complex)  # d omega / dx of the last accepted step
+    # d omega / dx: given at the start, then of the last accepted step
+    slope = np.zeros(R, complex) if slope0 is None else np.array(slope0, dtype=complex)
     tried = 0
     while x != x1 and tried < max_solves:
         xn = x1 if abs(x1 - x) <= abs(h) else x + h

@@ -33,6 +33,7 @@ from ..notation import EDGES  # noqa: E402
 
 SHAPES_KEPT = 8  # radii arrays whose shapes each basis keeps (RadialBasis.shape)
 SHAPES_MIN_POINTS = 16  # ... if they hold at least this many radii
+SHAPES_MAX_POINTS = 4096  # ... and at most this many (a nodal-circle search samples 2001)
 
 
 def _ratio_i(m: int, y):
@@ -256,8 +257,8 @@ class RadialBasis:
         if self.k2 is not None:  # all modes at once: the same numbers as one at a time
             out += self.c[:, None] * _i_hat(self.m, self.k2[:, None], r[None, :], self.radius)
         out.setflags(write=False)
-        if r.size < SHAPES_MIN_POINTS:  # a root search's few points: cheap, and never asked again
-            return out
+        if not SHAPES_MIN_POINTS <= r.size <= SHAPES_MAX_POINTS:  # a root search's few points
+            return out  # (cheap, never asked again), or more radii than a picture samples
         if len(kept) >= SHAPES_KEPT:
             del kept[next(iter(kept))]  # the oldest
         kept[key] = out
