@@ -6,7 +6,9 @@ losses are small, so to first order a mode's decay rate (Im omega, 1/s) is
     r_k = r_k(0) + sum_p x_p s_kp,
 
 r_k(0) the rate with the fitted parameters at zero (radiation, the air's boundary layers, the
-film's bending loss), s_kp the rate one unit of parameter p adds (from one more solve each).
+film's bending loss), s_kp the rate one unit of parameter p adds. Each mechanism's rate is
+the first-order perturbation of the radiation-only root by that mechanism's loss term (one
+solve in all; :func:`perturbed_rates`); a shell drum takes one full solve per mechanism.
 The parameters (tension loss factor; optionally the rim's edge mobility) are found by
 non-negative least squares on the relative misfit of the measured rates, with uncertainties
 from the residual scatter. A parameter the data cannot separate from another (too few
@@ -63,13 +65,86 @@ def _rates(drum, losses, *, m_max, n_max, physics_losses="all"):
     return {(mo.m, mo.n, mo.branch, mo.head): mo.omega.imag for mo in modes}
 
 
-def mechanism_rates(drum, *, m_max: int, n_max: int, names=FITTABLE) -> dict:
+def _mechanism_losses(drum, names):
+    """The loss parameters of each mechanism alone (None: that mechanism is absent)."""
+    base = drum.losses
+    zero = replace(base, tension_loss_factor=0.0, edge_mobility=0.0, film_loss_factor=0.0,
+                   boundary_layers=False)
+    out = {"air boundary layers": replace(zero, boundary_layers=base.boundary_layers),
+           "film bending": replace(zero, film_loss_factor=base.film_loss_factor)}
+    for name, label in zip(FITTABLE, ("tension loss", "rim")):
+        value = UNIT[name] if name in names else getattr(base, name)
+        out[label] = None if value == 0 else replace(zero, **{name: value})
+    return out
+
+
+def perturbed_rates(drum, *, m_max: int, n_max: int, names=FITTABLE) -> dict | None:
+    """:func:`mechanism_rates` from one solve with radiation damping only, each other
+    mechanism's rate by first-order perturbation of its root (None for a shell drum, whose
+    branch labels come from the full solve's pairing).
+
+    Each loss term W_p(omega) of the operator is small and linear in its parameter
+    (dissipation.py), so a simple root omega of Z(omega) x = 0 moves by
+    ``-x^T W_p(omega) x / x^T Z'(omega) x`` (Z complex symmetric, x its own left vector:
+    Güttel & Tisseur, "The nonlinear eigenvalue problem", Acta Numerica 26, 2017, section
+    2; physics/sensitivity.py uses the same step for the tension). The neglected terms are
+    of second order in the losses, as in the linear model of the rates this module fits.
+    """
+    if drum.body.kind == "shell":
+        return None
+    from .physics import dissipation
+    from .physics.assembly import solve_drum
+    from .physics.operator import DEFAULT, RootSet
+
+    solved = solve_drum(drum, m_max=m_max, n_max=n_max, settings=DEFAULT, losses=None)
+    orders = [od.order for od in solved]
+    air = (drum.air.density, drum.air.sound_speed)
+    k_max = [1.6 * max(h.omega[n_max] for h in o.heads) / air[1] for o in orders]
+    rs = RootSet(orders, air=air, settings=DEFAULT, k_max=k_max, losses=None)
+    mechanisms = _mechanism_losses(drum, names)
+    terms = {label: None if lo is None else dissipation.RootLosses(rs, lo)
+             for label, lo in mechanisms.items()}
+    out = {"radiation": {}, **{label: {} for label in mechanisms}}
+    for i, od in enumerate(solved):
+        n_air = 0
+        for r, lab in enumerate(od.labels):
+            if lab is None:
+                continue
+            if lab[0] == "air":  # as solver.full_modes keys them: n = -1, -2, ... up the order
+                n_air += 1
+                key = (od.order.m, -n_air, None, None)
+            else:
+                key = (od.order.m, lab[2], None, None)
+            w = complex(od.omega[r])
+            x = np.asarray(od.vectors[r], dtype=complex)
+            rs.ensure_range(i, 1.05 * abs(w) / air[1])
+            h = 1e-6 * abs(w)
+            Z = rs.order_operator(i, np.array([w + h, w - h]))
+            dz = x @ ((Z[0] - Z[1]) / (2.0 * h)) @ x
+            out["radiation"][key] = w.imag
+            for label, term in terms.items():
+                if term is None:
+                    out[label][key] = 0.0
+                    continue
+                W = term.matrix(i, np.array([w]), outer=1.0, body=1.0)[0]
+                out[label][key] = float(np.imag(-(x @ W @ x) / dz))
+    return out
+
+
+def mechanism_rates(drum, *, m_max: int, n_max: int, names=FITTABLE,
+                    perturbation: bool = True) -> dict:
     """Decay rate (1/s) of each mode split by mechanism, with the named parameters at one unit.
 
     Returns ``{"radiation": {key: r}, "air boundary layers": ..., "film bending": ...,
     "tension loss": ..., "rim": ...}`` with the parameters' entries per unit (UNIT) and the
-    others at the drum's values; keys are (m, n, branch, head).
+    others at the drum's values; keys are (m, n, branch, head). With ``perturbation`` (not
+    for a shell drum) one solve and first-order perturbation (:func:`perturbed_rates`);
+    else one full solve per mechanism, each rate the difference from radiation alone.
     """
+    if perturbation:
+        rates = perturbed_rates(drum, m_max=m_max, n_max=n_max, names=names)
+        if rates is not None:
+            return rates
     base = drum.losses
     zero = replace(base, tension_loss_factor=0.0, edge_mobility=0.0, film_loss_factor=0.0,
                    boundary_layers=False)

@@ -162,3 +162,39 @@ def test_json_decay_is_never_null(tmp_path):
     rows = json.loads(out)["partials"]
     assert all(r["decay_s"] is not None and r["decay_s"] > 0 for r in rows)
     assert any(r["decay_s_is_lower_bound"] for r in rows)
+
+
+def synthetic(lines, *, rate=44100, seconds=1.5, pre=0.1, noise=1e-5, seed=3):
+    """A tap: silence, then sum of ``envelope(t) * cos(2 pi f t)`` over ``lines`` =
+    [(f Hz, envelope function of t s)], with a little white noise."""
+    from membrane.analysis.audio import Recording
+
+    t = np.arange(int(seconds * rate)) / rate
+    x = np.zeros(int((pre + seconds) * rate))
+    body = sum(env(t) * np.cos(2 * np.pi * f * t + 0.3 * k) for k, (f, env) in enumerate(lines))
+    x[int(pre * rate):] = body
+    x += noise * np.random.default_rng(seed).standard_normal(x.size)
+    return Recording(samples=x, rate=float(rate), channels=1, encoding="test")
+
+
+def test_a_line_fed_after_the_strike_is_flagged_rising_and_a_hum_steady():
+    # analytic truth: 220 Hz is fed by a faster mode, 0.5 (exp(-2 t) - exp(-12 t)), which
+    # peaks at t = ln(6) / 10 = 0.18 s about 7 dB above its value at 20 ms; 330 Hz holds a
+    # constant amplitude (a hum) for the whole record; 150 Hz decays plainly (T60 1.4 s)
+    rec = synthetic([
+        (150.0, lambda t: 0.5 * np.exp(-5.0 * t)),
+        (220.0, lambda t: 0.5 * (np.exp(-2.0 * t) - np.exp(-12.0 * t))),
+        (330.0, lambda t: 0.02 + 0 * t),
+    ])
+    # the premise, from the envelope itself
+    env = lambda t: 0.5 * (np.exp(-2.0 * t) - np.exp(-12.0 * t))  # noqa: E731
+    assert 20 * np.log10(env(np.log(6) / 10) / env(0.02)) > 6.0
+    analysis = analyse(rec)
+    by = {round(p.frequency): p for p in analysis.partials if p.level_db > -40}
+    plain, fed, hum = by[150], by[220], by[330]
+    assert "rising" not in plain.flags and "steady" not in plain.flags
+    assert plain.t60 == pytest.approx(3 * np.log(10) / 5.0, rel=0.05)
+    assert "rising" in fed.flags
+    assert "steady" in hum.flags
+    t60, lower = hum.t60_shown
+    assert lower and t60 == pytest.approx(analysis.end_time - analysis.reference_time, abs=0.01)
