@@ -226,3 +226,24 @@ def test_a_very_light_head_over_a_deep_kettle_solves():
     assert np.all(od.omega.imag > 0)  # every root decays (radiation at least)
     top = max(h.omega[2] for h in od.order.heads)
     assert od.window <= 3.0 * top  # the scan's window stops near twice the (2,3) in vacuum
+
+
+def test_an_air_row_is_named_by_the_duct_mode_its_field_is_made_of():
+    # the builtin 26-inch kettle: its m = 1 air row near 309 Hz holds most of its body-air
+    # energy in the duct's first cross mode (q = 0 of m = 1, cut on at c j'_11 / 2 pi a with
+    # j'_11 = 1.8412, Abramowitz & Stegun Table 9.5: 304.6 Hz at 343.9 m/s and a = 0.33 m),
+    # and is named after it; every air row's name is the duct mode of largest share
+    from membrane.physics.assembly import duct_content
+
+    drum = load_drum("kettledrum")
+    for od in solve_drum(drum, m_max=2, n_max=3, losses=drum.losses):
+        share = duct_content(od.root_set, od.index, od.omega, od.vectors)
+        assert np.allclose(share.sum(axis=1), 1.0)
+        for r, lab in enumerate(od.labels):
+            if lab is not None and lab[0] == "air":
+                assert lab[1] == int(np.argmax(share[r])), (od.order.m, lab, share[r][:4])
+        if od.order.m == 1:
+            r = next(r for r, lab in enumerate(od.labels) if lab == ("air", 0, 0))
+            assert share[r, 0] > 0.85
+            cut_on = drum.air.sound_speed * 1.8412 / (2 * np.pi * drum.head.radius)
+            assert abs(od.omega[r].real / (2 * np.pi) / cut_on - 1) < 0.05

@@ -138,15 +138,18 @@ def covered_by(order, omega, vectors, frac, top: float, n_max: int) -> bool:
                 and top >= 1.25 * head_like[need - 1])
 
 
-def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) -> list:
+def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float,
+                rs=None, index: int = 0) -> list:
     """Labels for one order's roots (see :class:`OrderRoots`).
 
     Head mode (h, n) goes to the root holding most of its energy, weighted by the root's head
     fraction, by an optimal assignment over all the order's roots: through an avoided
     crossing with an air resonance the label passes from one root to the other where the two
     are equally that mode (docs/mode-identity.md). The other roots below the order's highest
-    head mode that are mostly air (head fraction < 0.5) are air rows, named by the nearest
-    rigid-walled resonance of the body.
+    head mode that are mostly air (head fraction < 0.5) are air rows, named by the duct mode
+    q their interior field is most made of (:func:`duct_content`, when the operators ``rs``
+    of the order at ``index`` are given) and the rigid-walled resonance (q, p) of the body
+    nearest in frequency.
     """
     from ..assignment import linear_sum_assignment  # scipy's algorithm without scipy.optimize's import
 
@@ -203,6 +206,14 @@ def label_roots(order, omega, vectors, frac, *, n_max: int, sound_speed: float) 
             # the square is strictly convex, so the lower root takes the lower duct mode.
             cost = np.array([[np.log(omega[r].real / max(c[2], 1e-30)) ** 2 for c in cands]
                              for r in air])
+            if rs is not None:
+                # what the root's field is made of first: a duct mode holding a share s of
+                # its body-air energy costs 1 - s (a whole duct mode outweighs any distance
+                # between neighbouring resonances), the distance then picks p
+                share = duct_content(rs, index, omega[air], vectors[air])
+                qs = np.array([c[0] for c in cands])
+                held = np.where(qs[None, :] < share.shape[1], share[:, np.minimum(qs, share.shape[1] - 1)], 0.0)
+                cost = cost + (1.0 - held)
             ra, ca = linear_sum_assignment(cost)
             for i, j in zip(ra, ca):
                 labels[air[i]] = ("air", cands[j][0], cands[j][1])
@@ -235,6 +246,36 @@ def root_floor(order, *, density: float, sound_speed: float) -> float:
             rigid = sound_speed * float(order_duct_gammas(order, count=1)[0])
         out = min(out, 0.3 * rigid)
     return float(out)
+
+
+def duct_content(rs, i: int, omega, vectors) -> np.ndarray:
+    r"""Share of each root's body-air energy in each duct mode q of the body: (R, Q), rows
+    summing to 1 (zeros without a body).
+
+    The body's air enters Z as a sum over duct modes, :math:`S = \sum_q f_q(\omega)\,
+    V_q V_q^T` (one head; :math:`f^{ab}_q` between the heads of a shell), so its share of a
+    root's stored energy (the reactance theorem, energy_share.head_fractions) splits by
+    mode: :math:`x^T S_q'\,x = \sum_{ab} (V_{aq}^T x_a)(V_{bq}^T x_b)\,f^{ab\prime}_q`.
+    The duct mode a root is most made of is its interior field's largest part.
+    """
+    omega = np.asarray(omega, dtype=complex)
+    order, d = rs.orders[i], rs.data[i]
+    R = len(omega)
+    if order.depth is None or not R:
+        return np.zeros((R, 0))
+    h = 1e-6 * np.abs(omega)
+    pts = np.concatenate([omega + h, omega - h])
+    fcot, fcsc = rs._duct_terms(d, order.depth, pts)
+    V, off = d["V"], d["offsets"]
+    x = np.asarray(vectors, dtype=complex)
+    proj = [x[:, off[a]:off[a + 1]] @ V[a] for a in range(len(V))]  # (R, Q) per head
+    c = np.zeros(proj[0].shape, complex)
+    for a in range(len(V)):
+        for b in range(len(V)):
+            f = rs._duct_weights(order, fcot, fcsc, a, b)
+            c += proj[a] * proj[b] * (f[:R] - f[R:]) / (2.0 * h)[:, None]
+    mag = np.abs(c)
+    return mag / np.maximum(mag.sum(axis=1, keepdims=True), 1e-300)
 
 
 def order_duct_gammas(order, *, count: int) -> np.ndarray:
@@ -287,7 +328,8 @@ def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
         omega, vecs, frac = spectrum.scan_order(
             rs, i, covered=covered, lowest=lowest, tol=settings.tol, rounds=settings.max_iter,
             ceiling=60.0 * top, floor=root_floor(order, density=air[0], sound_speed=air[1]))
-        labels = label_roots(order, omega, vecs, frac, n_max=n_max, sound_speed=air[1])
+        labels = label_roots(order, omega, vecs, frac, n_max=n_max, sound_speed=air[1],
+                             rs=rs, index=i)
         out.append(OrderRoots(order, omega, vecs, frac, labels, rs, i, reached[0]))
     return out
 
@@ -341,7 +383,7 @@ def carry_order(prev, drum_at, steps: dict, *, n_max: int, settings: Settings = 
                            n_max=n_max, settings=settings, losses=losses, halvings=halvings - 1)
     omega, vecs, frac = got
     order = rs.orders[0]
-    labels = label_roots(order, omega, vecs, frac, n_max=n_max, sound_speed=rs.c)
+    labels = label_roots(order, omega, vecs, frac, n_max=n_max, sound_speed=rs.c, rs=rs)
     heads = [omega[r].real for r, lab in enumerate(labels) if lab is not None and lab[0] == "head"]
     # every head mode found again, with the whole solve's room above the highest (covered_by)
     if len(heads) != n_max or 1.25 * max(heads) > prev.window:
