@@ -28,6 +28,10 @@ DRUM_COLUMNS = [
 ]
 MODEL_NOTE = ("labels come from the drum model at the fitted tension (the tension is the one free "
               "parameter; the rest of the drum is taken from the drum file)")
+DIAMETER_NOTE = ("the partials fix the head's wave speed over its radius, sqrt(T / sigma) / a, not "
+                 "the tension alone: with another diameter or film in the drum file the fit "
+                 "holds as well near T (a / a_file)^2 scaled, so the tension is only as good as "
+                 "the drum file's size and film")
 
 
 def parse_channel(text: str) -> int | None:
@@ -321,6 +325,8 @@ def _identification_notes(ident, physics: str) -> list[str]:
         out.append(f"{len(ident.beyond)} partials from {ident.beyond[0].frequency:.0f} Hz up are above "
                    f"the range of the {physics} model's mode table and are not labelled")
     out += list(ident.modes.notes) + [MODEL_NOTE]
+    if ident.verdict == "identified":
+        out.append(DIAMETER_NOTE)
     return out
 
 
