@@ -1,7 +1,8 @@
 """Full physics over many generated drums: every solve must succeed and every T60 be shown.
 
 Run: python benchmarks/sweep_drums.py [COUNT] [SEED]     (default 300 drums, seed 1)
-     python benchmarks/sweep_drums.py --continuity [COUNT] [SEED]   (default 20 drums, seed 11)
+     python benchmarks/sweep_drums.py --continuity [COUNT] [SEED] [POINTS]
+         (default 20 drums, seed 11, 5 tension values each way)
 
 Drums are drawn at random from what people build (invented, not real instruments):
 6-32 inch heads of polyester, 0.1-0.4 mm in 1 or 2 plies, or a custom areal density with
@@ -20,7 +21,8 @@ kettledrum in the same run. tests/test_sweep.py runs a small sample of the same 
 
 With --continuity, each drum's roots of one order (m = index mod 3; the head modes n = 1, 2
 and every air row below them) are followed in tension from T to 2T and from T to T/2
-(membrane.branches.follow, five values each way): every root must be followed to the end,
+(membrane.branches.follow, five values each way unless POINTS says otherwise, each root's
+first step predicted from its perturbation slope): every root must be followed to the end,
 with |d ln f / d ln T| <= 0.6 between the values (the tension's share of the stiffness, over
 2, is at most 1/2), and the roots reached at 2T are looked up in a whole solve there.
 """
@@ -158,17 +160,17 @@ def continuity(drum, index, *, points: int = 5):
     return problems, len(pick), steps, [start.labels[r][0] for r in pick]
 
 
-def main_continuity(count: int, seed: int) -> None:
+def main_continuity(count: int, seed: int, points: int = 5) -> None:
     failures = 0
     start = time.perf_counter()
     for i, (drum, table) in enumerate(drums(count, seed)):
         t = time.perf_counter()
-        problems, roots, steps, _ = continuity(drum, i)
+        problems, roots, steps, _ = continuity(drum, i, points=points)
         failures += bool(problems)
         print(f"drum {i} (m = {i % 3}, {table.get('body', {}).get('kind', 'none')}): {roots} roots, "
               f"{steps} local steps, {time.perf_counter() - t:.1f} s" +
               ("" if not problems else "\n   " + "\n   ".join(problems)), flush=True)
-    print(f"{count} drums followed over T/2..2T, {failures} with a problem; "
+    print(f"{count} drums followed over T/2..2T at {points} values, {failures} with a problem; "
           f"{time.perf_counter() - start:.0f} s")
 
 
@@ -177,7 +179,8 @@ def main() -> None:
     if args and args[0] == "--continuity":
         count = int(args[1]) if len(args) > 1 else 20
         seed = int(args[2]) if len(args) > 2 else 11
-        main_continuity(count, seed)
+        points = int(args[3]) if len(args) > 3 else 5
+        main_continuity(count, seed, points)
         return
     count = int(sys.argv[1]) if len(sys.argv) > 1 else 300
     seed = int(sys.argv[2]) if len(sys.argv) > 2 else 1

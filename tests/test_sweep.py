@@ -38,3 +38,14 @@ def test_each_followed_root_is_continuous_in_tension(index, kinds):
     problems, roots, steps, found = sweep.continuity(drum, index)
     assert found == kinds, table
     assert problems == [], table
+
+
+def test_a_heavily_damped_air_row_is_followed_with_three_tension_values():
+    # drum 19 of the --continuity set (a kettle; m = 1: an air row of the bowl and the head
+    # modes n = 1, 2) followed at only 3 values each way: each root's first step is predicted
+    # from its perturbation slope (branches.follow parameter="tensions"); from a standing
+    # start the damped air row was not followed past the second value
+    drum, table = CONTINUITY[19]
+    problems, roots, steps, found = sweep.continuity(drum, 19, points=3)
+    assert found == ["air", "head", "head"], table
+    assert problems == [], table

@@ -280,9 +280,9 @@ def solve_drum(drum, *, m_max: int, n_max: int, settings: Settings = DEFAULT,
         top = max(h.omega[n_max - 1] for h in order.heads)
         reached = [math.nan]
 
-        def covered(w, v, f, hi, o=order):
-            reached[0] = hi  # the scan stops at the first hi that covers
-            return covered_by(o, w, v, f, hi, n_max)
+        def covered(w, v, f, hi, margin=1.0, o=order):
+            reached[0] = hi  # every root below is found; the scan stops at the first that covers
+            return covered_by(o, w, v, f, hi / margin, n_max)
 
         omega, vecs, frac = spectrum.scan_order(
             rs, i, covered=covered, lowest=lowest, tol=settings.tol, rounds=settings.max_iter,

@@ -60,6 +60,9 @@ ROUND_OFF = 1e-10
 GROWTH = 1e-6
 # Newton's polish reuses T' while the iterate stays this close (relative) to where it was taken
 CHORD = 1e-7
+# the scan stops refining a curve's roots early only where the coverage test passes at the
+# next root's frequency over this (see scan_order)
+EARLY = 1.3
 
 
 def _balance(T0):
@@ -247,14 +250,15 @@ def _clusters(z, tol):
     return groups
 
 
-def refine(problem: OrderProblem, z, *, tol: float, rounds: int):
+def refine(problem: OrderProblem, z, *, tol: float, rounds: int, context=None):
     """Polish coarse roots on small circles, group by group, until they settle.
 
     Each group of estimates gets a circle; what it finds is split again into groups of
     near-coincident roots, each with a smaller circle, until a circle returns the same
     roots as the one before (to SETTLE); then isolated roots are polished by Newton's
     method to ``tol``. Returns (omega, vectors); raises SolverError if a group does not
-    settle in ``rounds`` circles.
+    settle in ``rounds`` circles. ``context`` holds other coarse roots nearby (refined
+    separately) that an isolated root's Newton step must not reach towards.
     """
     z = np.asarray(z, dtype=complex)
     out_z, out_v = [], []
@@ -264,6 +268,8 @@ def refine(problem: OrderProblem, z, *, tol: float, rounds: int):
         c = complex(np.mean(cur))
         if len(cur) == 1:  # isolated: Newton's method straight from the coarse estimate
             rest = np.delete(z, group)
+            if context is not None:
+                rest = np.concatenate([rest, [w for w in context if abs(w - c) > 0]])
             gap = np.min(np.abs(rest - c)) / abs(c) if len(rest) else 1.0
             got = problem.polish(c, tol=tol, iterations=rounds, reach=min(0.3 * gap, 5e-3))
             if got is not None:
@@ -388,8 +394,9 @@ def scan_order(rs, i: int, *, covered, lowest: float, tol: float, rounds: int,
     rs : RootSet
     i : int
     covered : callable
-        (omega, vectors, head fractions, top) -> bool: whether the roots found below the
-        angular frequency ``top`` hold every head mode wanted (the scan stops then).
+        (omega, vectors, head fractions, top, margin=1) -> bool: whether the roots found
+        below the angular frequency ``top`` (every root there is found) hold every head mode
+        wanted, tested at top / margin (the scan stops then).
     lowest : float
         Lowest in-vacuum angular frequency of the order, rad/s (the scan starts at 1/8 of it).
     tol : float
@@ -414,18 +421,12 @@ def scan_order(rs, i: int, *, covered, lowest: float, tol: float, rounds: int,
     zs, vs = [np.zeros(0, complex)], [np.zeros((0, rs.size), complex)]
     known, fracs = np.zeros(0, complex), np.zeros(0)
     allz, allv = known, np.zeros((0, rs.size), complex)
-    while True:
-        lo, hi = centre / np.sqrt(STEP), centre * np.sqrt(STEP)
-        if hi * OVERLAP < floor:  # wholly below every root: nothing to find
-            centre *= STEP
-            continue
-        z = _coarse(problem, lo, hi, centre, RADIUS * centre)
-        if len(known):  # found (and refined) already from the circle before
-            z = np.array([w for w in z if np.min(np.abs(known - w)) > 1e-3 * abs(w)], complex)
-        if len(z):  # refined roots are kept wherever they settle (found twice: deduped)
-            z, v = refine(problem, z, tol=tol, rounds=rounds)
-            zs.append(z)
-            vs.append(v)
+
+    def absorb(z, v):
+        """Refined roots joined to those known (deduped), with their head fractions."""
+        nonlocal zs, vs, known, fracs, allz, allv
+        zs.append(z)
+        vs.append(v)
         allz = np.concatenate(zs)
         allv = np.concatenate(vs)
         if len(allz) > len(known):
@@ -444,14 +445,38 @@ def scan_order(rs, i: int, *, covered, lowest: float, tol: float, rounds: int,
                         frac[j], fresh[j] = fracs[k], False
             frac[fresh] = head_fractions(rs, i, allz[fresh], allv[fresh])
             known, fracs = allz, frac
-        frac = fracs
-        if len(allz) and covered(allz, mass_normalised(rs, i, allv), frac, hi):
+
+    while True:
+        lo, hi = centre / np.sqrt(STEP), centre * np.sqrt(STEP)
+        if hi * OVERLAP < floor:  # wholly below every root: nothing to find
+            centre *= STEP
+            continue
+        z = _coarse(problem, lo, hi, centre, RADIUS * centre)
+        if len(known):  # found (and refined) already from the circle before
+            z = np.array([w for w in z if np.min(np.abs(known - w)) > 1e-3 * abs(w)], complex)
+        done = False
+        # refined (kept wherever they settle; found twice: deduped) group by group upwards:
+        # once the roots below the next group hold every head mode wanted with room to
+        # spare (the coverage test passed at a top EARLY times lower, so that no root above
+        # can hold more of a mode than the one chosen: a shell's (0,3) in-phase moved from
+        # 368 to 236 Hz with the test's own 1.25), the rest of the curve's roots, above what
+        # any row needs, are not refined
+        groups = sorted(_clusters(z, 0.005), key=lambda g: float(np.min(z[g].real))) if len(z) else []
+        for k, group in enumerate(groups):
+            absorb(*refine(problem, z[group], tol=tol, rounds=rounds, context=z))
+            nxt = float(np.min(z[groups[k + 1]].real)) * (1.0 - 0.005) if k + 1 < len(groups) else None
+            if nxt is not None and nxt < hi and len(allz) \
+                    and covered(allz, mass_normalised(rs, i, allv), fracs, nxt, EARLY):
+                done = True
+                break
+        if done or (len(allz) and covered(allz, mass_normalised(rs, i, allv), fracs, hi)):
             break
         if hi > ceiling:
             raise SolverError(
                 f"coupled solve: order m = {rs.orders[i].m} does not have the head modes wanted "
                 f"below {hi / (2 * np.pi):.4g} Hz")
         centre *= STEP
+    frac = fracs
     return allz, mass_normalised(rs, i, allv), frac
 
 
