@@ -225,12 +225,15 @@ def listen(
 def _fit_losses(ident, rows, payload, notes) -> None:
     """Loss parameters from the matched partials' decay (loss_fit.py), into the output."""
     from ..errors import SolverError
-    from ..loss_fit import fit_losses
+    from ..loss_fit import fit_losses, rates_from_modes
 
     m_max = max(mt.m for mt in ident.matches)
     n_max = max(mt.n for mt in ident.matches)
     try:
-        lf = fit_losses(ident.drum, ident.matches, m_max=m_max, n_max=n_max)
+        # the fit's last table (every loss, at the fitted tension less its last sub-cent
+        # step) holds the roots: the mechanisms' rates from it need no further solve
+        rates = rates_from_modes(ident.modes, m_max=m_max, n_max=n_max)
+        lf = fit_losses(ident.drum, ident.matches, m_max=m_max, n_max=n_max, rates=rates)
     except SolverError as exc:
         notes.append(f"no loss fit: {' '.join(str(exc).split())}")
         return
