@@ -131,6 +131,53 @@ def perturbed_rates(drum, *, m_max: int, n_max: int, names=FITTABLE) -> dict | N
     return out
 
 
+def rates_from_modes(modes, *, m_max: int, n_max: int, names=FITTABLE) -> dict | None:
+    """:func:`mechanism_rates` from a table already solved with every loss of its drum
+    (``modes.losses == "all"``, full physics), with no further coupled solve: each root's
+    vector is the null vector of Z(omega) there (the smallest singular vector: Z is complex
+    symmetric, so it is its own left vector), each mechanism's rate its first-order shift
+    ``-x^T W_p x / x^T Z' x`` (as in :func:`perturbed_rates`), and radiation's the root's
+    rate less the first-order shift of all the drum's own losses. None for a shell drum or
+    a table of another kind, which then take :func:`mechanism_rates`.
+    """
+    drum = modes.drum
+    if drum.body.kind == "shell" or modes.physics != "full" or modes.losses != "all":
+        return None
+    from .physics import dissipation
+    from .physics.assembly import drum_orders
+    from .physics.operator import DEFAULT, RootSet
+
+    orders = drum_orders(drum, m_max=m_max, n_max=n_max, settings=DEFAULT)
+    air = (drum.air.density, drum.air.sound_speed)
+    k_max = [1.6 * max(h.omega[n_max] for h in o.heads) / air[1] for o in orders]
+    rs = RootSet(orders, air=air, settings=DEFAULT, k_max=k_max, losses=drum.losses)
+    own = dissipation.RootLosses(rs, drum.losses)
+    mechanisms = _mechanism_losses(drum, names)
+    terms = {label: None if lo is None else dissipation.RootLosses(rs, lo)
+             for label, lo in mechanisms.items()}
+    index = {o.m: i for i, o in enumerate(orders)}
+    out = {"radiation": {}, **{label: {} for label in mechanisms}}
+    for mo in modes.modes:
+        if mo.m > m_max or mo.n > n_max or mo.m not in index or mo.omega is None:
+            continue
+        i = index[mo.m]
+        w = complex(mo.omega)
+        rs.ensure_range(i, 1.05 * abs(w) / air[1])
+        h = 1e-6 * abs(w)
+        Z = rs.order_operator(i, np.array([w, w + h, w - h]))
+        x = np.conj(np.linalg.svd(Z[0])[2][-1])
+        dz = x @ ((Z[1] - Z[2]) / (2.0 * h)) @ x
+
+        def shift(term):
+            return float(np.imag(-(x @ term.matrix(i, np.array([w]), outer=1.0, body=1.0)[0] @ x) / dz))
+
+        key = (mo.m, mo.n, mo.branch, mo.head)
+        out["radiation"][key] = w.imag - shift(own)
+        for label, term in terms.items():
+            out[label][key] = 0.0 if term is None else shift(term)
+    return out
+
+
 def mechanism_rates(drum, *, m_max: int, n_max: int, names=FITTABLE,
                     perturbation: bool = True) -> dict:
     """Decay rate (1/s) of each mode split by mechanism, with the named parameters at one unit.

@@ -28,6 +28,10 @@ DRUM_COLUMNS = [
 ]
 MODEL_NOTE = ("labels come from the drum model at the fitted tension (the tension is the one free "
               "parameter; the rest of the drum is taken from the drum file)")
+DIAMETER_NOTE = ("the partials fix the head's wave speed over its radius, sqrt(T / sigma) / a, not "
+                 "the tension alone: with another diameter or film in the drum file the fit "
+                 "holds as well near T (a / a_file)^2 scaled, so the tension is only as good as "
+                 "the drum file's size and film")
 
 
 def parse_channel(text: str) -> int | None:
@@ -221,12 +225,15 @@ def listen(
 def _fit_losses(ident, rows, payload, notes) -> None:
     """Loss parameters from the matched partials' decay (loss_fit.py), into the output."""
     from ..errors import SolverError
-    from ..loss_fit import fit_losses
+    from ..loss_fit import fit_losses, rates_from_modes
 
     m_max = max(mt.m for mt in ident.matches)
     n_max = max(mt.n for mt in ident.matches)
     try:
-        lf = fit_losses(ident.drum, ident.matches, m_max=m_max, n_max=n_max)
+        # the fit's last table (every loss, at the fitted tension less its last sub-cent
+        # step) holds the roots: the mechanisms' rates from it need no further solve
+        rates = rates_from_modes(ident.modes, m_max=m_max, n_max=n_max)
+        lf = fit_losses(ident.drum, ident.matches, m_max=m_max, n_max=n_max, rates=rates)
     except SolverError as exc:
         notes.append(f"no loss fit: {' '.join(str(exc).split())}")
         return
@@ -321,6 +328,8 @@ def _identification_notes(ident, physics: str) -> list[str]:
         out.append(f"{len(ident.beyond)} partials from {ident.beyond[0].frequency:.0f} Hz up are above "
                    f"the range of the {physics} model's mode table and are not labelled")
     out += list(ident.modes.notes) + [MODEL_NOTE]
+    if ident.verdict == "identified":
+        out.append(DIAMETER_NOTE)
     return out
 
 
