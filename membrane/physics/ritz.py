@@ -189,6 +189,7 @@ class RitzSpace:
         M = np.diag(mass).astype(float)
         K = np.diag(mass * b.omega**2)
         self.projection = np.zeros(n)
+        self.rim_residual = None  # relative part of chi outside the modes' span (rim only)
         if self.rim:
             overlap, chi_chi, chi_xm = self._rim_integrals()
             weight = b.angular_weight
@@ -200,6 +201,9 @@ class RitzSpace:
             K = np.block([[K, (mc * b.omega**2)[:, None]],
                           [(mc * b.omega**2)[None, :], np.array([[kcc]])]])
             self.projection = overlap / b.norm  # chi ~ sum_n projection_n phi_n
+            # share of chi's mass-norm outside the modes' span (the modes are M-orthogonal)
+            inside = float(np.sum(mc * mc / mass)) / float(mcc)
+            self.rim_residual = float(np.sqrt(max(1.0 - inside, 0.0)))
         self.M, self.K = M, K
 
     def _rim_integrals(self):
