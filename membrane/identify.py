@@ -41,7 +41,9 @@ square of the diameters' ratio, and only the drum file can say which drum it is.
 The concepts live in three modules: :mod:`membrane.mode_matching` (weights, the pairing,
 the global start, split pairs), :mod:`membrane.tension_fit` (the tension for fixed pairs,
 on the model solved at each trial, and its uncertainty) and this one (the search as a
-whole, the result and its verdict).
+whole, the result and its verdict). This one is about 420 lines on purpose: the start, the
+refinement, the finishing solve and the verdict read one another's intermediate tables, and
+split further each part would pass those tables through another module's arguments.
 
 Approximations: the start scales one table by sqrt(T) (exact for the ideal membrane);
 every refinement solves the model at the trial tension, so stiffness and air loading

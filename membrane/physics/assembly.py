@@ -6,6 +6,11 @@ heads is two problems, in-phase and opposed, by symmetry). Every root of each pr
 frequency window comes from the contour solve of spectrum.py; each root gets a head fraction
 and a label (docs/mode-identity.md): the in-vacuum mode (m,n) it holds most of, or the body's
 air resonance it is. solver.py turns them into Mode rows.
+
+About 430 lines on purpose: the labels, the coverage test that ends an order's scan and the
+carried solve of an order at a new tension all rest on the same energy forms of an order
+(:func:`mode_energy`, :func:`mode_amplitudes`) and on one another (the carried solve labels
+and checks coverage as a whole solve does); apart, each would import the others.
 """
 
 from __future__ import annotations
