@@ -31,6 +31,25 @@ def test_slack_shell_with_four_modes_wanted_holds_no_cloud():
     assert sweep.check(drum, m_max=0, n_max=3) == [], table
 
 
+def test_shell_whose_heads_differ_in_keeping_the_rim_function_solves():
+    # drum 104 of the 300 (seed 1): a 24-inch shell of slack, unequal heads (158 and 97 N/m);
+    # one head's rim function gives way to one more in-vacuum mode and the other's does not, so
+    # the heads hold different numbers of modes (the energy shares raised ValueError)
+    drum, table = sweep.drums(105, seed=1)[104]
+    assert sweep.check(drum, m_max=1, n_max=3) == [], table
+
+
+@pytest.mark.xfail(strict=True, reason=(
+    "open: a shell of two nearly equal heads (relative difference 1.2e-8) is solved as one "
+    "problem of unequal heads, and its order 0 holds a cloud of about 220 spurious roots near "
+    "325 Hz; the full sweep (300 drums, seed 1) finds such clouds in m = 0 of at least 7 shells"))
+def test_nearly_equal_heads_hold_no_cloud():
+    # drum 5 of the 300 (seed 1): an 18-inch shell 51 cm deep, heads at 1456.15493 and
+    # 1456.15495 N/m; with n_max = 2 the window stops below the cloud
+    drum, table = sweep.drums(6, seed=1)[5]
+    assert sweep.check(drum, m_max=0, n_max=3) == [], table
+
+
 # three of benchmarks/sweep_drums.py --continuity's 20 drums (seed 11; the benchmark follows all
 # 20): no body, and two kettles, one of whose followed roots is an air row of the bowl
 CONTINUITY = sweep.drums(20, seed=11)

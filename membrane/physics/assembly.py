@@ -100,7 +100,10 @@ def mode_energy(order, vectors) -> np.ndarray:
         coef = np.array([head.unit.to_basis(v[lo: lo + head.size]) for v in vectors])
         mass = head.head.areal_density * head.radius**2 * head.unit.basis.modal_mass
         parts.append(np.abs(coef) ** 2 * mass[None, :])
-    e = np.stack(parts, axis=1)
+    # the heads of a shell may hold different numbers of modes (a head whose rim function gave
+    # way to one more mode, operator.RIM_RESIDUAL_FLOOR): the missing ones hold no energy
+    width = max(p.shape[1] for p in parts)
+    e = np.stack([np.pad(p, ((0, 0), (0, width - p.shape[1]))) for p in parts], axis=1)
     total = e.sum(axis=(1, 2))
     return e / np.where(total > 0, total, 1.0)[:, None, None]
 
