@@ -88,7 +88,7 @@ def preview(tmp_path_factory):
     "stops short in 12 of 17 bands, and from where it stops scipy's optimiser gains more than "
     "one noise variance in 8 of them (up to 375). A polish by variable projection on the "
     "strong poles, stopped when a Gauss-Newton step would gain under 1e-4 noise variances "
-    "(branch h12-polish), passes this check (at most 3e-4), but moves the real timpano's "
+    "(tried, not landed), passes this check (at most 3e-4), but moves the real timpano's "
     "partials below 200 Hz so that identify on timpani_high_1 with a 29-inch file prefers "
     "the 811 N/m start, (2,1) on 91.5 Hz, to the 2140 N/m one, (1,1) on 99.0 Hz: three tests "
     "of tests/test_real_recordings.py fail there, so it is not landed"))
