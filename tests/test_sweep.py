@@ -48,7 +48,7 @@ def test_shell_whose_heads_differ_in_keeping_the_rim_function_solves():
     "(spectrum.spurious drops it as one lossless root), which with two unequal heads comes "
     "out of the contour solve as a spread of roots. The full "
     "sweep (300 drums, seed 1) finds such clouds on at least 7 shells"))
-def test_nearly_equal_heads_hold_no_cloud():
+def test_shell_of_nearly_equal_heads_holds_no_cloud_at_its_half_wave_resonance():
     # drum 5 of the 300 (seed 1): an 18-inch shell 51 cm deep, heads at 1456.15493 and
     # 1456.15495 N/m; with n_max = 2 the window stops below the cloud
     drum, table = sweep.drums(6, seed=1)[5]
