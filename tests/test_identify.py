@@ -272,3 +272,19 @@ def test_a_tension_too_low_to_hold_a_pitch_is_implausible(kettle):
                       physics="ideal")
     assert result.tension == pytest.approx(low, rel=1e-6)
     assert result.verdict.startswith("implausible") and "practical minimum" in result.verdict
+
+
+def test_a_near_tie_among_start_tensions_goes_to_the_start_pairing_more_strong_partials():
+    # an independent statement of the rule, on hand-made judged starts (cost, tension, pairs):
+    # within START_TIE of the cheapest the heavier pairing wins, beyond it the cheaper does
+    from membrane.identify import START_TIE, _settle_tie
+
+    w = np.array([1.0, 1.0, 0.9, 0.8, 0.2])
+    cheap = (1000.0, 800.0, [(0, 3), (4, 5)])  # pairs weight 1.2
+    heavy_close = (1000.0 * (1 + 0.5 * START_TIE), 2100.0, [(0, 1), (1, 2), (2, 4), (3, 6)])
+    heavy_far = (1000.0 * (1 + 2.0 * START_TIE), 2100.0, heavy_close[2])
+    assert _settle_tie([cheap, heavy_close], w)[1] == 2100.0
+    assert _settle_tie([cheap, heavy_far], w)[1] == 800.0
+    # a split pair's partial counted once: two places of one partial add no weight
+    split = (1000.0 * (1 + 0.5 * START_TIE), 2100.0, [(0, 1), (0, 7), (4, 2)])
+    assert _settle_tie([cheap, split], w)[1] == 800.0
