@@ -104,7 +104,7 @@ def follow(make_drum, values, *, m: int, n_max: int, cross_sign=None, roots=None
     x, w, v, f = values[0], om[0].copy(), od.vectors[pick], list(hf[0])
     slope = None
     if parameter is not None and R:
-        from .physics.continuation import root_slopes
+        from .physics.sensitivity import root_slopes
 
         slope = root_slopes(od.root_set, od.index, w, v, [parameter])[:, 0]
     for j, goal in enumerate(values[1:], start=1):

@@ -78,6 +78,24 @@ def _mechanism_losses(drum, names):
     return out
 
 
+def _root_set(drum, orders, n_max: int, *, losses):
+    """The operators of ``orders`` with radiation tables reaching 1.6 x each order's n_max-th
+    in-vacuum mode (the solved roots' range), and the given losses."""
+    from .physics.operator import DEFAULT, RootSet
+
+    air = (drum.air.density, drum.air.sound_speed)
+    k_max = [1.6 * max(h.omega[n_max] for h in o.heads) / air[1] for o in orders]
+    return RootSet(orders, air=air, settings=DEFAULT, k_max=k_max, losses=losses)
+
+
+def _rate_shift(term, i: int, w: complex, x, dz) -> float:
+    """The decay rate (1/s) a loss term (dissipation.RootLosses) adds to root w of order i,
+    to first order (physics/sensitivity.shift)."""
+    from .physics.sensitivity import shift
+
+    return float(np.imag(shift(x, term.matrix(i, np.array([w]), outer=1.0, body=1.0)[0], dz)))
+
+
 def perturbed_rates(drum, *, m_max: int, n_max: int, names=FITTABLE) -> dict | None:
     """:func:`mechanism_rates` from one solve with radiation damping only, each other
     mechanism's rate by first-order perturbation of its root (None for a shell drum, whose
@@ -94,13 +112,12 @@ def perturbed_rates(drum, *, m_max: int, n_max: int, names=FITTABLE) -> dict | N
         return None
     from .physics import dissipation
     from .physics.assembly import solve_drum
-    from .physics.operator import DEFAULT, RootSet
+    from .physics.operator import DEFAULT
+    from .physics.sensitivity import frequency_derivatives
 
     solved = solve_drum(drum, m_max=m_max, n_max=n_max, settings=DEFAULT, losses=None)
-    orders = [od.order for od in solved]
+    rs = _root_set(drum, [od.order for od in solved], n_max, losses=None)
     air = (drum.air.density, drum.air.sound_speed)
-    k_max = [1.6 * max(h.omega[n_max] for h in o.heads) / air[1] for o in orders]
-    rs = RootSet(orders, air=air, settings=DEFAULT, k_max=k_max, losses=None)
     mechanisms = _mechanism_losses(drum, names)
     terms = {label: None if lo is None else dissipation.RootLosses(rs, lo)
              for label, lo in mechanisms.items()}
@@ -118,16 +135,10 @@ def perturbed_rates(drum, *, m_max: int, n_max: int, names=FITTABLE) -> dict | N
             w = complex(od.omega[r])
             x = np.asarray(od.vectors[r], dtype=complex)
             rs.ensure_range(i, 1.05 * abs(w) / air[1])
-            h = 1e-6 * abs(w)
-            Z = rs.order_operator(i, np.array([w + h, w - h]))
-            dz = x @ ((Z[0] - Z[1]) / (2.0 * h)) @ x
+            dz = frequency_derivatives(rs, i, [w], [x])[0]
             out["radiation"][key] = w.imag
             for label, term in terms.items():
-                if term is None:
-                    out[label][key] = 0.0
-                    continue
-                W = term.matrix(i, np.array([w]), outer=1.0, body=1.0)[0]
-                out[label][key] = float(np.imag(-(x @ W @ x) / dz))
+                out[label][key] = 0.0 if term is None else _rate_shift(term, i, w, x, dz)
     return out
 
 
@@ -145,12 +156,12 @@ def rates_from_modes(modes, *, m_max: int, n_max: int, names=FITTABLE) -> dict |
         return None
     from .physics import dissipation
     from .physics.assembly import drum_orders
-    from .physics.operator import DEFAULT, RootSet
+    from .physics.operator import DEFAULT
+    from .physics.sensitivity import frequency_derivatives
 
     orders = drum_orders(drum, m_max=m_max, n_max=n_max, settings=DEFAULT)
+    rs = _root_set(drum, orders, n_max, losses=drum.losses)
     air = (drum.air.density, drum.air.sound_speed)
-    k_max = [1.6 * max(h.omega[n_max] for h in o.heads) / air[1] for o in orders]
-    rs = RootSet(orders, air=air, settings=DEFAULT, k_max=k_max, losses=drum.losses)
     own = dissipation.RootLosses(rs, drum.losses)
     mechanisms = _mechanism_losses(drum, names)
     terms = {label: None if lo is None else dissipation.RootLosses(rs, lo)
@@ -163,18 +174,12 @@ def rates_from_modes(modes, *, m_max: int, n_max: int, names=FITTABLE) -> dict |
         i = index[mo.m]
         w = complex(mo.omega)
         rs.ensure_range(i, 1.05 * abs(w) / air[1])
-        h = 1e-6 * abs(w)
-        Z = rs.order_operator(i, np.array([w, w + h, w - h]))
-        x = np.conj(np.linalg.svd(Z[0])[2][-1])
-        dz = x @ ((Z[1] - Z[2]) / (2.0 * h)) @ x
-
-        def shift(term):
-            return float(np.imag(-(x @ term.matrix(i, np.array([w]), outer=1.0, body=1.0)[0] @ x) / dz))
-
+        x = np.conj(np.linalg.svd(rs.order_operator(i, np.array([w]))[0])[2][-1])
+        dz = frequency_derivatives(rs, i, [w], [x])[0]
         key = (mo.m, mo.n, mo.branch, mo.head)
-        out["radiation"][key] = w.imag - shift(own)
+        out["radiation"][key] = w.imag - _rate_shift(own, i, w, x, dz)
         for label, term in terms.items():
-            out[label][key] = 0.0 if term is None else shift(term)
+            out[label][key] = 0.0 if term is None else _rate_shift(term, i, w, x, dz)
     return out
 
 
@@ -192,16 +197,10 @@ def mechanism_rates(drum, *, m_max: int, n_max: int, names=FITTABLE,
         rates = perturbed_rates(drum, m_max=m_max, n_max=n_max, names=names)
         if rates is not None:
             return rates
-    base = drum.losses
-    zero = replace(base, tension_loss_factor=0.0, edge_mobility=0.0, film_loss_factor=0.0,
-                   boundary_layers=False)
     kw = dict(m_max=m_max, n_max=n_max)
-    solves = {"radiation": _rates(drum, base, physics_losses="radiation", **kw),
-              "air boundary layers": _rates(drum, replace(zero, boundary_layers=base.boundary_layers), **kw),
-              "film bending": _rates(drum, replace(zero, film_loss_factor=base.film_loss_factor), **kw)}
-    for name, label in zip(FITTABLE, ("tension loss", "rim")):
-        value = UNIT[name] if name in names else getattr(base, name)
-        solves[label] = None if value == 0 else _rates(drum, replace(zero, **{name: value}), **kw)
+    solves = {"radiation": _rates(drum, drum.losses, physics_losses="radiation", **kw)}
+    for label, lo in _mechanism_losses(drum, names).items():
+        solves[label] = None if lo is None else _rates(drum, lo, **kw)
     # A root near the edge of a solve's window (an air mode of the body, most often) can be
     # found with one set of losses and not another: only modes every solve holds are split
     # by mechanism; a partial matched to another mode gets no loss numbers.

@@ -26,7 +26,7 @@ from __future__ import annotations
 import numpy as np
 
 from .energy_share import head_fractions, mass_normalised
-from .sensitivity import parameter_operator
+from .sensitivity import root_slopes
 from .spectrum import GROWTH, OrderProblem, spurious
 
 # a carried root must keep at least this overlap with its old shape (tracking.MATCH is for
@@ -37,25 +37,6 @@ CLUSTER = 1e-4
 # the largest step (in each log) a carry is tried over; further, the first-order predictor
 # is too rough to trust and the order is solved whole
 MAX_STEP = 0.5
-
-
-def root_slopes(rs, i: int, omega, vectors, parameters) -> np.ndarray:
-    r"""Complex d omega / d ln p of each root for each parameter: (R, P), rad/s.
-
-    :math:`-x^T \partial_p Z\,x / x^T \partial_\omega Z\,x` (sensitivity.py) for all roots,
-    the frequency derivative by one batch of central differences.
-    """
-    omega = np.asarray(omega, dtype=complex)
-    R = len(omega)
-    h = 1e-6 * np.abs(omega)
-    Z = rs.order_operator(i, np.concatenate([omega + h, omega - h]))
-    x = np.asarray(vectors, dtype=complex)
-    dz = np.einsum("rn,rnk,rk->r", x, (Z[:R] - Z[R:]) / (2.0 * h)[:, None, None], x)
-    out = np.zeros((R, len(parameters)), complex)
-    for r in range(R):
-        for j, p in enumerate(parameters):
-            out[r, j] = -(x[r] @ parameter_operator(rs, i, omega[r], p) @ x[r]) / dz[r]
-    return out
 
 
 def carry(prev, rs_prev, rs_new, steps: dict, *, tol: float):

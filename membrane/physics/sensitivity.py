@@ -81,14 +81,37 @@ def parameter_operator(rs, i: int, omega: complex, parameter: str) -> np.ndarray
     raise ValueError(f"parameter must be one of {PARAMETERS}")
 
 
+def frequency_derivatives(rs, i: int, omega, vectors) -> np.ndarray:
+    r"""The denominator :math:`x^T\,\partial_\omega Z\,x` of each root's first-order shift: (R,).
+
+    One batch of central differences of order i's operator (step 1e-6 of each |omega|);
+    ``omega`` (R,) in rad/s, ``vectors`` (R, size) the roots' null vectors.
+    """
+    omega = np.atleast_1d(np.asarray(omega, dtype=complex))
+    x = np.atleast_2d(np.asarray(vectors, dtype=complex))
+    R = len(omega)
+    h = 1e-6 * np.abs(omega)
+    Z = rs.order_operator(i, np.concatenate([omega + h, omega - h]))
+    return np.einsum("rn,rnk,rk->r", x, (Z[:R] - Z[R:]) / (2.0 * h)[:, None, None], x)
+
+
+def shift(x, term, dz) -> complex:
+    r"""First-order change of a root, :math:`-x^T W x / x^T Z' x`, for an operator change W
+    (rad/s per unit of whatever W is the change of); ``dz`` from :func:`frequency_derivatives`."""
+    return complex(-(x @ term @ x) / dz)
+
+
+def root_slopes(rs, i: int, omega, vectors, parameters) -> np.ndarray:
+    """Complex d omega / d ln p of each root for each parameter named: (R, P), rad/s."""
+    omega = np.atleast_1d(np.asarray(omega, dtype=complex))
+    x = np.atleast_2d(np.asarray(vectors, dtype=complex))
+    dz = frequency_derivatives(rs, i, omega, x)
+    return np.array([[shift(x[r], parameter_operator(rs, i, omega[r], p), dz[r])
+                      for p in parameters] for r in range(len(omega))], dtype=complex).reshape(
+        len(omega), len(parameters))
+
+
 def log_slopes(rs, i: int, omega: complex, vector, parameters) -> np.ndarray:
     """d ln f / d ln p of one root (f = Re omega / 2 pi) for each parameter named, (P,)."""
-    x = np.asarray(vector, dtype=complex)
-    h = 1e-6 * abs(omega)
-    Z = rs.order_operator(i, np.array([omega + h, omega - h]))
-    dz = x @ ((Z[0] - Z[1]) / (2.0 * h)) @ x
-    out = []
-    for p in parameters:
-        dw = -(x @ parameter_operator(rs, i, omega, p) @ x) / dz
-        out.append(float(np.real(dw) / np.real(omega)))
-    return np.array(out)
+    dw = root_slopes(rs, i, [omega], [vector], parameters)[0]
+    return np.real(dw) / np.real(omega)

@@ -145,7 +145,7 @@ def follow_many(roots_near, mass, *, x0: float, omega0, vectors0, x1: float, ste
     followed as finely as the closest pair needs while the operators are built once per
     step for all of them. ``stop`` gets (x, omegas, extras). ``max_solves`` counts steps
     tried. ``slope0`` (R,) is d omega / dx at the start (e.g. by perturbation,
-    physics/continuation.root_slopes): the first predictor is then a tangent, not a
+    physics/sensitivity.root_slopes): the first predictor is then a tangent, not a
     constant, so the first step need not be halved down to where a root has hardly moved
     (a heavily damped root, whose shape changes fastest, was lost so). Returns one Trail per
     root (all with the same x).
