@@ -247,3 +247,52 @@ def test_an_air_row_is_named_by_the_duct_mode_its_field_is_made_of():
             assert share[r, 0] > 0.85
             cut_on = drum.air.sound_speed * 1.8412 / (2 * np.pi * drum.head.radius)
             assert abs(od.omega[r].real / (2 * np.pi) / cut_on - 1) < 0.05
+
+
+def _zeros_inside(det_sign, centre, radius, points=2048):
+    """Zeros minus poles of a determinant inside a circle: its winding number (the argument
+    principle), from the phase of slogdet's sign at closely spaced points."""
+    z = centre + radius * np.exp(2j * np.pi * np.arange(points + 1) / points)
+    s = det_sign(z)
+    return int(round(float(np.sum(np.angle(s[1:] / s[:-1]))) / (2 * np.pi)))
+
+
+# m = 0, q = 0 (the plane wave): the duct term's poles. A kettle's cot(kL)/k has one at every
+# rigid-walled resonance p c / 2L; a shell's pair of heads is the same pole, of rank one (the
+# standing wave seen from both heads); identical heads split it into in-phase
+# cot(kL/2)/k (p even) and opposed -tan(kL/2)/k (p odd) (standing-wave algebra, no source)
+@pytest.mark.parametrize("body, resonant, sign, p, poles", [
+    ("kettle", None, None, 1, 1), ("kettle", None, None, 2, 1),
+    ("shell", 2400.0, None, 1, 1), ("shell", 2400.0, None, 2, 1),
+    ("shell", 3000.0, +1, 1, 0), ("shell", 3000.0, +1, 2, 1),
+    ("shell", 3000.0, -1, 1, 1), ("shell", 3000.0, -1, 2, 0)])
+def test_the_augmented_operator_has_the_drums_roots_at_a_rigid_walled_resonance(
+        body, resonant, sign, p, poles):
+    # Z(omega) has a pole at p c / 2L; the contour solve's augmented operator T (each
+    # propagating duct mode an unknown of its own, physics/spectrum.py) is entire there, and
+    # must have exactly the roots Z has: the zeros of det T in a small circle round the
+    # resonance (the argument principle) are those of det Z, its winding number plus its poles
+    # inside. Radiation only, so nothing but the duct terms has a pole. With the heads' face
+    # pressures as unknowns, an unequal shell's T was singular at every such resonance (the
+    # field from either head is then one standing wave), as was an identical pair's wherever
+    # its branch has no pole: a root the drum does not have
+    from membrane.physics.assembly import order_root_set
+    from membrane.physics.spectrum import OrderProblem
+
+    if body == "kettle":
+        drum = Drum(head=TOM, body=Body("kettle", volume=0.02))
+    else:
+        drum = Drum(head=TOM, body=Body("shell", depth=0.3),
+                    resonant_head=replace(TOM, tension=resonant))
+    rs = order_root_set(drum, m=0, n_max=2, cross_sign=sign)
+    c, L = drum.air.sound_speed, rs.orders[0].depth
+    w0 = p * math.pi * c / L
+    radius = 1e-4 * w0
+    rs.ensure_range(0, 1.01 * w0 / c)
+    problem = OrderProblem(rs, 0)
+    q0 = problem.propagating(w0 / c)
+    assert q0 >= 1
+    of_z = _zeros_inside(lambda z: np.linalg.slogdet(rs.order_operator(0, z))[0], w0, radius)
+    of_t = _zeros_inside(lambda z: np.linalg.slogdet(problem.evaluate(z, q0, w0))[0], w0, radius)
+    assert of_z + poles == 0  # the drum has no root this close to the air's resonance
+    assert of_t == of_z + poles
