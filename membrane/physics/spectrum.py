@@ -18,10 +18,10 @@ with :math:`Z_{ev}` the operator with the evanescent duct modes only (analytic b
 cut-on), N the duct modes' norms and :math:`G/D` the duct term: cos βL / β sin βL for a
 kettle of depth L; for a shell's in-phase half a kettle of depth L/2 (cot(βL/2)/β, a rigid
 plane at mid-depth) and for its opposed half sin(βL/2)/β over -cos(βL/2) (-tan(βL/2)/β, a
-pressure-release plane there). Two unequal heads: the field of each duct mode is
-:math:`a_q\cos\beta u + b_q\sin(\beta u)/\beta` (u from the far head to the struck one),
-head 1 feels its value at u = L, head 2 at u = 0, and the rows say that its slope at each
-end is the head's motion there (:meth:`OrderProblem.evaluate`). D vanishes exactly where the
+pressure-release plane there). Two unequal heads: the same two halves, the in-phase one
+driven by the sum of the heads' motions and the opposed one by their difference; head 1
+feels the sum of the halves' pressures, head 2 their difference (:meth:`OrderProblem.evaluate`).
+D vanishes exactly where the
 duct term has its poles and nowhere else, so the Schur complement is Z and the augmented
 operator has the drum's roots and no others: the heads' face pressures as unknowns of a shell
 (G = cos βL on a head's own face, 1 across) made it singular at every rigid-walled resonance,
@@ -185,25 +185,27 @@ class OrderProblem:
             T[:, rows, :n] = (coef[:, None] * G)[:, :, None] * V[0][:, :q0].T[None, :, :]
             T[:, n + idx, n + idx] = -norms * D
             return T
-        # two unequal heads: the field of duct mode q is P(u) = a cos(beta u) + b sin(beta u)
-        # / beta, u from the far head (u = 0) to the struck one (u = L): two solutions whose
-        # Wronskian is 1, so (a, b) stay independent at every frequency (face pressures as
-        # unknowns are not: at a rigid-walled resonance the field from each head is the same
-        # standing wave, and the operator had a root there that the drum does not have).
-        # Head 1 feels P(L) = a cos + b sin/beta, head 2 P(0) = a; the rows say P'(L) = -X_1,
-        # P'(0) = X_2, X_h = rho pi_m omega^2 V_h^T q_h / N_q (the heads' outward motion).
-        cos, bsin, sinb = _standing(beta, order.depth, shift)
-        one = np.exp(-shift)[None, :] * np.ones((P, 1))
-        ra, rb = slice(n, n + q0), slice(n + q0, n + 2 * q0)
+        # two unequal heads: the field of duct mode q split into its halves about mid-depth,
+        # the in-phase one driven by X_1 + X_2 and the opposed one by X_1 - X_2 (X_h = V_h^T
+        # q_h), each as in a symmetric shell above; head 1 feels p_+ + p_-, head 2 p_+ - p_-.
+        # The two unknowns stay independent at every frequency (the heads' face pressures do
+        # not: at a rigid-walled resonance the field from either head is the same standing
+        # wave, and the operator had a root there that the drum does not have); and both
+        # rows are like a kettle's of depth L/2, scaled alike, so neither head's coupling is
+        # lost to round-off where the field decays along the body
+        cos, bsin, sinb = _standing(beta, 0.5 * order.depth, 0.5 * shift)
+        rp, rm = slice(n, n + q0), slice(n + q0, n + 2 * q0)
         h1, h2 = slice(off[0], off[1]), slice(off[1], off[2])
-        T[:, h1, ra] = V[0][None, :, :q0] * cos[:, None, :]
-        T[:, h1, rb] = V[0][None, :, :q0] * sinb[:, None, :]
-        T[:, h2, ra] = V[1][None, :, :q0] * one[:, None, :]
-        T[:, ra, h1] = coef[:, None, None] * V[0][:, :q0].T[None, :, :]
-        T[:, rb, h2] = -coef[:, None, None] * V[1][:, :q0].T[None, :, :]
+        T[:, h1, rp] = V[0][None, :, :q0]
+        T[:, h1, rm] = V[0][None, :, :q0]
+        T[:, h2, rp] = V[1][None, :, :q0]
+        T[:, h2, rm] = -V[1][None, :, :q0]
+        for h, rows_h, sign in ((0, h1, 1.0), (1, h2, -1.0)):
+            vt = 0.5 * V[h][:, :q0].T[None, :, :]
+            T[:, rp, rows_h] = (coef[:, None] * cos)[:, :, None] * vt
+            T[:, rm, rows_h] = sign * (coef[:, None] * sinb)[:, :, None] * vt
         T[:, n + idx, n + idx] = -norms * bsin
-        T[:, n + idx, n + q0 + idx] = norms * cos
-        T[:, n + q0 + idx, n + q0 + idx] = norms * one
+        T[:, n + q0 + idx, n + q0 + idx] = norms * cos
         return T
 
     def prepared(self, centre: complex, radius: float):
