@@ -4,25 +4,26 @@ The operator :math:`Z(\omega) = K + S(\omega) - \omega^2 (M + A(\omega))` (opera
 poles where the body's air, with the heads held still, resonates: the duct terms
 :math:`\cot(\beta L)/\beta` and :math:`\csc(\beta L)/\beta`. For the contour method
 (contour.py) the operator must be analytic, so the duct modes that can propagate in the
-window are taken out of S and given unknowns of their own; their rows hold only entire
-functions of ω (cos and β sin of βx, and sin(βx)/β, all even in β). One head (a kettle, or
-one symmetric half of a shell of identical heads), with p_q the pressure the duct mode puts
-on the head:
+window are taken out of S and their fields given unknowns of their own; their rows hold only
+entire functions of ω (cos and β sin of βx, and sin(βx)/β, all even in β). One head (a
+kettle, or one symmetric half of a shell of identical heads), with A_q the amplitude of the
+duct mode's axial field:
 
 .. math::
 
-    \begin{bmatrix} Z_{ev}(\omega) & V \\ \rho\pi_m\omega^2 G(\omega) V^T & -N D(\omega)
-    \end{bmatrix} \begin{bmatrix} q \\ p \end{bmatrix} = 0,
+    \begin{bmatrix} Z_{ev}(\omega) & V G(\omega) \\ \rho\pi_m\omega^2 V^T & -N D(\omega)
+    \end{bmatrix} \begin{bmatrix} q \\ A \end{bmatrix} = 0,
 
 with :math:`Z_{ev}` the operator with the evanescent duct modes only (analytic below their
-cut-on), N the duct modes' norms and :math:`G/D` the duct term: cos βL / β sin βL for a
-kettle of depth L; for a shell's in-phase half a kettle of depth L/2 (cot(βL/2)/β, a rigid
-plane at mid-depth) and for its opposed half sin(βL/2)/β over -cos(βL/2) (-tan(βL/2)/β, a
-pressure-release plane there). Two unequal heads: the same two halves, the in-phase one
-driven by the sum of the heads' motions and the opposed one by their difference; head 1
-feels the sum of the halves' pressures, head 2 their difference (:meth:`OrderProblem.evaluate`).
-D vanishes exactly where the
-duct term has its poles and nowhere else, so the Schur complement is Z and the augmented
+cut-on), N the duct modes' norms, G the field's value at the head and D its slope there
+(the head's motion), :math:`G/D` the duct term: a kettle's field cos βu from the bottom, cos βL
+over β sin βL; for a shell's in-phase half, from mid-depth, a kettle of depth L/2
+(cot(βL/2)/β, a rigid plane at mid-depth), for its opposed half sin(βu)/β, sin(βL/2)/β over
+-cos(βL/2) (-tan(βL/2)/β, a pressure-release plane there). Two unequal heads: the same two
+halves, the in-phase one driven by the sum of the heads' motions and the opposed one by their
+difference; head 1 feels the sum of the halves' values, head 2 their difference
+(:meth:`OrderProblem.evaluate`). D vanishes exactly where the duct term has its poles and
+nowhere else, so the Schur complement is Z and the augmented
 operator has the drum's roots and no others: the heads' face pressures as unknowns of a shell
 (G = cos βL on a head's own face, 1 across) made it singular at every rigid-walled resonance,
 where the field from either head is one standing wave, and, for identical heads, wherever a
@@ -38,11 +39,13 @@ rigid-walled resonances (the field's pole, squared): in :math:`Z_{ev}` it would 
 augmented operator not analytic there, and a shell of unequal heads held clouds of roots that
 are no roots of Z (seed 1 drum 240 of benchmarks/sweep_drums.py: 9 to 19 within 2 % of c/2L,
 by the form of the other unknowns; at each of the 9, Z's smallest singular value no lower
-than 1e-6 away). On the fields' own amplitudes y
-that form has no pole (duct_walls.field_wall_blocks), and a second set of unknowns carries it:
+than 1e-6 away). On the fields' own amplitudes y that form has no pole
+(duct_walls.field_wall_blocks), and a second set of unknowns carries it:
 with B and D the fields' rows (y = -D^-1 B q), rows [F, G, D] and columns [B^T; 0; D] give
 the Schur complement Z + (the form on the fields), the same operator to round-off, with every
-block entire. :math:`Z_{ev}` keeps the form on the evanescent fields alone.
+block entire. :math:`Z_{ev}` keeps the form on the evanescent fields alone. The first-order
+form does give Z a root of its own near each such resonance, on the growing side; it is
+dropped with the other growing roots (:func:`_growing`).
 
 Roots are found in overlapping circles along the real axis (radius half the centre, centres
 1.5 apart), then each group of nearby roots is refined on small circles until it moves less
