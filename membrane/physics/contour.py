@@ -15,11 +15,6 @@ and 5). The trapezoidal rule on a circle converges exponentially, so a few dozen
 suffice. Near-coincident eigenvalues (a cluster) need no special care: they are found
 together, as a subspace, which is what single-root iterations (secant, Newton) lack.
 
-On an operator of 32 or more unknowns the moments are taken of T^{-1} V for a block V of 16
-random columns (Beyn's probe, section 3 there): up to 32 eigenvalues at about half the cost
-of the whole inverse; a curve that holds more than 24 is solved again with the whole
-inverse.
-
 Everything here is generic: ``evaluate(z)`` returns T at an array of points, (P, N, N).
 """
 
@@ -30,13 +25,8 @@ import numpy as np
 from ..errors import SolverError
 
 
-# contour nodes evaluated together (see eigen_in_circle)
+# contour nodes evaluated and inverted together (see eigen_in_circle)
 BATCH = 24
-# columns of the probe block, used on operators of at least twice this size; the whole
-# inverse is taken instead where the probe's moments hold more than this fraction of the
-# eigenvalues they can resolve
-PROBE = 16
-PROBE_FULL = 0.75
 
 
 class TooMany(SolverError):
@@ -138,64 +128,26 @@ def eigen_in_circle(evaluate, centre: complex, radius: float, *, points: int = 3
         z (r,) and vectors (r, N).
     """
     z, s, w = circle_points(centre, radius, points, aspect)
-    T = None
-    # evaluated a batch of nodes at a time: each node's T is the same either way, but a whole
-    # curve's T at once (48 nodes of a 40 x 40 operator: 1.2 MB, and as many again for each
-    # intermediate) no longer fits in cache, measured 80 against 46 us per node for a
-    # shell's operator
+    inv = None
+    # evaluated and inverted a batch of nodes at a time: each node's T and T^-1 are the same
+    # either way, but a whole curve's T at once (48 nodes of a 40 x 40 operator: 1.2 MB, and
+    # as many again for each intermediate) no longer fits in cache, measured 80 against 46 us
+    # per node for a shell's operator
     for a in range(0, points, BATCH):
-        part = evaluate(z[a:a + BATCH])
-        if T is None:
-            T = np.empty((points, *part.shape[1:]), complex)
-        T[a:a + BATCH] = part
-    # a node on (or within round-off of) an eigenvalue, or an operator that overflows there
-    # (a very long air column), leaves T^-1 unusable: the caller's remedy is the same as
-    # for a crowded curve, another curve
-    if not np.all(np.isfinite(T)):
-        raise TooMany("contour solve: the operator is not finite on the curve")
-    N = T.shape[1]
-    if N >= 2 * PROBE:
-        # Beyn's probe block: T^-1 V for L random columns V resolves up to blocks * L
-        # eigenvalues at a fraction of the whole inverse's cost (an LU solve for L columns,
-        # a Hankel matrix L / N as wide); a curve whose moments come near that many is
-        # solved again with the whole inverse, as without the probe
+        T = evaluate(z[a:a + BATCH])
+        # a node on (or within round-off of) an eigenvalue, or an operator that overflows
+        # there (a very long air column), leaves T^-1 unusable: the caller's remedy is the
+        # same as for a crowded curve, another curve
+        if not np.all(np.isfinite(T)):
+            raise TooMany("contour solve: the operator is not finite on the curve")
+        if inv is None:
+            inv = np.empty((points, *T.shape[1:]), complex)
         try:
-            got = _moments(np.linalg.solve, (T, np.broadcast_to(_probe(N), (points, N, PROBE))),
-                           s, w, blocks, rank_tol)
-        except TooMany as exc:
-            if "singular" in str(exc):
-                raise
-            got = None
-        if got is not None and len(got[0]) < PROBE_FULL * blocks * PROBE:
-            return _kept(got, centre, radius, margin, aspect)
-    return _kept(_moments(np.linalg.inv, (T,), s, w, blocks, rank_tol), centre, radius, margin, aspect)
-
-
-def _moments(solve, args, s, w, blocks, rank_tol):
-    """moments_eigen of solve(*args) (T^-1, or T^-1 V), a singular node raising TooMany."""
-    try:
-        inv = solve(*args)
-    except np.linalg.LinAlgError:
-        raise TooMany("contour solve: the operator is singular at a node of the curve") from None
+            inv[a:a + BATCH] = np.linalg.inv(T)
+        except np.linalg.LinAlgError:
+            raise TooMany("contour solve: the operator is singular at a node of the curve") from None
     if not np.all(np.isfinite(inv)):
         raise TooMany("contour solve: the operator is singular at a node of the curve")
-    return moments_eigen(inv, s, weights=w, blocks=blocks, rank_tol=rank_tol)
-
-
-def _probe(n: int) -> np.ndarray:
-    """The probe block for an n x n operator: n x PROBE, independent standard normal
-    entries (each column's expected norm^2 is n, so the moments' singular values and the
-    median norm they are compared with keep the whole inverse's proportion), from a fixed
-    seed so that a solve is repeatable."""
-    if n not in _PROBES:
-        _PROBES[n] = np.random.default_rng(20121).standard_normal((n, PROBE))
-    return _PROBES[n]
-
-
-_PROBES: dict = {}
-
-
-def _kept(got, centre, radius, margin, aspect):
-    lam, vecs = got
+    lam, vecs = moments_eigen(inv, s, weights=w, blocks=blocks, rank_tol=rank_tol)
     keep = np.isfinite(lam) & (np.abs(lam.real + 1j * lam.imag / aspect) < margin)
     return centre + radius * lam[keep], vecs[keep]
