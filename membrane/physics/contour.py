@@ -25,10 +25,6 @@ import numpy as np
 from ..errors import SolverError
 
 
-# contour nodes evaluated and inverted together (see eigen_in_circle)
-BATCH = 24
-
-
 class TooMany(SolverError):
     """The moments are of full rank: too many eigenvalues (or too much noise) inside."""
 
@@ -128,24 +124,16 @@ def eigen_in_circle(evaluate, centre: complex, radius: float, *, points: int = 3
         z (r,) and vectors (r, N).
     """
     z, s, w = circle_points(centre, radius, points, aspect)
-    inv = None
-    # evaluated and inverted a batch of nodes at a time: each node's T and T^-1 are the same
-    # either way, but a whole curve's T at once (48 nodes of a 40 x 40 operator: 1.2 MB, and
-    # as many again for each intermediate) no longer fits in cache, measured 80 against 46 us
-    # per node for a shell's operator
-    for a in range(0, points, BATCH):
-        T = evaluate(z[a:a + BATCH])
-        # a node on (or within round-off of) an eigenvalue, or an operator that overflows
-        # there (a very long air column), leaves T^-1 unusable: the caller's remedy is the
-        # same as for a crowded curve, another curve
-        if not np.all(np.isfinite(T)):
-            raise TooMany("contour solve: the operator is not finite on the curve")
-        if inv is None:
-            inv = np.empty((points, *T.shape[1:]), complex)
-        try:
-            inv[a:a + BATCH] = np.linalg.inv(T)
-        except np.linalg.LinAlgError:
-            raise TooMany("contour solve: the operator is singular at a node of the curve") from None
+    T = evaluate(z)
+    # a node on (or within round-off of) an eigenvalue, or an operator that overflows there
+    # (a very long air column), leaves T^-1 unusable: the caller's remedy is the same as
+    # for a crowded curve, another curve
+    if not np.all(np.isfinite(T)):
+        raise TooMany("contour solve: the operator is not finite on the curve")
+    try:
+        inv = np.linalg.inv(T)
+    except np.linalg.LinAlgError:
+        raise TooMany("contour solve: the operator is singular at a node of the curve") from None
     if not np.all(np.isfinite(inv)):
         raise TooMany("contour solve: the operator is singular at a node of the curve")
     lam, vecs = moments_eigen(inv, s, weights=w, blocks=blocks, rank_tol=rank_tol)
