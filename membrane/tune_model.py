@@ -84,14 +84,17 @@ class TuneModel:
         from .physics.assembly import carry_order
 
         tension, free, value = key
-        near = [k for k in self.roots if k[1] == free]
+        # a set solved without the free parameter (the drum's present tension, solved before
+        # a fit begins) is the drum at that parameter's present value
+        base = None if free is None else self._present(free)
+        near = [k for k in self.roots if k[1] == free or (k[1] is None and base is not None)]
         if not near:
             return None
 
         def steps(k):
             out = {"tension": math.log(tension / k[0])}
             if free is not None:
-                out[free] = math.log(value / k[2])
+                out[free] = math.log(value / (k[2] if k[1] == free else base))
             return out
 
         start = min(near, key=lambda k: max(abs(d) for d in steps(k).values()))
@@ -103,7 +106,7 @@ class TuneModel:
                 return self.variant(*start)
             if st == steps(start):
                 return drum
-            v = start[2] * math.exp(st[free]) if free is not None else None
+            v = (start[2] if start[1] == free else base) * math.exp(st[free]) if free is not None else None
             return self.variant(start[0] * math.exp(st["tension"]), free, v)
 
         out = {}
@@ -113,6 +116,10 @@ class TuneModel:
                 return None
             out[m] = got
         return out
+
+    def _present(self, free: str) -> float:
+        """The drum's present value of a free parameter (kg/m^2 or m^3)."""
+        return self.drum.head.areal_density if free == "areal_density" else self.drum.body.volume
 
     def whole_frequencies(self, tension: float, free: str | None = None, value: float | None = None) -> np.ndarray:
         """As :meth:`frequencies`, from a whole solve (a carried set is solved again)."""

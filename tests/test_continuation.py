@@ -76,3 +76,18 @@ def test_tune_confirms_its_carried_answer_by_a_whole_solve():
     f = whole.frequencies(result.tension)[0]
     assert abs(1200 * math.log2(f / hz)) <= 1e-3
     assert result.targets[0].predicted_frequency == pytest.approx(f, rel=1e-12)
+
+
+def test_a_fit_with_a_free_volume_carries_from_the_present_drum():
+    # the drum at its present tension is solved before a fit begins (free parameter unset):
+    # the fit's first point, at the drum's present volume, is carried from it, and is the
+    # whole solve's there (the independent scan, as above)
+    drum = load_drum("kettledrum")
+    model = TuneModel(drum, [(1, 1), (2, 1)], "full", 3)
+    model.frequencies(drum.head.tension)
+    t1 = 0.9 * drum.head.tension
+    got = model.frequencies(t1, "volume", drum.body.volume)
+    assert model.carried == 1
+    whole = TuneModel(drum, [(1, 1), (2, 1)], "full", 3)
+    whole.carrying = False
+    assert np.allclose(got, whole.frequencies(t1, "volume", drum.body.volume), rtol=1e-9, atol=0)

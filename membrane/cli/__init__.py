@@ -145,5 +145,8 @@ def __getattr__(name: str):
 
 def main() -> None:
     """Console-script entry point."""
+    from ..heap import keep_freed_memory
+
+    keep_freed_memory()  # the solvers' megabyte arrays reused, not mapped afresh (heap.py)
     first = sys.argv[1] if len(sys.argv) > 1 else None
     build_app(first if first in COMMANDS else None)()

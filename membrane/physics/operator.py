@@ -284,11 +284,10 @@ class RootSet:
         d, order = self.data[i], self.orders[i]
         w = np.atleast_1d(np.asarray(omega, dtype=complex))
         n, P = self.size, len(w)
-        if head:
-            Z = np.broadcast_to(d["K"], (P, n, n)) - (w**2)[:, None, None] * d["M"][None]
+        if head:  # complex already (w is): no copy of it
+            Z = (np.broadcast_to(d["K"], (P, n, n)) - (w**2)[:, None, None] * d["M"][None]).astype(complex, copy=False)
         else:
             Z = np.zeros((P, n, n), complex)
-        Z = Z.astype(complex)
         k = w / self.c
         if outer:
             for h, (XY, Pd, tmax, scale, a) in enumerate(d["faces"]):
@@ -315,7 +314,7 @@ class RootSet:
                     Z[:, off[a_]:off[a_ + 1], off[b_]:off[b_ + 1]] += \
                         (V[a_][None, :, :] * f[:, None, :]) @ V[b_].T
         if head and self.losses is not None:
-            Z = Z + self.losses.matrix(i, w, outer=outer, body=body, skip=skip_ducts)
+            Z += self.losses.matrix(i, w, outer=outer, body=body, skip=skip_ducts)
         return Z
 
     def ensure_range(self, i, k_top: float) -> None:
