@@ -278,8 +278,9 @@ class RootSet:
         ``outer`` and ``body`` scale the outside and inside air (0 switches them off);
         ``head`` False leaves out K - omega^2 M (with outer 0: the body's S alone);
         ``skip_ducts`` leaves out the lowest duct modes, and the walls' loss on their
-        fields (the contour solve gives them unknowns of their own, spectrum.py); ``only_ducts`` keeps only the lowest ones;
-        ``duct_weights`` scales each duct mode's term.
+        fields (the contour solve gives them unknowns of their own, spectrum.py);
+        ``only_ducts`` keeps only the lowest ones; ``duct_weights`` scales each duct mode's
+        term.
         """
         d, order = self.data[i], self.orders[i]
         w = np.atleast_1d(np.asarray(omega, dtype=complex))
