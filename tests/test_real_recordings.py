@@ -21,6 +21,7 @@ import soundfile
 from typer.testing import CliRunner
 
 from membrane.cli import app
+from membrane.analysis import DEFAULT_MAX_PARTIALS
 from membrane.recording import analyse, read_recording
 
 DATA = Path(__file__).parent / "data"
@@ -81,6 +82,26 @@ def test_timpani_principal_fifth_and_octave_found_within_1_hz(analysed, name):
     for f in timpani_partials(reference_peaks(DATA / name)):
         nearest = min(partials, key=lambda p: min(abs(p.frequency - f), abs(p.settled - f)))
         assert min(abs(nearest.frequency - f), abs(nearest.settled - f)) < 1.0, (name, f, nearest)
+
+
+@pytest.mark.parametrize("name", TIMPANI)
+def test_timpani_principal_fifth_and_octave_are_among_the_partials_shown(analysed, name):
+    # what listen shows by default: the strongest DEFAULT_MAX_PARTIALS (the low timpano's
+    # (2,1) was fitted by one nearly steady pole 21 dB too weak and fell outside them)
+    shown = analysed[name].strongest(DEFAULT_MAX_PARTIALS)
+    for f in timpani_partials(reference_peaks(DATA / name)):
+        assert min(min(abs(p.frequency - f), abs(p.settled - f)) for p in shown) < 1.0, (name, f)
+
+
+def test_the_low_timpanos_fifth_carries_its_long_window_energy(analysed):
+    # the (2,1) near 97.6 Hz swells after the strike and beats; its band's energy in the
+    # independent long window, relative to the other bands' (the median), within 3 dB
+    name = "timpani_low_1.flac"
+    fifth = timpani_partials(reference_peaks(DATA / name))[1]
+    rows = long_window_level_check(name, analysed[name])
+    offset = float(np.median([d for _, d in rows]))
+    (d,) = [d for f, d in rows if abs(f - fifth) < 1.0]
+    assert abs(d - offset) <= 3.0, (fifth, round(d - offset, 1))
 
 
 @pytest.mark.parametrize("name", TIMPANI + TOMS)
@@ -256,14 +277,16 @@ def long_window_level_check(name, analysis, *, window_s=1.0, band_hz=3.0, min_t6
 
 @pytest.mark.parametrize("name", [
     pytest.param("timpani_low_1.flac", marks=pytest.mark.xfail(strict=True, reason=(
-        "the principal band (64.5 Hz) is predicted 7.5 dB above the median: the analysis "
-        "reports two partials 0.5 Hz apart (63.98 and 64.49 Hz) whose amplitudes partly "
-        "cancel; 97.6 Hz (the (2,1)) -9.2 dB, 105.9 Hz +6.5 dB, 161.2 Hz -3.9 dB, 376.0 Hz "
-        "-3.7 dB; 9 of 14 bands within 3 dB"))),
+        "7 of 10 bands within 3 dB of the median (predicted - measured, -3.5 dB): 105.9 Hz "
+        "+6.9, 161.2 Hz -3.6, 189.7 Hz +3.3 dB; the (2,1) at 97.6 Hz is within (-2.2 dB, "
+        "-8.8 before the narrow refit of order-starved bands)"))),
     "timpani_mid_1.flac",
     pytest.param("timpani_high_1.flac", marks=pytest.mark.xfail(strict=True, reason=(
-        "10 of 17 bands within 3 dB; 90.1 Hz -3.7, 178.4 Hz -6.5, 275.1 Hz -6.7, 278.5 Hz "
-        "-4.1, 284.0 Hz -4.4, 297.0 Hz -7.7, 565.3 Hz -4.0 dB"))),
+        "8 of 15 bands within 3 dB of the median: 90.1 Hz -3.7, 178.4 Hz -6.5, 275.1 Hz -6.7, "
+        "278.5 Hz -4.1, 284.0 Hz -4.4, 297.0 Hz -7.7, 565.3 Hz +3.4 dB. The bands sit in two "
+        "clusters (near 0 and near -5 dB before the median is taken out), so one band moves "
+        "the median: 565.3 Hz, refitted in a narrow band, went from -4.3 to +3.2 dB and the "
+        "median from -1.6 to -0.3 dB (11 of 15 within 3 dB before)"))),
 ])
 def test_levels_agree_with_a_long_window_of_the_recording(analysed, name):
     rows = long_window_level_check(name, analysed[name])

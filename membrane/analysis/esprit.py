@@ -31,7 +31,8 @@ from ..notation import LN1000  # noqa: E402  (60 dB of decay: r t = 3 ln 10)
 # Settings of the method, chosen on synthetic decays (tests/test_recording.py), no source:
 BAND_HALF_HZ = 20.0  # flat part of each band's mask, either side of the seed
 BAND_TAPER_HZ = 50.0  # width of the cosine taper beyond it
-EDGE_SKIP_S = 1.5 / BAND_TAPER_HZ  # the band filter's start-up transient, skipped for poles
+EDGE_SKIP_TAPERS = 1.5  # the band filter's start-up transient, skipped for poles: 1.5 / taper
+EDGE_SKIP_S = EDGE_SKIP_TAPERS / BAND_TAPER_HZ  # [s] for the usual band
 # A component dying as fast as the band filter's own start-up transient (time constant
 # about 1 / (pi * taper)) cannot be told from it: the method resolves partials with T60
 # above 3 ln 10 * pi * taper ~ 44 ms, and calls those under FAST_T60_S fast (their decay
@@ -86,6 +87,12 @@ class Band:
         Noise variance per decimated sample.
     poles : numpy.ndarray
         Absolute complex rates ``-r + i omega`` [1/s] of the band's components.
+    taper : float
+        Width of the mask's cosine taper [Hz] (its start-up transient lasts about
+        ``1 / (pi * taper)``).
+    capped : bool
+        Set by :func:`band_poles`: the singular values asked for :data:`MAX_ORDER`
+        components or more, so the model may be short of some.
     """
 
     z: np.ndarray
@@ -98,6 +105,8 @@ class Band:
     rate: float
     noise: float
     poles: np.ndarray = None
+    taper: float = BAND_TAPER_HZ
+    capped: bool = False
 
     @property
     def dt(self) -> float:
@@ -106,16 +115,18 @@ class Band:
 
 
 def cut_band(spectrum: np.ndarray, *, fc: float, rate: float, nfft: int, n: int,
-             noise_var: float) -> Band:
+             noise_var: float, flat: float = BAND_HALF_HZ,
+             taper: float = BAND_TAPER_HZ) -> Band:
     """The band around ``fc`` [Hz] of ``spectrum`` (``rfft`` of the decay, ``n`` samples,
-    zero-padded to ``nfft``); ``noise_var`` is the noise variance per sample near ``fc``."""
+    zero-padded to ``nfft``); ``noise_var`` is the noise variance per sample near ``fc``;
+    the mask is flat within ``flat`` [Hz] of ``fc`` and falls to zero over ``taper`` [Hz]."""
     df = rate / nfft
     kc = int(round(fc / df))
-    half = int(math.ceil((BAND_HALF_HZ + BAND_TAPER_HZ) / df))
+    half = int(math.ceil((flat + taper) / df))
     k = np.arange(kc - half, kc + half + 1)
     k = k[(k > 0) & (k < spectrum.size)]
     dist = np.abs(k - kc) * df
-    x = np.clip((dist - BAND_HALF_HZ) / BAND_TAPER_HZ, 0.0, 1.0)
+    x = np.clip((dist - flat) / taper, 0.0, 1.0)
     mask = 0.5 * (1.0 + np.cos(np.pi * x))
     # a little room beyond the mask; at least 256 points, so a short decay still gets
     # some 100 samples in the band (the extra points interpolate, they add no information)
@@ -124,7 +135,7 @@ def cut_band(spectrum: np.ndarray, *, fc: float, rate: float, nfft: int, n: int,
     buf[(k - kc) % m] = spectrum[k] * mask
     z = scipy.fft.ifft(buf) * (m / nfft)
     return Band(z=z, k=k, mask=mask, kc=kc, m=m, nfft=nfft, n=n, rate=rate,
-                noise=noise_var * float(np.sum(mask**2)) / nfft)
+                noise=noise_var * float(np.sum(mask**2)) / nfft, taper=taper)
 
 
 def band_poles(band: Band) -> np.ndarray:
@@ -135,8 +146,9 @@ def band_poles(band: Band) -> np.ndarray:
     """
     z, dt = band.z, band.dt
     duration = band.n / band.rate
-    j0 = int(math.ceil(EDGE_SKIP_S / dt))
-    j_end = int((duration - EDGE_SKIP_S) / dt)
+    skip = EDGE_SKIP_TAPERS / band.taper  # the band filter's start-up transient [s]
+    j0 = int(math.ceil(skip / dt))
+    j_end = int((duration - skip) / dt)
     # stop where the band has sunk into its noise: the rest only adds noise to the poles
     smooth = np.convolve(np.abs(z[j0:j_end]) ** 2, np.ones(8) / 8, mode="same")
     loud = np.nonzero(smooth > 4.0 * band.noise)[0]
@@ -148,6 +160,7 @@ def band_poles(band: Band) -> np.ndarray:
         return np.zeros(0, dtype=complex)
     seg = z[j0:j1]
     poles = esprit(seg, noise_var=band.noise)
+    band.capped = poles.size >= MAX_ORDER
     if poles.size > 1 and _crowded(poles, dt):
         # the polish on the loudest stretch, only where components crowd (closer than
         # CROWDED_HZ): there ESPRIT's estimates lean on each other; elsewhere they are as
