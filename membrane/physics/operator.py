@@ -291,11 +291,14 @@ class RootSet:
             Z = np.zeros((P, n, n), complex)
         k = w / self.c
         if outer:
+            basis = {}  # two heads of one radius and table range share their Chebyshev values
             for h, (XY, Pd, tmax, scale, a) in enumerate(d["faces"]):
                 lo, hi = d["offsets"][h], d["offsets"][h + 1]
                 ka = k * a
-                T = np.polynomial.chebyshev.chebvander(2.0 * ka * ka / tmax - 1.0, Pd - 1)
-                TT = (outer * self.rho * scale) * np.hstack([T, -1j * ka[:, None] * T])
+                if (a, Pd, tmax) not in basis:
+                    T = np.polynomial.chebyshev.chebvander(2.0 * ka * ka / tmax - 1.0, Pd - 1)
+                    basis[a, Pd, tmax] = np.hstack([T, -1j * ka[:, None] * T])
+                TT = (outer * self.rho * scale) * basis[a, Pd, tmax]
                 Z[:, lo:hi, lo:hi] -= (w**2)[:, None, None] * \
                     _cmul(TT, XY).reshape(P, hi - lo, hi - lo)
         if body and order.depth is not None:
