@@ -97,8 +97,8 @@ def moments_eigen(inverses, s, *, weights=None, blocks: int = 2, rank_tol: float
 
 def eigen_in_circle(evaluate, centre: complex, radius: float, *, points: int = 32,
                     blocks: int = 2, rank_tol: float = 1e-10, margin: float = 1.0,
-                    aspect: float = 1.0):
-    """Eigenvalues of T inside a circle (or ellipse), with their eigenvectors.
+                    aspect: float = 1.0, count: bool = False):
+    r"""Eigenvalues of T inside a circle (or ellipse), with their eigenvectors.
 
     Parameters
     ----------
@@ -117,6 +117,14 @@ def eigen_in_circle(evaluate, centre: complex, radius: float, *, points: int = 3
         accurate).
     aspect : float
         Height of the ellipse over its half-width (1: a circle).
+    count : bool
+        Also count the eigenvalues inside by the argument principle,
+        :math:`N = \frac{1}{2\pi i}\oint\mathrm{tr}(T^{-1}T')\,dz` (T' by a forward
+        difference: one more evaluation per node), and raise :class:`TooMany` if it holds
+        more than the moments resolved. Each eigenvalue adds exactly 1 to N however small
+        its residue, while the moments lose those whose share of the Hankel matrix falls
+        below its noise (a crowd of weakly coupled roots: a long kettle's ladder of air
+        resonances above a duct mode's cut-on).
 
     Returns
     -------
@@ -137,5 +145,13 @@ def eigen_in_circle(evaluate, centre: complex, radius: float, *, points: int = 3
     if not np.all(np.isfinite(inv)):
         raise TooMany("contour solve: the operator is singular at a node of the curve")
     lam, vecs = moments_eigen(inv, s, weights=w, blocks=blocks, rank_tol=rank_tol)
+    inside = np.isfinite(lam) & (np.abs(lam.real + 1j * lam.imag / aspect) < 1.0)
+    if count:
+        h = 1e-7 * abs(centre)
+        dT = (evaluate(z + h) - T) / h
+        held = float(np.real(radius * np.mean(w * np.einsum("pij,pji->p", inv, dT))))
+        if held > np.sum(inside) + 0.5:
+            raise TooMany(f"contour solve: {held:.1f} eigenvalues inside the curve by the "
+                          f"argument principle, {int(np.sum(inside))} from the moments")
     keep = np.isfinite(lam) & (np.abs(lam.real + 1j * lam.imag / aspect) < margin)
     return centre + radius * lam[keep], vecs[keep]

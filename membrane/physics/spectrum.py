@@ -283,11 +283,15 @@ class OrderProblem:
         return evaluate, c
 
     def circle(self, centre: complex, radius: float, *, points: int, margin: float = 1.0,
-               blocks: int = 2, rank_tol: float = SCAN_RANK, aspect: float = 1.0):
-        """Roots inside a circle (or ellipse): (omega, Ritz vectors of the heads)."""
+               blocks: int = 2, rank_tol: float = SCAN_RANK, aspect: float = 1.0,
+               count: bool = False):
+        """Roots inside a circle (or ellipse): (omega, Ritz vectors of the heads).
+
+        ``count``: check the moments against the argument principle (contour.py)."""
         evaluate, c = self.prepared(centre, radius)
         z, vecs = eigen_in_circle(evaluate, centre, radius, points=points, margin=margin,
-                                  blocks=blocks, rank_tol=rank_tol, aspect=aspect)
+                                  blocks=blocks, rank_tol=rank_tol, aspect=aspect,
+                                  count=count)
         grow = _growing(z)  # not a decaying mode: an artefact of the continued operator
         z, vecs = z[~grow], vecs[~grow]  # far from the real axis (or see _growing)
         vecs = vecs * c[None, :]  # undo the column scaling
@@ -581,16 +585,44 @@ def _coarse(problem, lo, hi, centre, radius, depth=0):
     # a root just outside the curve falls like |s_out|^-(points - moments), so extra moments
     # at a fixed node count only raise the noise the rank test sees
     try:
+        # with a body, the moments are checked against the argument principle: a crowd of
+        # air resonances weakly coupled to the head (a long kettle's ladder above a duct
+        # mode's cut-on) can hold more roots than the moments resolve, with no gap in the
+        # Hankel matrix's singular values to say so (the augmented operator is entire, so
+        # the count is exact up to the trapezoidal rule's error)
         z, _ = problem.circle(centre, radius, points=SCAN_POINTS * 2**depth, margin=KEEP,
-                              aspect=1.0 if ka <= FLAT_KA else FLAT_ASPECT, blocks=2)
+                              aspect=1.0 if ka <= FLAT_KA else FLAT_ASPECT, blocks=2,
+                              count=problem.order.depth is not None)
     except TooMany:
         if depth >= 5:
             raise
         edges = np.linspace(lo, hi, 4)
         parts = [_coarse(problem, a, b, 0.5 * (a + b), radius / 2.5, depth + 1)
                  for a, b in zip(edges[:-1], edges[1:])]
-        return np.concatenate(parts)
+        return _one_copy(parts)
     return z[(z.real >= lo / OVERLAP) & (z.real < hi * OVERLAP)]
+
+
+def _one_copy(parts, tol: float = 1e-6):
+    """Coarse roots of neighbouring curves with each root once: (R,) complex.
+
+    The curves' shares of the axis overlap, so a root near a share's edge comes from two
+    curves; the two estimates of it would make a group of one root,
+    refined on a circle instead of by Newton's method, which a near-singular operator (a
+    kettle in vanishing air) does not resolve. Of the estimates within ``tol`` (relative) of
+    each other, those of the one curve that has the most of them are kept (so a close pair
+    seen by both curves stays two roots).
+    """
+    z = np.concatenate(parts) if parts else np.zeros(0, complex)
+    if not len(z):
+        return z
+    source = np.concatenate([np.full(len(p), j) for j, p in enumerate(parts)])
+    keep = np.zeros(len(z), bool)
+    for group in _clusters(z, tol):
+        group = np.asarray(group)
+        counts = np.bincount(source[group])
+        keep[group[source[group] == int(np.argmax(counts))]] = True
+    return z[keep]
 
 
 def local_roots(rs, i: int, centre: complex, radius: float, *, tol: float):
