@@ -5,7 +5,6 @@ Keys and columns carry their unit (``frequency_hz``, ``decay_s``; docs/physics.m
 
 from __future__ import annotations
 
-import csv
 import io
 import json
 import math
@@ -55,6 +54,8 @@ def emit(fmt: Format, *, payload: dict, rows: list[dict], columns: list[tuple[st
              for row in rows]
     headers = [header for _, header, _ in columns]
     if fmt is Format.csv:
+        import csv  # only here: 9 ms of every command's start for the one format that needs it
+
         out = io.StringIO()
         writer = csv.writer(out, lineterminator="\n")
         writer.writerow([key for key, _, _ in columns])
