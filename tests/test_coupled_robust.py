@@ -247,3 +247,91 @@ def test_an_air_row_is_named_by_the_duct_mode_its_field_is_made_of():
             assert share[r, 0] > 0.85
             cut_on = drum.air.sound_speed * 1.8412 / (2 * np.pi * drum.head.radius)
             assert abs(od.omega[r].real / (2 * np.pi) / cut_on - 1) < 0.05
+
+
+def _zeros_inside(det_sign, centre, radius, points=2048):
+    """Zeros minus poles of a determinant inside a circle: its winding number (the argument
+    principle), from the phase of slogdet's sign at closely spaced points."""
+    z = centre + radius * np.exp(2j * np.pi * np.arange(points + 1) / points)
+    s = det_sign(z)
+    return int(round(float(np.sum(np.angle(s[1:] / s[:-1]))) / (2 * np.pi)))
+
+
+# m = 0, q = 0 (the plane wave): the duct term's poles. A kettle's cot(kL)/k has one at every
+# rigid-walled resonance p c / 2L; a shell's pair of heads is the same pole, of rank one (the
+# standing wave seen from both heads); identical heads split it into in-phase
+# cot(kL/2)/k (p even) and opposed -tan(kL/2)/k (p odd) (standing-wave algebra, no source).
+# The walls' boundary-layer loss, first order in the rigid-walled field, squares that field's
+# pole: a double pole of det Z in the same direction
+@pytest.mark.parametrize("walls", [False, True])
+@pytest.mark.parametrize("body, resonant, sign, p, poles", [
+    ("kettle", None, None, 1, 1), ("kettle", None, None, 2, 1),
+    ("shell", 2400.0, None, 1, 1), ("shell", 2400.0, None, 2, 1),
+    ("shell", 3000.0, +1, 1, 0), ("shell", 3000.0, +1, 2, 1),
+    ("shell", 3000.0, -1, 1, 1), ("shell", 3000.0, -1, 2, 0)])
+def test_the_augmented_operator_has_the_drums_roots_at_a_rigid_walled_resonance(
+        body, resonant, sign, p, poles, walls):
+    # Z(omega) has a pole at p c / 2L; the contour solve's augmented operator T (each
+    # propagating duct mode's field an unknown of its own, physics/spectrum.py) is entire
+    # there, and must have exactly the roots Z has: the zeros of det T in a small circle round
+    # the resonance (the argument principle) are those of det Z, its winding number plus its
+    # poles inside. Radiation (and with ``walls`` the film's and the walls' loss), so nothing
+    # but the duct terms has a pole. With the heads' face pressures as unknowns, an unequal
+    # shell's T was singular at every such resonance (the field from either head is then one
+    # standing wave), as was an identical pair's wherever its branch has no pole: a root the
+    # drum does not have; and with the walls' loss T kept its double pole
+    from membrane.physics.assembly import order_root_set
+    from membrane.physics.spectrum import OrderProblem
+
+    if body == "kettle":
+        drum = Drum(head=TOM, body=Body("kettle", volume=0.02))
+    else:
+        drum = Drum(head=TOM, body=Body("shell", depth=0.3),
+                    resonant_head=replace(TOM, tension=resonant))
+    losses = load_drum("kettledrum").losses if walls else None
+    assert losses is None or losses.boundary_layers
+    rs = order_root_set(drum, m=0, n_max=2, cross_sign=sign, losses=losses)
+    c, L = drum.air.sound_speed, rs.orders[0].depth
+    w0 = p * math.pi * c / L
+    radius = 1e-4 * w0
+    rs.ensure_range(0, 1.01 * w0 / c)
+    problem = OrderProblem(rs, 0)
+    q0 = problem.propagating(w0 / c)
+    assert q0 >= 1
+    of_z = _zeros_inside(lambda z: np.linalg.slogdet(rs.order_operator(0, z))[0], w0, radius)
+    of_t = _zeros_inside(lambda z: np.linalg.slogdet(problem.evaluate(z, q0, w0))[0], w0, radius)
+    assert of_t == of_z + poles * (2 if walls else 1)
+    if not walls:
+        assert of_t == 0  # the drum has no root this close to the air's resonance
+
+
+def test_the_augmented_operators_schur_complement_is_the_drums_operator():
+    # eliminating the duct unknowns (and, with the walls' loss, the second set that carries
+    # the loss's form on the fields) gives back Z(omega) = K + S - omega^2 (M + A) + W as
+    # operator.py builds it on the rigid-walled field, to round-off: for a kettle, both
+    # halves of identical shell heads and unequal heads, m = 0 and 2, below and above
+    # cut-on of the second duct mode, off the real axis (the Schur complement identity,
+    # linear algebra)
+    from membrane.physics.assembly import order_root_set
+    from membrane.physics.spectrum import OrderProblem
+
+    losses = load_drum("kettledrum").losses
+    shell = Body("shell", depth=0.3)
+    cases = [(Drum(head=TOM, body=Body("kettle", volume=0.02)), None),
+             (Drum(head=TOM, body=shell, resonant_head=TOM), +1),
+             (Drum(head=TOM, body=shell, resonant_head=TOM), -1),
+             (Drum(head=TOM, body=shell, resonant_head=replace(TOM, tension=2400.0)), None)]
+    for m in (0, 2):
+        for drum, sign in cases:
+            rs = order_root_set(drum, m=m, n_max=2, cross_sign=sign, losses=losses)
+            problem = OrderProblem(rs, 0)
+            for f in (300.0, 1900.0, 3500.0):
+                w = 2 * np.pi * f * (1 + 0.05j)
+                rs.ensure_range(0, 1.3 * abs(w) / drum.air.sound_speed)
+                q0 = problem.propagating(abs(w) / drum.air.sound_speed)
+                T = problem.evaluate(np.array([w]), q0, abs(w),
+                                     shift=problem.shifts(w, 0.3 * abs(w), q0))[0]
+                n = rs.size
+                schur = T[:n, :n] - T[:n, n:] @ np.linalg.solve(T[n:, n:], T[n:, :n])
+                Z = rs.order_operator(0, np.array([w]))[0]
+                assert np.abs(schur - Z).max() <= 1e-12 * np.abs(Z).max(), (m, sign, f)

@@ -27,7 +27,7 @@ import numpy as np
 
 from .energy_share import head_fractions, mass_normalised
 from .sensitivity import root_slopes
-from .spectrum import GROWTH, OrderProblem, spurious
+from .spectrum import GROWTH, OrderProblem
 
 # a carried root must keep at least this overlap with its old shape (tracking.MATCH is for
 # the small steps of a tracker; a tension step of 30 % turns a hybrid's shape further)
@@ -100,7 +100,7 @@ def carry(prev, rs_prev, rs_new, steps: dict, *, tol: float):
         new_z[group], new_v[group] = got
     kept = np.isfinite(new_z)
     new_z, new_v, v0, R = new_z[kept], new_v[kept], v0[kept], int(np.sum(kept))
-    if np.any(new_z.imag < -GROWTH * np.abs(new_z)) or np.any(spurious(problem, new_z)):
+    if np.any(new_z.imag < -GROWTH * np.abs(new_z)):
         return None
     same = np.abs(new_z[:, None] - new_z[None, :]) <= CLUSTER * np.abs(new_z)[:, None]
     if np.any(same[~np.eye(R, dtype=bool)]):
@@ -177,8 +177,6 @@ def _circle(problem, pred, unc, group, old, *, tol):
                               rank_tol=REFINE_RANK, margin=0.95)
     except TooMany:
         return None
-    keep = ~spurious(problem, z)
-    z, v = z[keep], v[keep]
     # each found root polished by Newton's method; one that does not converge near where
     # the moments put it is noise of the curve (a node near a duct mode's cut-on), not a root
     zs, vs = [], []

@@ -292,7 +292,8 @@ class RootLosses:
             face.append(h.M / h.head.areal_density)
         n = sum(h.size for h in order.heads)
         out = {"film": _block_diag_c(film), "edge": _block_diag(edge),
-               "face": order.faces * _block_diag(face), "duct": None}
+               "face": order.faces * _block_diag(face), "duct": None, "m": order.m,
+               "radius": order.heads[0].radius}
         if self.losses.boundary_layers and order.depth is not None:
             Q = len(d["gamma"])
             off = d["offsets"]
@@ -308,14 +309,41 @@ class RootLosses:
                                     order.depth, order.m, heads)
         return out
 
+    def wall_coefficients(self, omega):
+        """t and v of DuctWalls.forms at each omega: the thermal and viscous layers' terms."""
+        omega = np.asarray(omega, dtype=complex)
+        zv, yt = self._layers(omega)
+        return 1j * omega**3 * self.rho**2 * yt, 1j * omega * zv
+
+    def walls(self, i: int, skip: int = 0):
+        """Order i's DuctWalls (None without a body or wall losses); with ``skip``, the one
+        whose map leaves out the lowest ``skip`` duct modes (their fields are the contour
+        solve's own unknowns there, and its form on them is field_wall_blocks')."""
+        o = self.orders[i]
+        if o["duct"] is None or not skip:
+            return o["duct"]
+        cache = o.setdefault("skipped", {})
+        if skip not in cache:
+            d = o["duct"]
+            Q = len(d.gamma)
+            amp = d.amp.copy()
+            for h in range(d.heads):
+                amp[h * Q:h * Q + skip] = 0.0
+            cache[skip] = DuctWalls(amp, d.gamma, d.face_norms / (2 * np.pi if o["m"] == 0 else np.pi),
+                                    o["radius"], d.depth, o["m"], d.heads)
+        return cache[skip]
+
     def _layers(self, omega):
         zv = viscous_layer_impedance(omega, density=self.rho, viscosity=self.mu)
         yt = thermal_layer_admittance(omega, density=self.rho, sound_speed=self.c,
                                       viscosity=self.mu)
         return zv, yt
 
-    def matrix(self, i: int, omega, *, outer: float, body: float) -> np.ndarray:
-        """W(omega) of order i for each omega, (len omega, size, size), N/m."""
+    def matrix(self, i: int, omega, *, outer: float, body: float, skip: int = 0) -> np.ndarray:
+        """W(omega) of order i for each omega, (len omega, size, size), N/m.
+
+        ``skip``: the walls' form leaves out the fields of the lowest ``skip`` duct modes
+        (see :meth:`walls`)."""
         o = self.orders[i]
         omega = np.asarray(omega, dtype=complex)
         W = o["film"][None] + (1j / omega)[:, None, None] * o["edge"][None]
@@ -324,8 +352,8 @@ class RootLosses:
             if outer:
                 W = W + outer * (1j * omega * zv)[:, None, None] * o["face"][None]
             if body and o["duct"] is not None:
-                W = W + body * o["duct"].forms(omega / self.c, 1j * omega**3 * self.rho**2 * yt,
-                                               1j * omega * zv)
+                W = W + body * self.walls(i, skip).forms(
+                    omega / self.c, 1j * omega**3 * self.rho**2 * yt, 1j * omega * zv)
         return W
 
 

@@ -32,6 +32,12 @@ HU - UH, U = diag(u); with its diagonal D, projected on amplitudes w = A x, it i
 (a_q, b_q the rows of A and B): linear in the per-mode weights (d, u), whose outer products
 are fixed per order. Each frequency then costs one real matrix product of its 2Q (4Q for a
 shell) weights with them, instead of building and multiplying (Q, Q) arrays.
+
+:func:`field_wall_blocks` gives the same integrals on the fields the contour solve keeps as
+unknowns (spectrum.py). Over 400 lines on purpose: the definition, its fast projection and
+the form on those fields are three views of one set of integrals, checked against each other
+(tests/test_dissipation.py, tests/test_coupled_robust.py); apart, each would repeat the
+others' end values and closed forms.
 """
 
 from __future__ import annotations
@@ -179,9 +185,11 @@ class DuctWalls:
         H = side / diff
         np.fill_diagonal(H, 0.0)
         self.side_diag = np.diag(side).copy()
+        self.side = side
         self.tang = (m / a) ** 2
         self.face_norms = weight * np.asarray(norms, dtype=float)
         amp = np.asarray(amp, dtype=float)
+        self.amp = amp
         n = amp.shape[1]
         A = [amp[h * Q:(h + 1) * Q] for h in range(self.heads)]  # (Q, n) per head
         B = [H @ a_ for a_ in A]
@@ -270,6 +278,157 @@ class DuctWalls:
         R = w.shape[0]
         out = np.vstack([w.real, w.imag]) @ X
         return (out[:R] + 1j * out[R:]).reshape(R, *shape)
+
+
+def _wall_integrals(pa, pb, ga, gb, same):
+    r"""Side-wall integrals over the depth of pairs of axial fields, from their end values.
+
+    Each field solves :math:`\phi'' = -(k^2 - \gamma^2)\phi`, so for two fields of different
+    :math:`\gamma` Green's identity gives :math:`\int\phi\chi\,du = [\phi'\chi -
+    \phi\chi']/(\gamma_\phi^2 - \gamma_\chi^2)` and :math:`\int\phi'\chi'\,du = [\phi\chi'] +
+    (k^2 - \gamma_\chi^2)\int\phi\chi\,du`, brackets the difference between the two ends.
+
+    Parameters
+    ----------
+    pa, pb : tuple of numpy.ndarray
+        (value at the near end, slope there, value at the far end, slope there) of each
+        field, each (P, A) and (P, B).
+    ga, gb : numpy.ndarray
+        Their duct wavenumbers, (A,) and (B,).
+    same : numpy.ndarray
+        (A, B) bool: pairs of one duct mode (left at zero: the caller has their closed form).
+
+    Returns
+    -------
+    (numpy.ndarray, numpy.ndarray)
+        :math:`\int\phi\chi` and the bracket :math:`[\phi\chi']`, each (P, A, B).
+    """
+    a0, da0, a1, da1 = (x[:, :, None] for x in pa)
+    b0, db0, b1, db1 = (x[:, None, :] for x in pb)
+    bracket = (da1 * b1 - a1 * db1) - (da0 * b0 - a0 * db0)
+    diff = ga[:, None] ** 2 - gb[None, :] ** 2
+    diff = np.where(same, 1.0, diff)
+    i0 = np.where(same[None], 0.0, bracket / diff[None])
+    return i0, (a1 * db1 - a0 * db0)
+
+
+def field_wall_blocks(walls, k, thermal, viscous, *, q0: int, kind: str, half: float, shift):
+    r"""The walls' loss form on the fields of the propagating duct modes, in closed form.
+
+    The contour solve (spectrum.py) gives each duct mode q < q0 unknowns of its own: the
+    amplitudes of its axial field in a basis that stays entire at every frequency, per unit
+    duct amplitude (the w of :class:`DuctWalls`): a kettle's :math:`\cos\beta u` (u from the
+    bottom), or over a shell, from mid-depth, the in-phase :math:`\cos\beta u` and the
+    opposed :math:`\sin(\beta u)/\beta`. In those amplitudes the form of :class:`DuctWalls`
+    has no pole (the rigid-walled field's pole is in the amplitudes), and it is split here
+    into its part between two such fields and its part between one and the evanescent duct
+    modes' fields (q >= q0), the latter already projected onto the Ritz coordinates. With the
+    part between evanescent fields alone (:class:`DuctWalls` with the rows q < q0 of its map
+    zeroed) the three give the whole form again.
+
+    Parameters
+    ----------
+    walls : DuctWalls
+        The order's wall forms (its map to duct amplitudes, its side-wall matrix).
+    k : array_like
+        Acoustic wavenumbers, (P,), 1/m.
+    thermal, viscous : array_like
+        t and v of :meth:`DuctWalls.forms`, (P,).
+    q0 : int
+        Propagating duct modes with unknowns.
+    kind : {"kettle", "in-phase", "opposed", "both"}
+        The basis: a kettle's cos, a symmetric shell's cos or sin / beta alone, or both (two
+        unequal heads: in-phase amplitudes first, then opposed).
+    half : float
+        The depth the basis spans from its origin, m: a kettle's L, a shell's L/2.
+    shift : array_like
+        (q0,): each field is multiplied by exp(-shift_q) (spectrum.py's column scale).
+
+    Returns
+    -------
+    (numpy.ndarray, numpy.ndarray)
+        Between fields, (P, F, F) with F = q0 (2 q0 for "both"); between a field and the
+        Ritz coordinates through the evanescent fields, (P, F, n).
+    """
+    k = np.atleast_1d(np.asarray(k, dtype=complex))
+    t = np.atleast_1d(np.asarray(thermal, dtype=complex))[:, None]
+    v = np.atleast_1d(np.asarray(viscous, dtype=complex))[:, None]
+    g = walls.gamma
+    Q = len(g)
+    gp, ge = g[:q0], g[q0:]
+    beta = np.sqrt(k[:, None] ** 2 - gp[None, :] ** 2)
+    b2 = beta * beta
+    sig = np.exp(-np.asarray(shift, dtype=float))[None, :]
+    x = beta * half
+    ep, em = np.exp(1j * x) * sig, np.exp(-1j * x) * sig
+    cos, sin = 0.5 * (ep + em), -0.5j * (ep - em)
+    small = np.abs(x) < 0.5
+    sinb = np.where(small, half * np.sinc(x / np.pi) * sig, sin / np.where(small, 1.0, beta))
+    # integrals over the span of one mode's basis functions, scaled by sig^2: S2 =
+    # sin(2 beta h) / (2 beta) and (h - S2) / beta^2 (its series where 2 beta h is small)
+    e2p, e2m = np.exp(2j * x) * sig**2, np.exp(-2j * x) * sig**2
+    y = 2.0 * x
+    s2 = np.where(np.abs(y) < 0.5, half * np.sinc(y / np.pi) * sig**2,
+                  (-0.5j * (e2p - e2m)) / np.where(np.abs(y) < 0.5, 1.0, 2.0 * beta))
+    yy = y * y
+    series = half**3 * 4.0 * (1 / 6 - yy / 120 + yy * yy / 5040 - yy**3 / 362880)
+    hs = np.where(np.abs(y) < 0.5, series * sig**2, (half * sig**2 - s2) / np.where(np.abs(y) < 0.5, 1.0, b2))
+    zero = np.zeros_like(cos)
+    if kind == "kettle":  # cos(beta u) on [0, L]: bottom (u = 0) is the near end
+        funcs = [((sig * np.ones_like(cos), zero, cos, -beta * sin), "c")]
+        own = {"cc": (0.5 * (half * sig**2 + s2), 0.5 * b2 * (half * sig**2 - s2))}
+    else:  # on [-h, h]: the near end is head 2's face (u = -h), the far one head 1's
+        funcs = []
+        if kind in ("in-phase", "both"):
+            funcs.append(((cos, beta * sin, cos, -beta * sin), "c"))
+        if kind in ("opposed", "both"):
+            funcs.append(((-sinb, cos, sinb, cos), "s"))
+        own = {"cc": (half * sig**2 + s2, b2 * (half * sig**2 - s2)), "ss": (hs, half * sig**2 + s2)}
+        # over [-h, h]: int cos^2 = h + S2, int sin^2/beta^2 = (h - S2)/beta^2, the cross
+        # term zero (odd); slopes: int (beta sin)^2 = beta^2 (h - S2), int cos^2 = h + S2
+    F = q0 * len(funcs)
+    P = len(k)
+    n = walls.amp.shape[1]
+    tang = walls.tang
+    alpha = t + v * tang
+    side = walls.side
+    same = np.eye(q0, dtype=bool)
+    Mpp = np.zeros((P, F, F), complex)
+    for i, (fa, na) in enumerate(funcs):
+        for j, (fb, nb) in enumerate(funcs):
+            i0, br = _wall_integrals(fa, fb, gp, gp, same)
+            i1 = br + (k[:, None, None] ** 2 - gp[None, None, :] ** 2) * i0
+            key = "".join(sorted(na + nb))
+            d0, d1 = own.get(key, (zero, zero))
+            idx = np.arange(q0)
+            i0[:, idx, idx] = d0
+            i1[:, idx, idx] = d1
+            blk = side[None, :q0, :q0] * (alpha[:, :, None] * i0 + v[:, :, None] * i1)
+            # the end faces: the duct modes are orthogonal over a face, so only q = p
+            faces = walls.face_norms[None, :q0] * (t + v * gp[None, :] ** 2) * (fa[0] * fb[0] + fa[2] * fb[2])
+            blk[:, idx, idx] += faces
+            Mpp[:, i * q0:(i + 1) * q0, j * q0:(j + 1) * q0] = blk
+    Mpe = np.zeros((P, F, n), complex)
+    if Q > q0:
+        mu = np.sqrt(ge[None, :] ** 2 - k[:, None] ** 2)
+        cot, csc = _cot_csc(mu, walls.depth)
+        bb = 1j * mu
+        fcot, fcsc = cot / bb, csc / bb
+        one = np.ones_like(fcot)
+        # the rigid-walled fields per unit duct amplitude, near end (u = 0) first:
+        # e_1 = cos(beta u) / (beta sin beta L) from the head at u = L, e_2 from one at u = 0
+        ev = [(fcsc, 0 * one, fcot, -one)]
+        if walls.heads == 2:
+            ev.append((fcot, one, fcsc, 0 * one))
+        nope = np.zeros((q0, Q - q0), dtype=bool)
+        for i, (fa, _) in enumerate(funcs):
+            for h, fe in enumerate(ev):
+                i0, br = _wall_integrals(fa, fe, gp, ge, nope)
+                i1 = br + (k[:, None, None] ** 2 - ge[None, None, :] ** 2) * i0
+                blk = side[None, :q0, q0:] * (alpha[:, :, None] * i0 + v[:, :, None] * i1)
+                amp_e = walls.amp[h * Q + q0:(h + 1) * Q]  # (Q - q0, n)
+                Mpe[:, i * q0:(i + 1) * q0, :] += blk @ amp_e
+    return Mpp, Mpe
 
 
 def _span(a):

@@ -277,9 +277,10 @@ class RootSet:
 
         ``outer`` and ``body`` scale the outside and inside air (0 switches them off);
         ``head`` False leaves out K - omega^2 M (with outer 0: the body's S alone);
-        ``skip_ducts`` leaves out the lowest duct modes (the contour solve gives them
-        unknowns of their own, spectrum.py); ``only_ducts`` keeps only the lowest ones;
-        ``duct_weights`` scales each duct mode's term.
+        ``skip_ducts`` leaves out the lowest duct modes, and the walls' loss on their
+        fields (the contour solve gives them unknowns of their own, spectrum.py);
+        ``only_ducts`` keeps only the lowest ones; ``duct_weights`` scales each duct mode's
+        term.
         """
         d, order = self.data[i], self.orders[i]
         w = np.atleast_1d(np.asarray(omega, dtype=complex))
@@ -317,7 +318,7 @@ class RootSet:
                     Z[:, off[a_]:off[a_ + 1], off[b_]:off[b_ + 1]] += \
                         (V[a_][None, :, :] * f[:, None, :]) @ V[b_].T
         if head and self.losses is not None:
-            Z += self.losses.matrix(i, w, outer=outer, body=body)
+            Z += self.losses.matrix(i, w, outer=outer, body=body, skip=skip_ducts)
         return Z
 
     def ensure_range(self, i, k_top: float) -> None:

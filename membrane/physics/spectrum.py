@@ -4,29 +4,57 @@ The operator :math:`Z(\omega) = K + S(\omega) - \omega^2 (M + A(\omega))` (opera
 poles where the body's air, with the heads held still, resonates: the duct terms
 :math:`\cot(\beta L)/\beta` and :math:`\csc(\beta L)/\beta`. For the contour method
 (contour.py) the operator must be analytic, so the duct modes that can propagate in the
-window are taken out of S and given unknowns of their own, the pressure amplitudes
-:math:`p_q`; multiplying their rows by :math:`\beta\sin\beta L` leaves only entire functions
-(:math:`\cos\beta L`, :math:`\beta\sin\beta L`, even in β):
+window are taken out of S and their fields given unknowns of their own; their rows hold only
+entire functions of ω (cos and β sin of βx, and sin(βx)/β, all even in β). One head (a
+kettle, or one symmetric half of a shell of identical heads), with A_q the amplitude of the
+duct mode's axial field:
 
 .. math::
 
-    \begin{bmatrix} Z_{ev}(\omega) & V \\ \rho\pi_m\omega^2 G(\omega) V^T & -N\beta\sin\beta L
-    \end{bmatrix} \begin{bmatrix} q \\ p \end{bmatrix} = 0,
+    \begin{bmatrix} Z_{ev}(\omega) & V G(\omega) \\ \rho\pi_m\omega^2 V^T & -N D(\omega)
+    \end{bmatrix} \begin{bmatrix} q \\ A \end{bmatrix} = 0,
 
 with :math:`Z_{ev}` the operator with the evanescent duct modes only (analytic below their
-cut-on), G = cos βL on a head's own face and 1 across a shell (cos βL ± 1 for a symmetric
-pair), N the duct modes' norms. Its Schur complement is Z again, so the roots are the same;
-roots that are mostly the body's air (the kettle's or shell's own resonances, loaded by the
-head) are roots like any other here, not poles to avoid.
+cut-on), N the duct modes' norms, G the field's value at the head and D its slope there
+(the head's motion), :math:`G/D` the duct term: a kettle's field cos βu from the bottom, cos βL
+over β sin βL; for a shell's in-phase half, from mid-depth, a kettle of depth L/2
+(cot(βL/2)/β, a rigid plane at mid-depth), for its opposed half sin(βu)/β, sin(βL/2)/β over
+-cos(βL/2) (-tan(βL/2)/β, a pressure-release plane there). Two unequal heads: the same two
+halves, the in-phase one driven by the sum of the heads' motions and the opposed one by their
+difference; head 1 feels the sum of the halves' values, head 2 their difference
+(:meth:`OrderProblem.evaluate`). D vanishes exactly where the duct term has its poles and
+nowhere else, so the Schur complement is Z and the augmented
+operator has the drum's roots and no others: the heads' face pressures as unknowns of a shell
+(G = cos βL on a head's own face, 1 across) made it singular at every rigid-walled resonance,
+where the field from either head is one standing wave, and, for identical heads, wherever a
+half has no pole (in-phase at odd half-waves, opposed at a duct mode's cut-on): lossless roots
+the drum does not have, which with the boundary layers' loss on spread into clouds
+(tests/test_coupled_robust.py counts the zeros there by the argument principle). Roots that
+are mostly the body's air (the kettle's or shell's own resonances, loaded by the head) are
+roots like any other here, not poles to avoid.
+
+The walls' boundary-layer loss (dissipation.py) is a first-order term built on the
+rigid-walled field, so on a propagating duct mode it has a double pole at each of its
+rigid-walled resonances (the field's pole, squared): in :math:`Z_{ev}` it would leave the
+augmented operator not analytic there, and a shell of unequal heads held clouds of roots that
+are no roots of Z (seed 1 drum 240 of benchmarks/sweep_drums.py: 9 to 19 within 2 % of c/2L,
+by the form of the other unknowns; at each of the 9, Z's smallest singular value no lower
+than 1e-6 away). On the fields' own amplitudes y that form has no pole
+(duct_walls.field_wall_blocks), and a second set of unknowns carries it:
+with B and D the fields' rows (y = -D^-1 B q), rows [F, G, D] and columns [B^T; 0; D] give
+the Schur complement Z + (the form on the fields), the same operator to round-off, with every
+block entire. :math:`Z_{ev}` keeps the form on the evanescent fields alone. The first-order
+form does give Z a root of its own near each such resonance, on the growing side; it is
+dropped with the other growing roots (:func:`_growing`).
 
 Roots are found in overlapping circles along the real axis (radius half the centre, centres
 1.5 apart), then each group of nearby roots is refined on small circles until it moves less
 than the tolerance. Nothing is continued from a starting guess, so nothing can be lost on the
 way or captured by a neighbour.
 
-One module of about 550 lines, on purpose: the scan, the refinement, the Newton polish and the
+One module of about 600 lines, on purpose: the scan, the refinement, the Newton polish and the
 local solve of a continuation (:func:`local_roots`) are one method on one augmented operator,
-and share its scales, tolerances and the test for spurious roots; split, each part would
+and share its scales and tolerances; split, each part would
 import the others' constants. What a root holds (head fractions) is energy_share.py.
 """
 
@@ -76,6 +104,22 @@ def _balance(T0):
     return r, c
 
 
+def _standing(beta, x: float, shift):
+    """cos(beta x), beta sin(beta x) and sin(beta x) / beta, each times exp(-shift), (P, Q).
+
+    Entire in beta^2 (even in beta), so the branch of beta does not matter; sin / beta from
+    its series where |beta x| is small (there is no cancellation to lose digits to).
+    """
+    shift = np.asarray(shift)[None, :]
+    ep, em = np.exp(1j * beta * x - shift), np.exp(-1j * beta * x - shift)
+    cos = 0.5 * (ep + em)
+    sin = -0.5j * (ep - em)
+    small = np.abs(beta * x) < 0.5
+    safe = np.where(small, 1.0, beta)
+    sinb = np.where(small, x * np.sinc(beta * x / np.pi) * np.exp(-shift), sin / safe)
+    return cos, beta * sin, sinb
+
+
 class OrderProblem:
     """One order's roots as an analytic eigenproblem (the augmented operator above).
 
@@ -108,11 +152,34 @@ class OrderProblem:
         beta = np.sqrt(k[:, None] ** 2 - self.rs.data[self.i]["gamma"][None, :q0] ** 2)
         return np.max(np.abs(beta.imag), axis=0) * self.order.depth
 
-    def evaluate(self, omega, q0: int, w_ref: float, shift=None):
-        """T(omega) of the augmented operator, (P, n + q0 * heads, same), complex.
+    def kind(self) -> str:
+        """The basis of the propagating duct modes' fields (duct_walls.field_wall_blocks)."""
+        if len(self.order.heads) == 2:
+            return "both"
+        return {None: "kettle", 1: "in-phase", -1: "opposed"}[self.order.cross_sign]
 
-        Each duct row is multiplied by the constant exp(-shift_q), so that cos and sin of a
-        complex beta L never overflow (a constant row scale changes no root).
+    def half(self) -> float:
+        """The depth the fields' basis spans from its origin: a kettle's L, a shell's L/2."""
+        return self.order.depth if self.kind() == "kettle" else 0.5 * self.order.depth
+
+    def walls(self):
+        """The order's DuctWalls where the walls' loss is on, else None."""
+        losses = self.rs.losses
+        return None if losses is None or self.order.depth is None else losses.walls(self.i)
+
+    def unknowns(self, q0: int) -> int:
+        """Size of the augmented operator with q0 propagating duct modes."""
+        fields = q0 * (2 if self.kind() == "both" else 1) if q0 else 0
+        return self.size + fields * (2 if fields and self.walls() is not None else 1)
+
+    def evaluate(self, omega, q0: int, w_ref: float, shift=None):
+        """T(omega) of the augmented operator, (P, unknowns, unknowns), complex.
+
+        The unknowns after the Ritz coordinates are the propagating duct modes' field
+        amplitudes (module docstring), their columns multiplied by the constant exp(-shift_q)
+        so that cos and sin of a complex beta L never overflow (a constant column scale
+        changes no root); with the walls' loss on, as many again, whose rows carry the
+        loss's form on those fields.
         """
         rs, d, order = self.rs, self.rs.data[self.i], self.order
         omega = np.asarray(omega, dtype=complex)
@@ -121,31 +188,64 @@ class OrderProblem:
             return Z
         n, P = self.size, len(omega)
         V, off = d["V"], d["offsets"]
-        heads = len(V)
-        N = n + q0 * heads
+        kind, half = self.kind(), self.half()
+        nf = q0 * (2 if kind == "both" else 1)
+        walls = self.walls()
+        N = n + nf * (2 if walls is not None else 1)
         T = np.zeros((P, N, N), complex)
         T[:, :n, :n] = Z
         k = omega / rs.c
         beta = np.sqrt(k[:, None] ** 2 - d["gamma"][None, :q0] ** 2)
-        L = order.depth
-        shift = np.zeros(q0) if shift is None else np.asarray(shift)[None, :]
-        ep, em = np.exp(1j * beta * L - shift), np.exp(-1j * beta * L - shift)
-        cos = 0.5 * (ep + em)
-        bsin = beta * (-0.5j) * (ep - em)
-        one = np.exp(-shift) * np.ones_like(cos)
+        shift = np.zeros(q0) if shift is None else np.asarray(shift)
+        if kind != "kettle":
+            shift = 0.5 * shift  # the shift is for the whole depth, the basis spans half
         rhow = rs.rho * d["weight"] * w_ref**2
         coef = (omega / w_ref) ** 2
-        for h in range(heads):
-            rows = slice(n + h * q0, n + (h + 1) * q0)
-            T[:, off[h]:off[h + 1], rows] = V[h][None, :, :q0]
-            for g in range(heads):
-                if heads == 1:
-                    G = cos + (order.cross_sign or 0.0) * one
-                else:
-                    G = cos if g == h else one
-                T[:, rows, off[g]:off[g + 1]] = (coef[:, None] * G)[:, :, None] * V[g][:, :q0].T[None, :, :]
-            idx = np.arange(q0)
-            T[:, n + h * q0 + idx, n + h * q0 + idx] = -d["norms"][None, :q0] * bsin / rhow
+        norms = d["norms"][None, :q0] / rhow
+        cos, bsin, sinb = _standing(beta, half, shift)
+        f = slice(n, n + nf)
+        idx = np.arange(q0)
+        # each head feels the fields' values at its face; each field's row says that its
+        # slope there is the head's motion (X = V^T q): for a kettle, A cos(beta u) from the
+        # bottom, coef X = N beta sin(beta L) A; for a shell, from mid-depth, the in-phase
+        # A+ cos(beta u) driven by (X_1 + X_2) / 2 and the opposed A- sin(beta u) / beta by
+        # (X_1 - X_2) / 2 (one of them for identical heads, X_1 = +-X_2)
+        if kind in ("kettle", "in-phase", "opposed"):
+            value, slope = (sinb, norms * cos) if kind == "opposed" else (cos, -norms * bsin)
+            T[:, :n, f] = V[0][None, :, :q0] * value[:, None, :]
+            T[:, f, :n] = coef[:, None, None] * V[0][:, :q0].T[None, :, :]
+            T[:, n + idx, n + idx] = slope
+        else:
+            rp, rm = slice(n, n + q0), slice(n + q0, n + 2 * q0)
+            for h, sign in ((0, 1.0), (1, -1.0)):
+                rows = slice(off[h], off[h + 1])
+                T[:, rows, rp] = V[h][None, :, :q0] * cos[:, None, :]
+                T[:, rows, rm] = sign * V[h][None, :, :q0] * sinb[:, None, :]
+                vt = 0.5 * coef[:, None, None] * V[h][:, :q0].T[None, :, :]
+                T[:, rp, rows] = vt
+                T[:, rm, rows] = sign * vt
+            T[:, n + idx, n + idx] = -norms * bsin
+            T[:, n + q0 + idx, n + q0 + idx] = norms * cos
+        if walls is None:
+            return T
+        # the walls' loss on the fields: with B the fields' rows on q, D their own block
+        # (diagonal) and y = -D^-1 B q the fields, a second set of unknowns with rows
+        # [F, G, D] and columns [B^T; 0; D] in the head's rows and their own makes the Schur
+        # complement Z + (F^T y + y^T F + y^T G y) exactly, the form on the fields: every
+        # block entire, so the loss's double pole at a rigid-walled resonance, which the
+        # form on the rigid-walled field had, is not in T (that pole is all in y)
+        from .duct_walls import field_wall_blocks
+
+        t, v = rs.losses.wall_coefficients(omega)
+        Mpp, Mpe = field_wall_blocks(walls, k, t, v, q0=q0, kind=kind, half=half,
+                                     shift=shift)
+        kappa = (rhow * coef)[:, None, None]  # the fields' unknowns per unit duct amplitude
+        g = slice(n + nf, n + 2 * nf)
+        T[:, :n, g] = np.swapaxes(T[:, f, :n], 1, 2)
+        T[:, g, g] = T[:, f, f]
+        T[:, g, :n] = Mpe / kappa
+        T[:, g, f] = Mpp / kappa**2
+        T[:, :n, f] += np.swapaxes(Mpe, 1, 2) / kappa
         return T
 
     def prepared(self, centre: complex, radius: float):
@@ -161,7 +261,7 @@ class OrderProblem:
         w_ref = abs(centre)
         shift = self.shifts(centre, radius, q0)
         centre = complex(centre)
-        n = self.size + q0 * (len(self.order.heads) if q0 else 0)
+        n = self.unknowns(q0)
         r, c = np.ones(n), np.ones(n)
         balanced = []
 
@@ -188,8 +288,8 @@ class OrderProblem:
         evaluate, c = self.prepared(centre, radius)
         z, vecs = eigen_in_circle(evaluate, centre, radius, points=points, margin=margin,
                                   blocks=blocks, rank_tol=rank_tol, aspect=aspect)
-        grow = z.imag < -GROWTH * np.abs(z)  # not a decaying mode: an artefact of the
-        z, vecs = z[~grow], vecs[~grow]  # continued operator far from the real axis
+        grow = _growing(z)  # not a decaying mode: an artefact of the continued operator
+        z, vecs = z[~grow], vecs[~grow]  # far from the real axis (or see _growing)
         vecs = vecs * c[None, :]  # undo the column scaling
         return z, vecs[:, : self.size]
 
@@ -318,37 +418,23 @@ def refine(problem: OrderProblem, z, *, tol: float, rounds: int, context=None):
     if not out_z:
         return np.zeros(0, complex), np.zeros((0, problem.size), complex)
     z, v = np.concatenate(out_z), np.concatenate(out_v)
-    keep = ~spurious(problem, z)
+    keep = ~_growing(z)  # polished (or settled) past the real axis: not a mode either
     return _dedupe(z[keep], v[keep])
 
 
-def spurious(problem: OrderProblem, z) -> np.ndarray:
-    r"""Which roots are singular points of the augmented operator only, not modes: bool (R,).
+def _growing(z) -> np.ndarray:
+    r"""Roots that grow in time faster than round-off (:data:`GROWTH`): bool.
 
-    The air's boundary-layer losses on the body's walls (dissipation.py) enter Z as a
-    first-order term that holds each duct mode's field twice, so it has a double pole at
-    every rigid-walled resonance :math:`\omega_{qp} = c\sqrt{\gamma_q^2 + (p\pi/L)^2}` of
-    the body. Giving a propagating duct mode an unknown of its own removes one of the two:
-    the augmented operator is then singular at that exact, real frequency although Z is not
-    (its Schur complement has no root there). Such a point is lossless, sits on the
-    rigid-walled resonance to round-off, and holds no head motion; a true root of the loaded
-    body is moved off it by the head and damped by the walls. Those within 1e-9 (relative)
-    of a rigid-walled resonance and lossless to :data:`GROWTH` are dropped.
-    """
+    A passive drum has none; besides the continued operator's artefacts far from the real
+    axis, the walls' loss makes them near a rigid-walled resonance: first order in the
+    rigid-walled field, it adds :math:`\epsilon/x^2` to the field's pole :math:`s/x` (x the
+    distance from the resonance), and :math:`s/x + \epsilon/x^2` vanishes at
+    :math:`x = -\epsilon/s`, the mirror of the damped air resonance's own shift
+    :math:`+\epsilon/s`: a root of the first-order model, not of the drum, on the growing
+    side (a 7-inch head over a 1.42 m kettle has one 0.66 Hz from its (0,3), growing at
+    0.73 Hz, tests/test_coupled_robust.py)."""
     z = np.asarray(z, dtype=complex)
-    order = problem.order
-    if order.depth is None or not len(z):
-        return np.zeros(len(z), bool)
-    c, L = problem.rs.c, order.depth
-    gamma = problem.rs.data[problem.i]["gamma"]
-    top = float(np.max(np.abs(z))) / c * 1.01
-    g = gamma[gamma <= top]
-    p = np.arange(int(np.ceil(top * L / np.pi)) + 1)
-    rigid = c * np.sqrt(g[:, None] ** 2 + (p[None, :] * np.pi / L) ** 2).ravel()
-    if not len(rigid):
-        return np.zeros(len(z), bool)
-    near = np.min(np.abs(z.real[:, None] - rigid[None, :]), axis=1) <= 1e-9 * np.abs(z)
-    return near & (np.abs(z.imag) <= GROWTH * np.abs(z))
+    return z.imag < -GROWTH * np.abs(z)
 
 
 def _polish_group(problem, z, vecs, *, tol):
@@ -527,8 +613,6 @@ def local_roots(rs, i: int, centre: complex, radius: float, *, tol: float):
             radius *= 0.5
     else:
         return empty
-    keep = ~spurious(problem, z)
-    z, v = z[keep], v[keep]
     if not len(z):
         return empty
     order = np.argsort(z.real)
@@ -544,5 +628,7 @@ def local_roots(rs, i: int, centre: complex, radius: float, *, tol: float):
         got = problem.polish(z[j], tol=tol, reach=reach)
         if got is not None:
             z[j], v[j] = got
+    keep = ~_growing(z)
+    z, v = z[keep], v[keep]
     v = mass_normalised(rs, i, v)
     return z, v, head_fractions(rs, i, z, v)
