@@ -36,7 +36,7 @@ def keep_freed_memory() -> bool:
 
         libc = ctypes.CDLL(None)
         mallopt = libc.mallopt
-    except (OSError, AttributeError):
+    except (OSError, AttributeError, TypeError):  # no C library by that name (Windows: None is refused)
         return False
     mallopt.argtypes = [ctypes.c_int, ctypes.c_int]
     mallopt.restype = ctypes.c_int
