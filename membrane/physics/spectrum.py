@@ -589,8 +589,8 @@ def scan_order(rs, i: int, *, covered, lowest: float, tol: float, rounds: int,
 
 
 def _coarse(problem, lo, hi, centre, radius, depth=0):
-    """Coarse roots with lo <= Re omega < hi from one curve, or from three smaller ones (with
-    twice the nodes each) if the curve holds more than its moments can resolve."""
+    """Coarse roots with lo <= Re omega < hi from one curve, or from three smaller ones (as
+    many nodes each) if the curve holds more than its moments can resolve."""
     rs = problem.rs
     # the radiation tables are series in (k a)^2, accurate far from the real axis only at
     # small k a; higher up every root is lightly damped, so the curve flattens there
@@ -605,10 +605,14 @@ def _coarse(problem, lo, hi, centre, radius, depth=0):
         # to the head (a long kettle's ladder above a duct mode's cut-on), each close to its
         # rigid-walled one, can hold more roots than the moments resolve, with no gap in the
         # Hankel matrix's singular values to say so (the augmented operator is entire, so
-        # the count is exact up to the trapezoidal rule's error); elsewhere the check would
-        # only cost its second evaluation per node (0.62 -> 0.92 s per drum on the sweep's
-        # first 40; 0.80 with it only there)
-        z, _ = problem.circle(centre, radius, points=SCAN_POINTS * 2**depth, margin=KEEP,
+        # the turns of det T count its roots exactly where its phase is resolved between
+        # nodes: contour.winding); elsewhere the check would cost an LU per node (and the
+        # nodes added where det T's phase turns fast) for nothing
+        # a smaller curve keeps the node count: it already has 2.5 times the nodes per unit
+        # of axis (of the crowd's spacing); doubling them per level as well cost the 1.7 m^3
+        # kettle of benchmarks/bench_commands.py's two-target tune 2.8 times the time for
+        # the same roots, and a curve that still misses some is split again on the count
+        z, _ = problem.circle(centre, radius, points=SCAN_POINTS, margin=KEEP,
                               aspect=1.0 if ka <= FLAT_KA else FLAT_ASPECT, blocks=2,
                               count=problem.resonances_within(centre, radius))
     except TooMany:
