@@ -48,3 +48,29 @@ def test_a_strike_with_many_fast_strong_lines_gives_its_lines_and_nothing_else()
     spurious = [(round(p.frequency, 1), round(p.level_db, 1)) for p in found
                 if p.level_db > -40.0 and min(abs(p.frequency - f) for f, _, _ in LINES) > 1.0]
     assert not missed and not spurious, (missed, spurious)
+
+
+# The built-in kettledrum's strike: its modes as `membrane strike kettledrum` lists them
+# (frequency Hz, T60 s, level dB); the generator is a sum of these damped sinusoids at fixed
+# frequencies, so nothing in it glides. (3,3) sits 18.6 Hz below two fast components the
+# band model fits beside it (695.8, 700.6 Hz, T60 0.11 s), which once made a false glide
+# from 688.3 Hz down to 677.2 Hz.
+MODE_33 = (677.21, 0.869, -32.0)
+
+
+def test_the_strike_preview_has_no_glide_and_its_steady_line_keeps_its_frequency(tmp_path):
+    import subprocess
+    import sys
+
+    from membrane.recording import read_recording
+
+    wav = tmp_path / "kettledrum.wav"
+    subprocess.run([sys.executable, "-m", "membrane", "strike", "kettledrum", "--out", str(wav)],
+                   check=True, capture_output=True)
+    found = analyse(read_recording(wav)).partials
+    glides = [(round(p.frequency, 2), round(p.settled, 2)) for p in found if "glide" in p.flags]
+    assert not glides, glides
+    f, t60, _ = MODE_33
+    near = [p for p in found if abs(p.frequency - f) < 1.0]
+    assert len(near) == 1, [(p.frequency, p.t60) for p in found if abs(p.frequency - f) < 15]
+    assert near[0].t60 == pytest.approx(t60, rel=0.05)

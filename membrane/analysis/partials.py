@@ -289,7 +289,7 @@ def find_partials(decay: np.ndarray, *, rate: float, floor_db: float = DEFAULT_F
         lines += line_fit.group(found, duration=duration)
     if not lines:
         return ()
-    lines = line_fit.glide_chains(lines, shift=shift, duration=duration)
+    lines = line_fit.glide_chains(lines, shift=shift, duration=duration, y=y, rate=rate)
     parts = line_fit.merge_glides(lines, y=y, rate=rate, shift=shift, duration=duration)
     parts = [p for p in parts if p.amplitude > 0]
     if not parts:
