@@ -1,0 +1,60 @@
+"""The turns of det T round a curve (contour.winding) count the roots placed inside it."""
+
+import numpy as np
+import pytest
+
+from membrane.physics.contour import TooMany, circle_points, winding
+
+
+def _diagonal(roots, size=3, seed=0):
+    """T(z) = Q diag(prod over the roots given to each entry of (z - r)) Q^-1: det T has
+    exactly those roots, each once (its zeros are known without any contour)."""
+    rng = np.random.default_rng(seed)
+    Q = rng.normal(size=(size, size)) + 1j * rng.normal(size=(size, size))
+    Qi = np.linalg.inv(Q)
+    parts = [roots[k::size] for k in range(size)]
+
+    def evaluate(z):
+        z = np.asarray(z, complex)
+        d = np.stack([np.prod(z[:, None] - np.asarray(p, complex)[None, :], axis=1)
+                      if len(p) else np.ones(len(z), complex) for p in parts], axis=1)
+        return np.einsum("ij,pj,jk->pik", Q, d, Qi)
+
+    return evaluate
+
+
+def _count(evaluate, centre, radius, points, aspect=1.0):
+    z, _, _ = circle_points(centre, radius, points, aspect)
+    return winding(evaluate, evaluate(z), centre, radius, aspect)
+
+
+@pytest.mark.parametrize("aspect", [1.0, 0.5])
+def test_the_turns_of_det_count_a_crowd_of_roots_inside(aspect):
+    # an independent count: which of the placed roots lie inside the ellipse
+    rng = np.random.default_rng(3)
+    roots = 10.0 + rng.uniform(-1.3, 1.3, 30) + 1j * rng.uniform(-0.8, 0.8, 30)
+    inside = np.sum(((roots.real - 10.0) / 1.0) ** 2 + (roots.imag / aspect) ** 2 < 1.0)
+    # clear of the curve by 2 % so the phase can be resolved by halving arcs
+    d = np.abs(((roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2) ** 0.5 - 1.0)
+    roots = roots[d > 0.02]
+    inside = np.sum(((roots.real - 10.0)) ** 2 + (roots.imag / aspect) ** 2 < 1.0)
+    assert inside >= 5
+    assert _count(_diagonal(list(roots)), 10.0, 1.0, 24, aspect) == inside
+
+
+def test_a_root_close_to_the_curve_is_counted_by_halving_arcs_not_missed():
+    # 1e-3 of the radius inside the curve, between two of 16 nodes: the phase turns by
+    # nearly pi across that arc (a principal value alone could go either way)
+    theta = 2 * np.pi / 16  # a node's angle lies at odd multiples of pi / 16
+    r = 0.999 * np.exp(1j * theta)
+    assert _count(_diagonal([10.0 + r, 10.2]), 10.0, 1.0, 16) == 2
+    r_out = 1.001 * np.exp(1j * theta)
+    assert _count(_diagonal([10.0 + r_out, 10.2]), 10.0, 1.0, 16) == 1
+
+
+def test_a_root_on_the_curve_is_refused_not_guessed():
+    # 1e-9 of the radius from the curve, off every node the halvings place (the arcs are
+    # 1/1024 of the curve after six): its turn of nearly pi falls between two of them
+    theta = 2 * np.pi / 16 + 2e-3
+    with pytest.raises(TooMany):
+        _count(_diagonal([10.0 + (1 + 1e-9) * np.exp(1j * theta)]), 10.0, 1.0, 16)
