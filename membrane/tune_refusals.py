@@ -14,7 +14,7 @@ import math
 
 from .drum import Drum
 from .errors import InputError
-from .safety import TENSION_CEILING
+from .safety import TENSION_CEILING, stress
 
 # the other branch of a crossing is offered only within this factor of the crossing's tension
 BRANCH_RANGE = 1.5  # our choice: beyond it the branch is usually another partial
@@ -59,12 +59,17 @@ def crossing(drum: Drum, mode, hz: float, model, jump, lo: float, hi: float):
     dec = max(0, -math.floor(math.log10(max(t2 - t1, 1e-12))))  # enough digits to tell them apart
     words = (f"({m},{n}) cannot sit at {hz:.4g} Hz on this {where[0]}: between {t1:,.{dec}f} and "
              f"{t2:,.{dec}f} N/m it crosses {where[1]}")
+    # a crossing the film could not bear in any case: say so, so no one tightens towards it
+    s, limit = stress(drum.head, t1), drum.head.yield_stress
+    yielded = (f" (past the film's yield: {s / 1e6:.0f} MPa there against its yield stress of "
+               f"{limit / 1e6:.0f} MPa; it would stretch permanently)") if s is not None and limit is not None \
+        and s > limit else ""
     other = ""
     if model.by_order:
         od_lo, od_hi = model.order_roots(t1)[m], model.order_roots(t2)[m]
         air, f_lo, f_hi, r_lo, r_hi = branches.crossing_note(
             drum, m=m, n=n, n_max=model.n_max, lo=od_lo, hi=od_hi, sound_speed=drum.air.sound_speed)
-        words += f" near {air:.0f} Hz"
+        words += f" near {air:.0f} Hz{yielded}"
         # the continuous branches repel at the air resonance: the lower one (the label's
         # below the jump) rises towards it with tension, the upper one (the label's above)
         # falls towards it as the tension drops; a target below the air resonance can only be
@@ -82,7 +87,7 @@ def crossing(drum: Drum, mode, hz: float, model, jump, lo: float, hi: float):
                      f"{100 * frac:.0f} % of its energy is in the head, the rest in the body's air "
                      f"(caution: a partly air-like partial, not the principal ({m},{n}); check it by ear)")
     else:
-        words += " (or meets another root of its order)"
+        words += " (or meets another root of its order)" + yielded
     words += (f"; below that the head-like ({m},{n}) reaches {f1:.4g} Hz, above it it continues on "
               f"the upper branch from {f2:.4g} Hz{other}; choose a target outside "
               f"{f1:.4g}-{f2:.4g} Hz")

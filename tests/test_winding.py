@@ -33,11 +33,10 @@ def test_the_turns_of_det_count_a_crowd_of_roots_inside(aspect):
     # an independent count: which of the placed roots lie inside the ellipse
     rng = np.random.default_rng(3)
     roots = 10.0 + rng.uniform(-1.3, 1.3, 30) + 1j * rng.uniform(-0.8, 0.8, 30)
-    inside = np.sum(((roots.real - 10.0) / 1.0) ** 2 + (roots.imag / aspect) ** 2 < 1.0)
     # clear of the curve by 2 % so the phase can be resolved by halving arcs
     d = np.abs(((roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2) ** 0.5 - 1.0)
     roots = roots[d > 0.02]
-    inside = np.sum(((roots.real - 10.0)) ** 2 + (roots.imag / aspect) ** 2 < 1.0)
+    inside = np.sum((roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2 < 1.0)
     assert inside >= 5
     assert _count(_diagonal(list(roots)), 10.0, 1.0, 24, aspect) == inside
 

@@ -52,7 +52,7 @@ Roots are found in overlapping circles along the real axis (radius half the cent
 than the tolerance. Nothing is continued from a starting guess, so nothing can be lost on the
 way or captured by a neighbour.
 
-One module of about 600 lines, on purpose: the scan, the refinement, the Newton polish and the
+One module of about 700 lines, on purpose: the scan, the refinement, the Newton polish and the
 local solve of a continuation (:func:`local_roots`) are one method on one augmented operator,
 and share its scales and tolerances; split, each part would
 import the others' constants. What a root holds (head fractions) is energy_share.py.
