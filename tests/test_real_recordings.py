@@ -349,6 +349,18 @@ def test_each_flag_is_listed_once(analysed):
             assert len(set(p.flags)) == len(p.flags), (name, p)
 
 
+def test_a_steady_partial_shows_its_lower_bound_and_the_note_explains_it():
+    # the mid timpano's 110 Hz line does not fall within the 2 s excerpt: its T60 is shown
+    # as a lower bound, the record's length from the reference time, and the note says so
+    # (regression: the note once read "(> s)")
+    out = CliRunner().invoke(app, ["listen", str(DATA / "timpani_mid_1.flac")],
+                             env={"COLUMNS": "200"})
+    assert out.exit_code == 0, out.output
+    assert "steady" in out.output and "> 1." in out.output
+    assert "(> s)" not in out.output
+    assert "shown as '> ' and its length in seconds" in out.output
+
+
 def test_a_wrong_diameter_fits_as_well_at_the_scaled_tension_and_the_output_says_so(analysed, tmp_path):
     # an ideal membrane's partials go as sqrt(T / sigma) / a (f_mn = j_mn c / (2 pi a),
     # c = sqrt(T / sigma); Fletcher & Rossing, Physics of Musical Instruments, 3.5), so a

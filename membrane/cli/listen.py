@@ -177,7 +177,8 @@ def listen(
                      "are uncertain")
     if any("steady" in p.flags for p in shown):
         notes.append("steady: does not fall within the analysed decay; its T60 is only known "
-                     "to be longer than that stretch (> s); left out of the tension fit")
+                     "to be longer than that stretch, shown as '> ' and its length in seconds; left out "
+                     "of the tension fit")
     if any("rising" in p.flags for p in shown):
         notes.append("rising: its envelope grows after the reference time (fed by other modes "
                      "or the air, or lines that beat); level taken at the reference time, T60 "
