@@ -3,7 +3,7 @@
 import numpy as np
 import pytest
 
-from membrane.physics.contour import TooMany, circle_points, winding
+from membrane.physics.contour import TooMany, circle_points, deflated_winding, winding
 
 
 def _diagonal(roots, size=3, seed=0):
@@ -57,3 +57,53 @@ def test_a_root_on_the_curve_is_refused_not_guessed():
     theta = 2 * np.pi / 16 + 2e-3
     with pytest.raises(TooMany):
         _count(_diagonal([10.0 + (1 + 1e-9) * np.exp(1j * theta)]), 10.0, 1.0, 16)
+
+
+def _deflated(evaluate, roots_given, centre, radius, points, aspect=1.0):
+    z, _, _ = circle_points(centre, radius, points, aspect)
+    return deflated_winding(evaluate(z), centre, radius, aspect, roots_given)
+
+
+@pytest.mark.parametrize("aspect", [1.0, 0.5])
+def test_det_divided_by_the_moments_roots_counts_the_crowd_whatever_roots_it_is_given(aspect):
+    # the count is the placed roots inside the ellipse (an independent, geometric count).
+    # Given every root, only those inside (what the moments hold), or two missed and a
+    # spurious one added, the deflated count is that number: the roots only smooth q
+    rng = np.random.default_rng(5)
+    roots = 10.0 + rng.uniform(-1.6, 1.6, 40) + 1j * rng.uniform(-1.0, 1.0, 40)
+    # clear of the curve by 30 % of the radius, so q = det T / prod (z - r) is resolved by
+    # 64 nodes whichever roots are divided out
+    d = np.abs(((roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2) ** 0.5 - 1.0)
+    roots = roots[d > 0.3]
+    inside_mask = (roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2 < 1.0
+    inside = int(np.sum(inside_mask))
+    assert inside >= 5
+    evaluate = _diagonal(list(roots))
+    # every root given, inside and out: q is a constant, and 24 nodes do
+    assert _deflated(evaluate, roots, 10.0, 1.0, 24, aspect) == inside
+    # the roots inside only, with round-off-sized errors
+    assert _deflated(evaluate, roots[inside_mask] * (1 + 1e-9), 10.0, 1.0, 64, aspect) == inside
+    # two roots missed and a spurious one (no root of det T) added
+    spurious = np.concatenate([roots[inside_mask][2:], [10.1 + 0.05j]])
+    assert _deflated(evaluate, spurious, 10.0, 1.0, 64, aspect) == inside
+
+
+def test_det_divided_by_the_roots_counts_one_missed_root_far_from_the_curve():
+    # one root at the centre, not given: q = det T turns once, slowly, round the curve
+    evaluate = _diagonal([10.0, 10.5 + 0.1j])
+    assert _deflated(evaluate, [10.5 + 0.1j], 10.0, 1.0, 24) == 2
+    assert _deflated(evaluate, [], 10.0, 1.0, 24) == 2
+    # a spurious root (not of det T) given inside: q has a pole there, and the count is
+    # still the true one
+    assert _deflated(evaluate, [10.0, 10.5 + 0.1j, 9.6], 10.0, 1.0, 24) == 2
+
+
+def test_det_divided_by_the_roots_refuses_a_missed_root_next_to_the_curve():
+    # a root 1e-3 of the radius inside the curve between two of 16 nodes, not given: q turns
+    # by nearly pi across that arc, so the deflated count is refused, not guessed
+    theta = 2 * np.pi / 16
+    r = 10.0 + 0.999 * np.exp(1j * theta)
+    evaluate = _diagonal([r, 10.2])
+    assert _deflated(evaluate, [10.2], 10.0, 1.0, 16) is None
+    # given, it is counted (the fast factor is divided out)
+    assert _deflated(evaluate, [r, 10.2], 10.0, 1.0, 16) == 2

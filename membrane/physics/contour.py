@@ -135,6 +135,39 @@ def _turns(Ta, Tb):
     return turn, most
 
 
+def deflated_winding(T, centre: complex, radius: float, aspect: float, roots,
+                     *, largest: float = 0.5 * np.pi) -> int | None:
+    r"""Zeros of det T inside the curve, from det T divided by the polynomial of ``roots``.
+
+    For any points r_i, arg det T = arg prod (z - r_i) + arg q(z) with
+    q = det T / prod (z - r_i), so the zeros of det T inside number those r_i inside (a
+    geometric test) plus the turns of q round the curve. That identity holds whatever the
+    r_i are; they are chosen to be the moments' estimates of the roots in and near the
+    curve, which leave q without the fast-turning factors of roots close to the curve or
+    crowded inside, so the turn of q from node to node is its principal value (the phase
+    of one LU's determinant per node, not an eigenvalue solve of T_a^-1 T_b per arc). A
+    root the moments missed still counts: it turns q by 2 pi. Returns None when q turns by
+    more than ``largest`` between neighbouring nodes (a root missed next to the curve, or
+    a crowd missed together): the caller then counts by :func:`winding`.
+    """
+    P = T.shape[0]
+    z, s, _ = circle_points(centre, radius, P, aspect)
+    sign, _ = np.linalg.slogdet(T)
+    if np.any(sign == 0):
+        return None
+    r = np.asarray(roots, complex)
+    r = r[np.isfinite(r)]
+    rs = (r - centre) / radius  # in the curve's own coordinates
+    inside = int(np.sum(np.abs(rs.real + 1j * rs.imag / aspect) < 1.0))
+    with np.errstate(all="ignore"):
+        factors = np.sum(np.angle(s[:, None] - rs[None, :]), axis=1) if len(rs) else 0.0
+    phase = np.angle(sign) - factors
+    step = np.angle(np.exp(1j * (np.roll(phase, -1) - phase)))
+    if not np.all(np.isfinite(step)) or np.max(np.abs(step)) > largest:
+        return None
+    return inside + int(round(float(np.sum(step)) / (2.0 * np.pi)))
+
+
 def winding(evaluate, T, centre: complex, radius: float, aspect: float = 1.0, *,
             largest: float = 0.5 * np.pi, passes: int = 6) -> int:
     r"""Zeros of det T inside the curve of :func:`circle_points`: the turns of its phase.
@@ -224,9 +257,10 @@ def eigen_in_circle(evaluate, centre: complex, radius: float, *, points: int = 3
     aspect : float
         Height of the ellipse over its half-width (1: a circle).
     count : bool
-        Also count the eigenvalues inside by the argument principle (:func:`winding`: the
-        turns of det T along the curve, from the nodes already evaluated, more only where
-        its phase moves fast) and raise :class:`TooMany` if it holds more than the moments
+        Also count the eigenvalues inside by the argument principle (the turns of det T
+        along the curve, from the nodes already evaluated: :func:`deflated_winding` with
+        the moments' roots divided out, else :func:`winding`, more nodes only where its
+        phase moves fast) and raise :class:`TooMany` if it holds more than the moments
         resolved. Each eigenvalue adds exactly 1 to the count however small its residue,
         while the moments lose those whose share of the Hankel matrix falls below its noise
         (a crowd of weakly coupled roots: a long kettle's ladder of air resonances above a
@@ -253,7 +287,9 @@ def eigen_in_circle(evaluate, centre: complex, radius: float, *, points: int = 3
     lam, vecs = moments_eigen(inv, s, weights=w, blocks=blocks, rank_tol=rank_tol)
     inside = np.isfinite(lam) & (np.abs(lam.real + 1j * lam.imag / aspect) < 1.0)
     if count:
-        held = winding(evaluate, T, centre, radius, aspect)
+        held = deflated_winding(T, centre, radius, aspect, centre + radius * lam)
+        if held is None:
+            held = winding(evaluate, T, centre, radius, aspect)
         if held > np.sum(inside):
             raise TooMany(f"contour solve: {held} eigenvalues inside the curve by the "
                           f"argument principle, {int(np.sum(inside))} from the moments")
