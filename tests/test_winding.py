@@ -28,15 +28,22 @@ def _count(evaluate, centre, radius, points, aspect=1.0):
     return winding(evaluate, evaluate(z), centre, radius, aspect)
 
 
+def _crowd(seed, count, half_width, half_height, clear, aspect):
+    """Roots placed at random round the curve (centre 10, radius 1) and at least ``clear``
+    of it, with the mask of those inside: an independent, geometric count."""
+    rng = np.random.default_rng(seed)
+    roots = 10.0 + rng.uniform(-half_width, half_width, count) \
+        + 1j * rng.uniform(-half_height, half_height, count)
+    d = np.abs(((roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2) ** 0.5 - 1.0)
+    roots = roots[d > clear]
+    return roots, (roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2 < 1.0
+
+
 @pytest.mark.parametrize("aspect", [1.0, 0.5])
 def test_the_turns_of_det_count_a_crowd_of_roots_inside(aspect):
-    # an independent count: which of the placed roots lie inside the ellipse
-    rng = np.random.default_rng(3)
-    roots = 10.0 + rng.uniform(-1.3, 1.3, 30) + 1j * rng.uniform(-0.8, 0.8, 30)
     # clear of the curve by 2 % so the phase can be resolved by halving arcs
-    d = np.abs(((roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2) ** 0.5 - 1.0)
-    roots = roots[d > 0.02]
-    inside = np.sum((roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2 < 1.0)
+    roots, mask = _crowd(3, 30, 1.3, 0.8, 0.02, aspect)
+    inside = int(np.sum(mask))
     assert inside >= 5
     assert _count(_diagonal(list(roots)), 10.0, 1.0, 24, aspect) == inside
 
@@ -69,13 +76,9 @@ def test_det_divided_by_the_moments_roots_counts_the_crowd_whatever_roots_it_is_
     # the count is the placed roots inside the ellipse (an independent, geometric count).
     # Given every root, only those inside (what the moments hold), or two missed and a
     # spurious one added, the deflated count is that number: the roots only smooth q
-    rng = np.random.default_rng(5)
-    roots = 10.0 + rng.uniform(-1.6, 1.6, 40) + 1j * rng.uniform(-1.0, 1.0, 40)
     # clear of the curve by 30 % of the radius, so q = det T / prod (z - r) is resolved by
     # 64 nodes whichever roots are divided out
-    d = np.abs(((roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2) ** 0.5 - 1.0)
-    roots = roots[d > 0.3]
-    inside_mask = (roots.real - 10.0) ** 2 + (roots.imag / aspect) ** 2 < 1.0
+    roots, inside_mask = _crowd(5, 40, 1.6, 1.0, 0.3, aspect)
     inside = int(np.sum(inside_mask))
     assert inside >= 5
     evaluate = _diagonal(list(roots))
