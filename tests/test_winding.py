@@ -45,7 +45,15 @@ def test_the_turns_of_det_count_a_crowd_of_roots_inside(aspect):
     roots, mask = _crowd(3, 30, 1.3, 0.8, 0.02, aspect)
     inside = int(np.sum(mask))
     assert inside >= 5
-    assert _count(_diagonal(list(roots)), 10.0, 1.0, 24, aspect) == inside
+    evaluate = _diagonal(list(roots))
+    assert _count(evaluate, 10.0, 1.0, 24, aspect) == inside
+    # with the roots inside given (some missed, a spurious one added), the arcs where
+    # det T / prod (z - r) turns slowly are taken from it and the rest by the eigenvalues:
+    # the roots just outside, 2 % from the curve, leave some of each
+    z, _, _ = circle_points(10.0, 1.0, 24, aspect)
+    T = evaluate(z)
+    for given in (roots[mask] * (1 + 1e-9), np.append(roots[mask][2:], 10.1 + 0.05j)):
+        assert winding(evaluate, T, 10.0, 1.0, aspect, roots=given) == inside
 
 
 def test_a_root_close_to_the_curve_is_counted_by_halving_arcs_not_missed():
@@ -108,5 +116,15 @@ def test_det_divided_by_the_roots_refuses_a_missed_root_next_to_the_curve():
     r = 10.0 + 0.999 * np.exp(1j * theta)
     evaluate = _diagonal([r, 10.2])
     assert _deflated(evaluate, [10.2], 10.0, 1.0, 16) is None
-    # given, it is counted (the fast factor is divided out)
-    assert _deflated(evaluate, [r, 10.2], 10.0, 1.0, 16) == 2
+    # given, it lies between the arc and its chord (0.999 > cos(pi / 16)), where a chord's
+    # step is not the arc's turn: still refused, and the count by the eigenvalues' turns
+    # (halving that arc) has it
+    assert _deflated(evaluate, [r, 10.2], 10.0, 1.0, 16) is None
+    z, _, _ = circle_points(10.0, 1.0, 16)
+    assert winding(evaluate, evaluate(z), 10.0, 1.0, roots=[r, 10.2]) == 2
+    # as close to the curve, but by a node (no chord passes it): given, it is divided out
+    # and counted; a count by the eigenvalues alone needs that arc halved
+    r_node = 10.0 + 0.999 * np.exp(1j * np.pi / 16)
+    evaluate = _diagonal([r_node, 10.2])
+    assert _deflated(evaluate, [r_node, 10.2], 10.0, 1.0, 16) == 2
+    assert _deflated(evaluate, [10.2], 10.0, 1.0, 16) is None

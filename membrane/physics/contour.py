@@ -135,6 +135,32 @@ def _turns(Ta, Tb):
     return turn, most
 
 
+def _deflated_steps(T, centre: complex, radius: float, aspect: float, roots):
+    """Per arc (node j to node j + 1), the turn of prod (z - r_i) and the principal value of
+    the turn of q = det T / prod (z - r_i), each (P,), rad; None where that cannot be said
+    (det T zero at a node, or a root between an arc and its chord)."""
+    P = T.shape[0]
+    _, s, _ = circle_points(centre, radius, P, aspect)
+    sign, _ = np.linalg.slogdet(T)
+    if np.any(sign == 0):
+        return None
+    r = np.asarray(roots, complex)
+    rs = (r[np.isfinite(r)] - centre) / radius  # in the curve's own coordinates
+    with np.errstate(all="ignore"):
+        a = np.angle(s[:, None] - rs[None, :])  # (P, R)
+    turns = np.angle(np.exp(1j * (np.roll(a, -1, axis=0) - a)))
+    # each factor's steps sum to its own turn (2 pi for a root inside, 0 outside) unless the
+    # root lies between an arc and its chord (or on the curve), where a chord's step is not
+    # the arc's: then nothing is said
+    inside = np.abs(rs.real + 1j * rs.imag / aspect) < 1.0
+    if not np.all(np.isfinite(turns)) or \
+            np.any(np.abs(turns.sum(axis=0) - 2.0 * np.pi * inside) > 1e-6):
+        return None
+    product = turns.sum(axis=1)
+    det = np.angle(np.roll(sign, -1) / sign)
+    return product, np.angle(np.exp(1j * (det - product)))
+
+
 def deflated_winding(T, centre: complex, radius: float, aspect: float, roots,
                      *, largest: float = 0.5 * np.pi) -> int | None:
     r"""Zeros of det T inside the curve, from det T divided by the polynomial of ``roots``.
@@ -148,28 +174,16 @@ def deflated_winding(T, centre: complex, radius: float, aspect: float, roots,
     of one LU's determinant per node, not an eigenvalue solve of T_a^-1 T_b per arc). A
     root the moments missed still counts: it turns q by 2 pi. Returns None when q turns by
     more than ``largest`` between neighbouring nodes (a root missed next to the curve, or
-    a crowd missed together): the caller then counts by :func:`winding`.
+    a crowd missed together): :func:`winding` then counts those arcs by the eigenvalues.
     """
-    P = T.shape[0]
-    z, s, _ = circle_points(centre, radius, P, aspect)
-    sign, _ = np.linalg.slogdet(T)
-    if np.any(sign == 0):
+    got = _deflated_steps(T, centre, radius, aspect, roots)
+    if got is None or np.max(np.abs(got[1])) > largest:
         return None
-    r = np.asarray(roots, complex)
-    r = r[np.isfinite(r)]
-    rs = (r - centre) / radius  # in the curve's own coordinates
-    inside = int(np.sum(np.abs(rs.real + 1j * rs.imag / aspect) < 1.0))
-    with np.errstate(all="ignore"):
-        factors = np.sum(np.angle(s[:, None] - rs[None, :]), axis=1) if len(rs) else 0.0
-    phase = np.angle(sign) - factors
-    step = np.angle(np.exp(1j * (np.roll(phase, -1) - phase)))
-    if not np.all(np.isfinite(step)) or np.max(np.abs(step)) > largest:
-        return None
-    return inside + int(round(float(np.sum(step)) / (2.0 * np.pi)))
+    return int(round(float(np.sum(got[0] + got[1])) / (2.0 * np.pi)))
 
 
 def winding(evaluate, T, centre: complex, radius: float, aspect: float = 1.0, *,
-            largest: float = 0.5 * np.pi, passes: int = 6) -> int:
+            largest: float = 0.5 * np.pi, passes: int = 6, roots=None) -> int:
     r"""Zeros of det T inside the curve of :func:`circle_points`: the turns of its phase.
 
     For T analytic inside and on the curve (no poles), the argument principle,
@@ -198,6 +212,11 @@ def winding(evaluate, T, centre: complex, radius: float, aspect: float = 1.0, *,
         Largest turn of one eigenvalue between neighbouring nodes accepted, rad.
     passes : int
         Halvings of the fast arcs allowed.
+    roots : array_like of complex, optional
+        Estimates of the roots in and near the curve (the moments'): on each arc where
+        det T / prod (z - r_i) turns by at most ``largest``, the turn is taken from the
+        roots' factors and that quotient (:func:`deflated_winding`), with no eigenvalue
+        solve; the other arcs are measured as above.
 
     Returns
     -------
@@ -208,7 +227,17 @@ def winding(evaluate, T, centre: complex, radius: float, aspect: float = 1.0, *,
     theta = 2.0 * np.pi * (np.arange(P) + 0.5) / P
     # arc j runs from node j to node j + 1 (the last back to the first); only the arcs a
     # pass halves are measured again
-    step, most = _turns(T, np.roll(T, -1, axis=0))
+    after = np.roll(T, -1, axis=0)
+    got = None if roots is None else _deflated_steps(T, centre, radius, aspect, roots)
+    if got is None:
+        step, most = _turns(T, after)
+    else:
+        # an arc where q turns slowly has its turn from the roots' factors and q; only the
+        # others are measured by the eigenvalues of T_a^-1 T_b (and halved as below)
+        step, most = got[0] + got[1], np.zeros(P)
+        fast = np.abs(got[1]) > largest
+        if np.any(fast):
+            step[fast], most[fast] = _turns(T[fast], after[fast])
     for done in range(passes + 1):
         fast = np.flatnonzero(most > largest)
         if not len(fast):
@@ -258,9 +287,9 @@ def eigen_in_circle(evaluate, centre: complex, radius: float, *, points: int = 3
         Height of the ellipse over its half-width (1: a circle).
     count : bool
         Also count the eigenvalues inside by the argument principle (the turns of det T
-        along the curve, from the nodes already evaluated: :func:`deflated_winding` with
-        the moments' roots divided out, else :func:`winding`, more nodes only where its
-        phase moves fast) and raise :class:`TooMany` if it holds more than the moments
+        along the curve, from the nodes already evaluated: :func:`winding` given the
+        moments' roots, which are divided out of det T wherever that leaves it turning
+        slowly; more nodes only where its phase still moves fast) and raise :class:`TooMany` if it holds more than the moments
         resolved. Each eigenvalue adds exactly 1 to the count however small its residue,
         while the moments lose those whose share of the Hankel matrix falls below its noise
         (a crowd of weakly coupled roots: a long kettle's ladder of air resonances above a
@@ -287,9 +316,7 @@ def eigen_in_circle(evaluate, centre: complex, radius: float, *, points: int = 3
     lam, vecs = moments_eigen(inv, s, weights=w, blocks=blocks, rank_tol=rank_tol)
     inside = np.isfinite(lam) & (np.abs(lam.real + 1j * lam.imag / aspect) < 1.0)
     if count:
-        held = deflated_winding(T, centre, radius, aspect, centre + radius * lam)
-        if held is None:
-            held = winding(evaluate, T, centre, radius, aspect)
+        held = winding(evaluate, T, centre, radius, aspect, roots=centre + radius * lam)
         if held > np.sum(inside):
             raise TooMany(f"contour solve: {held} eigenvalues inside the curve by the "
                           f"argument principle, {int(np.sum(inside))} from the moments")
